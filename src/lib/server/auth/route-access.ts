@@ -1,0 +1,24 @@
+/**
+ * Deny by default: every route id must be listed here, or the hook answers 403 before any load
+ * runs. 'public' routes are open to anyone; 'signed-in' ones need an actor. The exact permission
+ * is then checked in each load, action and endpoint through the guard (./guard).
+ */
+export type RouteAccess = 'public' | 'signed-in';
+
+export const ROUTE_ACCESS: Record<string, RouteAccess> = {
+	'/(public)': 'public',
+	'/(public)/signin': 'public',
+	'/(public)/signout': 'public',
+	'/(public)/reset': 'public',
+	'/(public)/reset/[token]': 'public',
+	'/(public)/invite/[token]': 'public',
+	'/(public)/dev/inbox': 'public',
+	'/(app)/networks': 'signed-in',
+	'/(app)/networks/new': 'signed-in',
+	'/(app)/networks/[id=id]': 'signed-in',
+	'/(app)/profile': 'signed-in',
+	'/(admin)/admin/users': 'signed-in',
+	'/(admin)/admin/audit': 'signed-in',
+	'/api/v1/networks': 'signed-in',
+	'/api/v1/networks/[id=id]': 'signed-in'
+};

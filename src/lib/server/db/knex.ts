@@ -1,0 +1,30 @@
+/** Builds Knex instances. The app uses the one in ./index; scripts and tests build their own. */
+import knex, { type Knex } from 'knex';
+
+export type Db = Knex | Knex.Transaction;
+
+export function createDb(url: string, poolMax = 10): Knex {
+	if (!url) throw new Error('DATABASE_URL is not set');
+	const u = new URL(url);
+	if (u.protocol !== 'mysql:' && u.protocol !== 'mariadb:') throw new Error(`DATABASE_URL must be mysql://…, got ${u.protocol}`);
+	return knex({
+		client: 'mysql2',
+		connection: {
+			host: u.hostname,
+			port: Number(u.port || 3306),
+			user: decodeURIComponent(u.username),
+			password: decodeURIComponent(u.password),
+			database: u.pathname.replace(/^\//, ''),
+			timezone: 'Z',
+			charset: 'utf8mb4',
+			supportBigNumbers: true,
+			bigNumberStrings: false
+		},
+		pool: { min: 0, max: poolMax }
+	});
+}
+
+/** Migration settings shared by the app, the scripts and the tests. */
+export function migrationConfig(directory: string): Knex.MigratorConfig {
+	return { directory, loadExtensions: ['.ts'], tableName: 'knex_migrations' };
+}

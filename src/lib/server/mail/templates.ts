@@ -1,0 +1,32 @@
+/** The e-mails Cairnfield sends. Plain text first; the HTML part mirrors it. */
+import type { OutgoingMail } from '../repositories/outbox';
+import { ROLE_LABELS, type Role } from '../auth/roles';
+
+function escapeHtml(s: string): string {
+	return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
+}
+
+function html(paragraphs: string[], link: { url: string; label: string }): string {
+	return `<div style="font-family:sans-serif;max-width:32rem">${paragraphs.map((p) => `<p>${escapeHtml(p)}</p>`).join('')}<p><a href="${escapeHtml(link.url)}">${escapeHtml(link.label)}</a></p></div>`;
+}
+
+export function invitationMail(to: string, orgName: string, role: Role, inviter: string, url: string): OutgoingMail {
+	const lines = [
+		`${inviter} has invited you to ${orgName} on Cairnfield as ${ROLE_LABELS[role].toLowerCase()}.`,
+		'Open the link below to choose your name and password. The link works once and expires in 7 days.'
+	];
+	return { to, subject: `You are invited to ${orgName} on Cairnfield`, text: `${lines.join('\n\n')}\n\n${url}\n`, html: html(lines, { url, label: 'Accept the invitation' }) };
+}
+
+export function passwordResetMail(to: string, url: string): OutgoingMail {
+	const lines = [
+		'Someone asked to reset the password of your Cairnfield account. If it was you, open the link below within one hour.',
+		'If it was not you, ignore this message: your password stays as it is.'
+	];
+	return { to, subject: 'Reset your Cairnfield password', text: `${lines.join('\n\n')}\n\n${url}\n`, html: html(lines, { url, label: 'Choose a new password' }) };
+}
+
+export function signInLinkMail(to: string, url: string): OutgoingMail {
+	const lines = ['Open the link below to sign in to Cairnfield. It works once and expires in 24 hours.', 'If you did not ask for it, ignore this message.'];
+	return { to, subject: 'Your Cairnfield sign-in link', text: `${lines.join('\n\n')}\n\n${url}\n`, html: html(lines, { url, label: 'Sign in to Cairnfield' }) };
+}

@@ -1,0 +1,71 @@
+import type { Db } from '../db';
+
+export interface NetworkRow {
+	id: number;
+	organisation_id: number;
+	slug: string;
+	name: string;
+	description: string;
+	crs_epsg: number | null;
+	study_area: unknown | null;
+	exclusions: unknown | null;
+	publication: 'private' | 'published';
+	public_text: string;
+	version: number;
+	created_at: Date;
+	updated_at: Date;
+}
+
+const columns = ['id', 'organisation_id', 'slug', 'name', 'description', 'crs_epsg', 'study_area', 'exclusions', 'publication', 'public_text', 'version', 'created_at', 'updated_at'] as const;
+
+function parseJsonColumns(row: Record<string, unknown>): NetworkRow {
+	const parse = (v: unknown) => (typeof v === 'string' ? JSON.parse(v) : v ?? null);
+	return { ...(row as unknown as NetworkRow), study_area: parse(row.study_area), exclusions: parse(row.exclusions) };
+}
+
+export async function listNetworks(db: Db, organisationIds: number[]): Promise<NetworkRow[]> {
+	if (organisationIds.length === 0) return [];
+	const rows = await db('networks').select(columns).whereIn('organisation_id', organisationIds).orderBy('name');
+	return rows.map(parseJsonColumns);
+}
+
+export async function findNetwork(db: Db, id: number, opts: { forUpdate?: boolean } = {}): Promise<NetworkRow | undefined> {
+	const q = db('networks').select(columns).where({ id }).first();
+	const row = await (opts.forUpdate ? q.forUpdate() : q);
+	return row ? parseJsonColumns(row) : undefined;
+}
+
+export async function slugTaken(db: Db, organisationId: number, slug: string): Promise<boolean> {
+	return !!(await db('networks').select('id').where({ organisation_id: organisationId, slug }).first());
+}
+
+export interface NetworkFields {
+	name: string;
+	slug: string;
+	description: string;
+	crs_epsg: number | null;
+	publication: 'private' | 'published';
+	public_text: string;
+	study_area: unknown | null;
+	exclusions: unknown | null;
+}
+
+export async function insertNetwork(db: Db, organisationId: number, createdBy: number, f: NetworkFields): Promise<number> {
+	const [id] = await db('networks').insert({
+		...f,
+		organisation_id: organisationId,
+		created_by: createdBy,
+		study_area: f.study_area === null ? null : JSON.stringify(f.study_area),
+		exclusions: f.exclusions === null ? null : JSON.stringify(f.exclusions)
+	});
+	return id;
+}
+
+/** Optimistic update: succeeds only when the row still has `version`. Returns whether it did. */
+export async function updateNetwork(db: Db, id: number, version: number, patch: Partial<NetworkFields>): Promise<boolean> {
+	const row: Record<string, unknown> = { ...patch, version: version + 1, updated_at: db.fn.now() };
+	if ('study_area' in patch) row.study_area = patch.study_area === null ? null : JSON.stringify(patch.study_area);
+	if ('exclusions' in patch) row.exclusions = patch.exclusions === null ? null : JSON.stringify(patch.exclusions);
+	const n = await db('networks').where({ id, version }).update(row);
+	return n === 1;
+}

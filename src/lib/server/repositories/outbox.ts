@@ -1,0 +1,44 @@
+import type { Db } from '../db';
+
+export interface OutgoingMail {
+	to: string;
+	subject: string;
+	text: string;
+	html?: string;
+}
+
+export interface OutboxRow {
+	id: number;
+	to_address: string;
+	subject: string;
+	text_body: string;
+	html_body: string | null;
+	attempts: number;
+}
+
+/** Queues a message; call it inside the transaction of the change that causes it. */
+export async function enqueueMail(db: Db, m: OutgoingMail): Promise<number> {
+	const [id] = await db('outbox_messages').insert({ to_address: m.to, subject: m.subject, text_body: m.text, html_body: m.html ?? null });
+	return id;
+}
+
+/** Claims pending messages for delivery; SKIP LOCKED lets several senders share the queue. */
+export async function claimPending(db: Db, limit: number): Promise<OutboxRow[]> {
+	return db('outbox_messages')
+		.select('id', 'to_address', 'subject', 'text_body', 'html_body', 'attempts')
+		.where('status', 'pending')
+		.orderBy('id')
+		.limit(limit)
+		.forUpdate()
+		.skipLocked();
+}
+
+export async function markSent(db: Db, id: number): Promise<void> {
+	await db('outbox_messages').where({ id }).update({ status: 'sent', sent_at: db.fn.now(), attempts: db.raw('attempts + 1') });
+}
+
+export async function markFailed(db: Db, id: number, error: string, giveUp: boolean): Promise<void> {
+	await db('outbox_messages')
+		.where({ id })
+		.update({ status: giveUp ? 'failed' : 'pending', last_error: error.slice(0, 2000), attempts: db.raw('attempts + 1') });
+}

@@ -1,0 +1,36 @@
+#!/usr/bin/env node
+// `npm start` and `npm test` land here first. Plain Node with no dependencies: it installs the
+// project's packages when they are missing or older than package-lock.json, then hands over to the
+// TypeScript entry (start.ts or test.ts) through tsx.
+import { spawnSync, spawn } from 'node:child_process';
+import { existsSync, statSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import path from 'node:path';
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
+const entry = process.argv[2];
+if (entry !== 'start' && entry !== 'test') {
+	console.error('usage: node src/ops/bootstrap.mjs start|test');
+	process.exit(2);
+}
+
+const lock = path.join(root, 'package-lock.json');
+const marker = path.join(root, 'node_modules', '.package-lock.json');
+const stale = !existsSync(marker) || (existsSync(lock) && statSync(lock).mtimeMs > statSync(marker).mtimeMs + 1000);
+if (stale) {
+	console.log('› installing packages (npm ci)…');
+	const r = spawnSync('npm', ['ci', '--no-audit', '--no-fund'], { cwd: root, stdio: 'inherit' });
+	if (r.status !== 0) {
+		console.error('npm ci failed');
+		process.exit(r.status ?? 1);
+	}
+}
+
+const tsx = path.join(root, 'node_modules', '.bin', 'tsx');
+const child = spawn(tsx, [path.join(root, 'src', 'ops', `${entry}.ts`), ...process.argv.slice(3)], {
+	cwd: root,
+	stdio: 'inherit'
+});
+// Ctrl-C reaches the whole foreground process group; the child handles it and exits in order.
+for (const sig of ['SIGINT', 'SIGTERM']) process.on(sig, () => child.kill(sig));
+child.on('exit', (code, signal) => process.exit(code ?? (signal ? 130 : 1)));

@@ -1,0 +1,38 @@
+import { fail } from '@sveltejs/kit';
+import type { Actions, PageServerLoad } from './$types';
+import { getDb } from '$lib/server/db';
+import { requireActor } from '$lib/server/auth/guard';
+import { serviceFailure } from '$lib/server/forms';
+import { recordAudit } from '$lib/server/repositories/audit';
+import { updateUser } from '$lib/server/repositories/users';
+import { changePassword } from '$lib/server/services/passwords';
+
+export const load = (async (event) => {
+	const actor = requireActor(event);
+	return { name: actor.name, email: actor.email, memberships: actor.memberships.map((m) => ({ organisation: m.organisation_name, role: m.role })) };
+}) satisfies PageServerLoad;
+
+export const actions = {
+	name: async (event) => {
+		const actor = requireActor(event);
+		const name = String((await event.request.formData()).get('name') ?? '').trim();
+		if (name.length < 2 || name.length > 200) return fail(400, { errors: { name: 'Enter a name of 2 to 200 characters.' } });
+		await getDb().transaction(async (trx) => {
+			await updateUser(trx, actor.id, { name });
+			await recordAudit(trx, { organisationId: null, actorUserId: actor.id, action: 'user.rename', objectType: 'user', objectId: actor.id, before: { name: actor.name }, after: { name } });
+		});
+		return { saved: 'name' };
+	},
+	password: async (event) => {
+		const actor = requireActor(event);
+		const data = await event.request.formData();
+		const next = String(data.get('password') ?? '');
+		if (next !== String(data.get('confirm') ?? '')) return fail(400, { errors: { confirm: 'The two passwords differ.' } });
+		try {
+			await changePassword(getDb(), actor.id, String(data.get('current') ?? ''), next);
+		} catch (err) {
+			return serviceFailure(err);
+		}
+		return { saved: 'password' };
+	}
+} satisfies Actions;
