@@ -1,14 +1,11 @@
-import { SvelteKitAuth } from '@auth/sveltekit';
 import { error, json, type Handle, type HandleServerError } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
-import { authConfig } from '$lib/server/auth/config';
+import { authHandle } from '$lib/server/auth';
 import { loadActor } from '$lib/server/auth/actor';
 import { ROUTE_ACCESS } from '$lib/server/auth/route-access';
 import { apiErrorBody } from '$lib/server/api/errors';
 import { getDb } from '$lib/server/db';
 import { startOutboxTimer } from '$lib/server/mail/outbox';
-
-const { handle: authHandle } = SvelteKitAuth(async (event) => authConfig(event));
 
 startOutboxTimer();
 

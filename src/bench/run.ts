@@ -1,3 +1,4 @@
+export {};
 /**
  * `npm run bench [name ...]`: prints the figures of each benchmark. Benchmarks print numbers;
  * they are not timed tests and never fail on speed.

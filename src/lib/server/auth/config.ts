@@ -31,6 +31,8 @@ export function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 	return {
 		secret: env.AUTH_SECRET,
 		trustHost: true,
+		// Failed sign-ins are expected; keep them out of the error log.
+		logger: { error: (e) => { if ((e as { type?: string }).type !== 'CredentialsSignin') console.error(e); }, warn: () => {} },
 		adapter: knexAdapter(db),
 		session: { strategy: 'jwt', maxAge: 7 * 24 * 3600 },
 		pages: { signIn: '/signin', error: '/signin', verifyRequest: '/signin?sent=1' },

@@ -25,11 +25,11 @@ export function normaliseEmail(email: string): string {
 }
 
 export async function findUserById(db: Db, id: number): Promise<UserRow | undefined> {
-	return db<UserRow>('users').select(userColumns).where({ id }).first();
+	return db<UserRow>('users').select(...userColumns).where({ id }).first();
 }
 
 export async function findUserByEmail(db: Db, email: string): Promise<UserRow | undefined> {
-	return db<UserRow>('users').select(userColumns).where({ email: normaliseEmail(email) }).first();
+	return db<UserRow>('users').select(...userColumns).where({ email: normaliseEmail(email) }).first();
 }
 
 export async function insertUser(db: Db, user: { email: string; name: string; password_hash: string | null; email_verified_at?: Date | null }): Promise<number> {

@@ -1,5 +1,6 @@
-import { fail, redirect } from '@sveltejs/kit';
+import { fail, isRedirect, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
+import { signIn } from '$lib/server/auth';
 
 function safeRedirect(target: unknown): string {
 	const t = typeof target === 'string' ? target : '';
@@ -26,18 +27,27 @@ export const load = (async ({ locals, url }) => {
 
 export const actions = {
 	password: async (event) => {
-		const data = await event.request.formData();
+		// Auth.js's action reads the form itself, so validate a copy first.
+		const data = await event.request.clone().formData();
 		const email = String(data.get('email') ?? '').trim();
 		const password = String(data.get('password') ?? '');
 		if (!email || !password) return fail(400, { form: 'password', email, message: 'Enter your e-mail and password.' });
-		const redirectTo = safeRedirect(data.get('redirectTo'));
-		await event.locals.signIn('password', { email, password, redirectTo });
+		if (data.get('providerId') !== 'password') return fail(400, { form: 'password', email, message: 'Reload the page and try again.' });
+		try {
+			await signIn(event);
+		} catch (err) {
+			if (isRedirect(err)) throw err;
+			const code = (err as { code?: string }).code;
+			if (code === 'rate_limited') return fail(429, { form: 'password', email, message: messages.rate_limited });
+			if ((err as { type?: string }).type === 'CredentialsSignin') return fail(400, { form: 'password', email, message: messages.credentials });
+			throw err;
+		}
 	},
 	link: async (event) => {
-		const data = await event.request.formData();
+		const data = await event.request.clone().formData();
 		const email = String(data.get('email') ?? '').trim();
 		if (!/^[^\s@]+@[^\s@]+\.[^\s@]+$/.test(email)) return fail(400, { form: 'link', email, message: 'Enter a valid e-mail address.' });
-		const redirectTo = safeRedirect(data.get('redirectTo'));
-		await event.locals.signIn('link', { email, redirectTo });
+		if (data.get('providerId') !== 'link') return fail(400, { form: 'link', email, message: 'Reload the page and try again.' });
+		await signIn(event);
 	}
 } satisfies Actions;

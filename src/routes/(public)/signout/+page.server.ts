@@ -1,10 +1,9 @@
 import { redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
+import { signOut } from '$lib/server/auth';
 
 export const load = (async () => redirect(303, '/')) satisfies PageServerLoad;
 
 export const actions = {
-	default: async (event) => {
-		await event.locals.signOut({ redirectTo: '/signin' });
-	}
+	default: signOut
 } satisfies Actions;
