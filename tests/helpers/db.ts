@@ -54,3 +54,8 @@ export async function makeMember(db: Knex, role: 'admin' | 'analyst' | 'reviewer
 	await db('memberships').insert({ organisation_id: organisationId, user_id: userId, role });
 	return { userId, organisationId: organisationId!, email };
 }
+
+/** mysql2 returns MariaDB JSON columns parsed on some server versions and as text on others. */
+export function jsonValue(v: unknown): unknown {
+	return typeof v === 'string' ? JSON.parse(v) : v;
+}

@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { acceptInvitation, changeRole, checkInvitation, inviteMember, removeMember } from '../../src/lib/server/services/members';
 import { ServiceError } from '../../src/lib/server/services/errors';
-import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
+import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpers/db';
 
 describe('members service', () => {
 	let t: TestDb;
@@ -45,6 +45,6 @@ describe('members service', () => {
 		await changeRole(t.db, admin.organisationId, second.userId, admin.userId, 'technician');
 		expect((await t.db('memberships').where({ user_id: admin.userId }).first()).role).toBe('technician');
 		const audit = await t.db('audit_log').where({ action: 'membership.role', object_id: String(admin.userId) }).first();
-		expect(JSON.parse(audit.before)).toEqual({ role: 'admin' });
+		expect(jsonValue(audit.before)).toEqual({ role: 'admin' });
 	});
 });

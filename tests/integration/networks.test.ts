@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createNetwork, updateNetworkDetails } from '../../src/lib/server/services/networks';
-import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
+import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpers/db';
 
 describe('networks service', () => {
 	let t: TestDb;
@@ -28,6 +28,6 @@ describe('networks service', () => {
 		await expect(updateNetworkDetails(t.db, id, admin.userId, { version: 2, publication: 'published' }, { mayPublish: false })).rejects.toMatchObject({ status: 403 });
 		const audits = await t.db('audit_log').where({ action: 'network.update', object_id: String(id) });
 		expect(audits).toHaveLength(1);
-		expect(JSON.parse(audits[0].before)).toEqual({ description: 'a' });
+		expect(jsonValue(audits[0].before)).toEqual({ description: 'a' });
 	});
 });

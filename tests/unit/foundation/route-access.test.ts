@@ -9,7 +9,7 @@ const routesDir = path.resolve(import.meta.dirname, '../../../src/routes');
 function routeIds(dir = routesDir): string[] {
 	const ids: string[] = [];
 	const files = readdirSync(dir);
-	if (files.some((f) => /^\+(page|server)\.(svelte|ts|js)$/.test(f)) && dir !== routesDir) ids.push('/' + path.relative(routesDir, dir).split(path.sep).join('/'));
+	if (files.some((f) => /^\+(page|server)(\.server)?\.(svelte|ts|js)$/.test(f)) && dir !== routesDir) ids.push('/' + path.relative(routesDir, dir).split(path.sep).join('/'));
 	if (dir === routesDir && files.some((f) => /^\+page/.test(f))) ids.push('/');
 	for (const f of files) {
 		const p = path.join(dir, f);

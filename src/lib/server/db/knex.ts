@@ -1,5 +1,8 @@
 /** Builds Knex instances. The app uses the one in ./index; scripts and tests build their own. */
 import knex, { type Knex } from 'knex';
+import { readdirSync } from 'node:fs';
+import path from 'node:path';
+import { pathToFileURL } from 'node:url';
 
 export type Db = Knex | Knex.Transaction;
 
@@ -24,7 +27,19 @@ export function createDb(url: string, poolMax = 10): Knex {
 	});
 }
 
-/** Migration settings shared by the app, the scripts and the tests. */
+/**
+ * Migration settings shared by the scripts and the tests. The migrations are loaded with this
+ * module's own dynamic import, so they run as TypeScript under tsx and under vitest alike.
+ */
 export function migrationConfig(directory: string): Knex.MigratorConfig {
-	return { directory, loadExtensions: ['.ts'], tableName: 'knex_migrations' };
+	const source: Knex.MigrationSource<string> = {
+		async getMigrations() {
+			return readdirSync(directory)
+				.filter((f) => /^\d{14}_[a-z0-9_]+\.ts$/.test(f))
+				.sort();
+		},
+		getMigrationName: (name) => name,
+		getMigration: (name) => import(/* @vite-ignore */ pathToFileURL(path.join(directory, name)).href)
+	};
+	return { migrationSource: source, tableName: 'knex_migrations' };
 }

@@ -1,0 +1,103 @@
+/**
+ * The authorization matrix: every page, form action and API route, with every role and
+ * anonymously, against the expected status. Inputs to actions are deliberately invalid, so an
+ * allowed caller gets 400 (validation) and nothing changes, while a refused one gets 403 (or a
+ * redirect to sign-in / 401 when anonymous). Keep it in step with src/lib/server/auth/route-access.ts.
+ */
+import { expect, test, type APIRequestContext } from '@playwright/test';
+import { contextFor, type DemoRole } from './support';
+
+type Who = 'anon' | DemoRole;
+const WHO: Who[] = ['anon', 'admin', 'analyst', 'reviewer', 'technician'];
+
+interface Check {
+	name: string;
+	method: 'GET' | 'POST';
+	path: string;
+	form?: Record<string, string>;
+	json?: unknown;
+	expect: Record<Who, number>;
+}
+
+const page = (anon: number, admin: number, analyst: number, reviewer: number, technician: number) => ({ anon, admin, analyst, reviewer, technician });
+const signedIn = (status: number) => page(303, status, status, status, status);
+const adminOnly = (ok: number) => page(303, ok, 403, 403, 403);
+const api = (anon: number, admin: number, analyst: number, reviewer: number, technician: number) => page(anon, admin, analyst, reviewer, technician);
+
+const checks: Check[] = [
+	{ name: 'front page', method: 'GET', path: '/', expect: page(200, 303, 303, 303, 303) },
+	{ name: 'sign-in page', method: 'GET', path: '/signin', expect: page(200, 303, 303, 303, 303) },
+	{ name: 'password reset page', method: 'GET', path: '/reset', expect: page(200, 200, 200, 200, 200) },
+	{ name: 'reset link page (bad token)', method: 'GET', path: '/reset/not-a-token', expect: page(200, 200, 200, 200, 200) },
+	{ name: 'invitation page (bad token)', method: 'GET', path: '/invite/not-a-token', expect: page(200, 200, 200, 200, 200) },
+	{ name: 'development inbox', method: 'GET', path: '/dev/inbox', expect: page(200, 200, 200, 200, 200) },
+	{ name: 'unknown page', method: 'GET', path: '/no-such-page', expect: page(404, 404, 404, 404, 404) },
+	{ name: 'network list', method: 'GET', path: '/networks', expect: signedIn(200) },
+	{ name: 'new network page', method: 'GET', path: '/networks/new', expect: adminOnly(200) },
+	{ name: 'network overview', method: 'GET', path: '/networks/1', expect: signedIn(200) },
+	{ name: 'missing network', method: 'GET', path: '/networks/999999', expect: page(404, 404, 404, 404, 404) },
+	{ name: 'non-numeric network id', method: 'GET', path: '/networks/abc', expect: page(404, 404, 404, 404, 404) },
+	{ name: 'profile', method: 'GET', path: '/profile', expect: signedIn(200) },
+	{ name: 'user administration', method: 'GET', path: '/admin/users', expect: adminOnly(200) },
+	{ name: 'audit log', method: 'GET', path: '/admin/audit', expect: adminOnly(200) },
+
+	{ name: 'create network action', method: 'POST', path: '/networks/new', form: { name: '' }, expect: adminOnly(400) },
+	{ name: 'edit network action', method: 'POST', path: '/networks/1?/update', form: { name: '', version: '1' }, expect: page(303, 400, 400, 403, 403) },
+	{ name: 'publish network action', method: 'POST', path: '/networks/1?/publication', form: { publication: 'nonsense', version: '1' }, expect: page(303, 400, 403, 403, 403) },
+	{ name: 'invite action', method: 'POST', path: '/admin/users?/invite', form: { email: 'not-an-address', role: 'admin' }, expect: adminOnly(400) },
+	{ name: 'role action', method: 'POST', path: '/admin/users?/role', form: { userId: 'x', role: 'admin' }, expect: adminOnly(400) },
+	{ name: 'remove action', method: 'POST', path: '/admin/users?/remove', form: { userId: 'x' }, expect: adminOnly(400) },
+	{ name: 'withdraw invitation action', method: 'POST', path: '/admin/users?/withdraw', form: { invitationId: 'x' }, expect: adminOnly(400) },
+	{ name: 'rename action', method: 'POST', path: '/profile?/name', form: { name: '' }, expect: signedIn(400) },
+	{ name: 'change password action', method: 'POST', path: '/profile?/password', form: { current: 'x', password: 'a', confirm: 'b' }, expect: signedIn(400) },
+
+	{ name: 'API list networks', method: 'GET', path: '/api/v1/networks', expect: api(401, 200, 200, 200, 200) },
+	{ name: 'API create network', method: 'POST', path: '/api/v1/networks', json: { name: '' }, expect: api(401, 400, 403, 403, 403) },
+	{ name: 'API get network', method: 'GET', path: '/api/v1/networks/1', expect: api(401, 200, 200, 200, 200) },
+	{ name: 'API get missing network', method: 'GET', path: '/api/v1/networks/999999', expect: api(401, 404, 404, 404, 404) },
+	{ name: 'API update network', method: 'POST', path: '/api/v1/networks/1', json: { version: 'x' }, expect: api(401, 400, 400, 403, 403) },
+	{ name: 'API unknown route', method: 'GET', path: '/api/v1/nothing-here', expect: api(404, 404, 404, 404, 404) }
+];
+
+const contexts = new Map<Who, APIRequestContext>();
+
+test.beforeAll(async () => {
+	for (const who of WHO) contexts.set(who, await contextFor(who === 'anon' ? null : who));
+});
+test.afterAll(async () => {
+	for (const c of contexts.values()) await c.dispose();
+});
+
+for (const check of checks) {
+	test(`${check.method} ${check.path} (${check.name})`, async () => {
+		const got: Record<string, number> = {};
+		for (const who of WHO) {
+			const ctx = contexts.get(who)!;
+			const res =
+				check.method === 'GET'
+					? await ctx.get(check.path, { headers: { accept: check.path.startsWith('/api/') ? 'application/json' : 'text/html' } })
+					: check.json !== undefined
+						? await ctx.post(check.path, { data: check.json, headers: { accept: 'application/json' } })
+						: await ctx.post(check.path, { form: check.form ?? {}, headers: { accept: 'text/html' } });
+			got[who] = res.status();
+			if (check.path.startsWith('/api/') && res.status() >= 400) {
+				const body = await res.json();
+				expect(body.error, `${who}: API error shape`).toMatchObject({ code: expect.any(String), message: expect.any(String) });
+			}
+		}
+		expect(got).toEqual(check.expect);
+	});
+}
+
+test('anonymous pages that need sign-in redirect to the sign-in page', async () => {
+	const res = await contexts.get('anon')!.get('/admin/users', { headers: { accept: 'text/html' } });
+	expect(res.status()).toBe(303);
+	expect(res.headers()['location']).toBe('/signin?redirectTo=%2Fadmin%2Fusers');
+});
+
+test('session cookies are httpOnly and SameSite=Lax', async () => {
+	const state = await contexts.get('analyst')!.storageState();
+	const session = state.cookies.find((c) => c.name.includes('session-token'))!;
+	expect(session.httpOnly).toBe(true);
+	expect(session.sameSite).toBe('Lax');
+});

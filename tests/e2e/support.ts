@@ -1,0 +1,54 @@
+/** Shared helpers of the end-to-end tests: demo accounts, signing in, reading caught e-mail. */
+import { expect, request, type APIRequestContext, type Page } from '@playwright/test';
+import { readMailbox, type CapturedMail } from '../../src/lib/server/mail/dev-inbox';
+import { DEMO_USERS } from '../../seeds/demo';
+
+export type DemoRole = (typeof DEMO_USERS)[number]['role'];
+export const baseURL = process.env.BASE_URL ?? 'http://127.0.0.1:3000';
+
+export function demoUser(role: DemoRole) {
+	return DEMO_USERS.find((u) => u.role === role)!;
+}
+
+export async function signInPage(page: Page, email: string, password: string): Promise<void> {
+	await page.goto('/signin');
+	await page.getByLabel('E-mail').first().fill(email);
+	await page.getByLabel('Password').fill(password);
+	await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+	await expect(page).toHaveURL(/\/networks/);
+}
+
+/** An API context signed in as the role (or anonymous for null), sending the Origin SvelteKit checks. */
+export async function contextFor(role: DemoRole | null): Promise<APIRequestContext> {
+	const ctx = await request.newContext({ baseURL, extraHTTPHeaders: { origin: baseURL }, maxRedirects: 0 });
+	if (role) {
+		const u = demoUser(role);
+		const res = await ctx.post('/signin?/password', {
+			form: { providerId: 'password', email: u.email, password: u.password, redirectTo: '/networks' },
+			headers: { accept: 'text/html' }
+		});
+		expect([302, 303]).toContain(res.status());
+		const state = await ctx.storageState();
+		expect(state.cookies.some((c) => c.name.includes('session-token'))).toBe(true);
+	}
+	return ctx;
+}
+
+/** Waits for an e-mail to `to` caught by the fake SMTP server (DEV_MAIL_DIR). */
+export async function waitForMail(to: string, subject: RegExp, after = 0): Promise<CapturedMail> {
+	const dir = process.env.DEV_MAIL_DIR;
+	if (!dir) throw new Error('DEV_MAIL_DIR is not set: run through npm test');
+	const end = Date.now() + 20_000;
+	while (Date.now() < end) {
+		const hit = readMailbox(dir).find((m) => m.to.includes(to) && subject.test(m.subject) && Date.parse(m.receivedAt) >= after);
+		if (hit) return hit;
+		await new Promise((r) => setTimeout(r, 200));
+	}
+	throw new Error(`no e-mail to ${to} matching ${subject}`);
+}
+
+export function linkIn(mail: CapturedMail): string {
+	const m = /(https?:\/\/\S+)/.exec(mail.text);
+	if (!m) throw new Error('no link in the e-mail');
+	return m[1];
+}
