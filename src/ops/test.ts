@@ -44,7 +44,13 @@ function readJson(file: string): unknown {
 }
 
 async function cleanup(): Promise<void> {
-	for (const fn of cleanups.reverse()) await Promise.resolve(fn()).catch(() => {});
+	for (const fn of cleanups.reverse()) {
+		try {
+			await fn();
+		} catch (err) {
+			console.error(`clean-up step failed: ${err instanceof Error ? err.message : err}`);
+		}
+	}
 	cleanups.length = 0;
 }
 process.on('SIGINT', () => void cleanup().then(() => process.exit(130)));
@@ -52,7 +58,7 @@ process.on('SIGTERM', () => void cleanup().then(() => process.exit(143)));
 
 try {
 	const tmp = mkdtempSync(path.join(existsSync('/dev/shm') ? '/dev/shm' : os.tmpdir(), 'cf-test-'));
-	cleanups.push(() => rmSync(tmp, { recursive: true, force: true }));
+	cleanups.push(() => rmSync(tmp, { recursive: true, force: true, maxRetries: 5, retryDelay: 200 }));
 	if (only !== 'unit') ensureDebianPackages('/usr/bin/chromium', ['chromium', 'fonts-dejavu-core']);
 
 	const dbPort = Number(process.env.TEST_DB_PORT ?? (await freePort()));

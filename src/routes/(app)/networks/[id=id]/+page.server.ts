@@ -1,4 +1,4 @@
-import { error } from '@sveltejs/kit';
+import { error, fail } from '@sveltejs/kit';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 import { getDb } from '$lib/server/db';
 import { requirePermission } from '$lib/server/auth/guard';
@@ -46,7 +46,7 @@ export const actions = {
 		const { actor } = requirePermission(event, 'network.publish', network.organisation_id);
 		const data = await event.request.formData();
 		const parsed = networkPatch.safeParse({ publication: data.get('publication'), version: data.get('version') });
-		if (!parsed.success) return { errors: { publication: 'Choose public or private.' } };
+		if (!parsed.success) return fail(400, { errors: { publication: 'Choose public or private.' } });
 		try {
 			await updateNetworkDetails(getDb(), network.id, actor.id, parsed.data, { mayPublish: true });
 		} catch (err) {

@@ -1,4 +1,4 @@
-import { redirect } from '@sveltejs/kit';
+import { fail, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { getDb } from '$lib/server/db';
 import { formFields, parseForm, serviceFailure } from '$lib/server/forms';
@@ -23,10 +23,10 @@ export const actions = {
 	default: async ({ request, params, locals }) => {
 		const db = getDb();
 		const state = await checkInvitation(db, params.token);
-		if (!state.ok) return { errors: { _: state.reason } };
+		if (!state.ok) return fail(400, { errors: { _: state.reason } });
 		if (state.existingUser) {
 			// An existing account joins by signing in as that account first.
-			if (locals.actor?.email !== state.invitation.email) return { errors: { _: `Sign in as ${state.invitation.email} first, then open the link again.` } };
+			if (locals.actor?.email !== state.invitation.email) return fail(403, { errors: { _: `Sign in as ${state.invitation.email} first, then open the link again.` } });
 			try {
 				await acceptInvitation(db, params.token, null);
 			} catch (err) {

@@ -1,4 +1,4 @@
-import { redirect } from '@sveltejs/kit';
+import { fail, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { getDb } from '$lib/server/db';
 import { serviceFailure } from '$lib/server/forms';
@@ -11,7 +11,7 @@ export const actions = {
 		const data = await request.formData();
 		const password = String(data.get('password') ?? '');
 		const confirm = String(data.get('confirm') ?? '');
-		if (password !== confirm) return { errors: { confirm: 'The two passwords differ.' } };
+		if (password !== confirm) return fail(400, { errors: { confirm: 'The two passwords differ.' } });
 		try {
 			await completePasswordReset(getDb(), params.token, password);
 		} catch (err) {

@@ -20,9 +20,10 @@ const createBody = networkInput.extend({ organisationId: z.number().int().positi
 /** POST /api/v1/networks: create a network (administrators). */
 export const POST: RequestHandler = apiHandler(async (event) => {
 	const actor = requireActor(event);
+	// Permission first: a caller who may not create networks learns nothing from validation.
+	if (organisationsWith(actor, 'network.create').length === 0) throw new ApiError(403, 'forbidden', 'You cannot create networks.');
 	const body = await readJson(event, createBody);
 	const organisationId = body.organisationId ?? organisationsWith(actor, 'network.create')[0];
-	if (!organisationId) throw new ApiError(403, 'forbidden', 'You cannot create networks.');
 	requirePermission(event, 'network.create', organisationId);
 	try {
 		const id = await createNetwork(getDb(), organisationId, actor.id, body);
