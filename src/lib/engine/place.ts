@@ -182,8 +182,8 @@ export function place(
 		// Constraints, sensor by sensor.
 		const nu = pu.slice();
 		const nv = pv.slice();
-		const occupied = new Map<string, number>();
-		for (let i = 0; i < n; i++) bump(occupied, key(pu[i], pv[i]), 1);
+		const occupied = new Occupancy();
+		for (let i = 0; i < n; i++) occupied.add(pu[i], pv[i]);
 		const spacingU = options.minSpacing && options.minSpacing > 0 ? options.minSpacing / cellSize : 0;
 		const constrain = (i: number, targetU: number, targetV: number): [number, number] => {
 			let x = targetU;
@@ -204,7 +204,7 @@ export function place(
 		let maxMove = 0;
 		for (const i of order) {
 			if (!movable[i]) continue;
-			bump(occupied, key(pu[i], pv[i]), -1);
+			occupied.remove(pu[i], pv[i]);
 			let [x, y] = constrain(i, tu[i], tv[i]);
 			if (gate && !gate.tryCross(pu[i], pv[i], x, y)) {
 				// Crossing refused (it would over-fill or under-fill a zone): take the local step
@@ -212,7 +212,7 @@ export function place(
 				[x, y] = constrain(i, localU[i], localV[i]);
 				if (!gate.tryCross(pu[i], pv[i], x, y)) [x, y] = [pu[i], pv[i]];
 			}
-			bump(occupied, key(x, y), 1);
+			occupied.add(x, y);
 			nu[i] = x;
 			nv[i] = y;
 			maxMove = Math.max(maxMove, Math.hypot(x - pu[i], y - pv[i]));
@@ -234,14 +234,38 @@ function sumOf(a: Float64Array): number {
 	return s;
 }
 
-function key(u: number, v: number): string {
-	return `${u},${v}`;
-}
+/** Multiset of exact positions, bucketed by the unit cell they fall in. */
+class Occupancy {
+	private buckets = new Map<number, number[]>();
 
-function bump(counts: Map<string, number>, k: string, by: number): void {
-	const c = (counts.get(k) ?? 0) + by;
-	if (c > 0) counts.set(k, c);
-	else counts.delete(k);
+	private bucket(u: number, v: number): number {
+		return Math.floor(u) * 1_000_003 + Math.floor(v);
+	}
+
+	add(u: number, v: number): void {
+		const k = this.bucket(u, v);
+		const list = this.buckets.get(k);
+		if (list) list.push(u, v);
+		else this.buckets.set(k, [u, v]);
+	}
+
+	remove(u: number, v: number): void {
+		const list = this.buckets.get(this.bucket(u, v));
+		if (!list) return;
+		for (let j = 0; j < list.length; j += 2) {
+			if (list[j] === u && list[j + 1] === v) {
+				list.splice(j, 2);
+				return;
+			}
+		}
+	}
+
+	has(u: number, v: number): boolean {
+		const list = this.buckets.get(this.bucket(u, v));
+		if (!list) return false;
+		for (let j = 0; j < list.length; j += 2) if (list[j] === u && list[j + 1] === v) return true;
+		return false;
+	}
 }
 
 function snapToFeasible(grid: WorkingGrid, nearestFeasible: () => Int32Array, u: number, v: number): [number, number] {
@@ -261,17 +285,17 @@ const GOLDEN_ANGLE = Math.PI * (3 - Math.sqrt(5));
 function separate(
 	grid: WorkingGrid,
 	nearestFeasible: () => Int32Array,
-	occupied: Map<string, number>,
+	occupied: Occupancy,
 	u: number,
 	v: number,
 	i: number
 ): [number, number] {
-	if (!occupied.has(key(u, v))) return [u, v];
+	if (!occupied.has(u, v)) return [u, v];
 	for (let t = 1; t <= 64; t++) {
 		const a = (i + t) * GOLDEN_ANGLE;
 		const r = 0.5 * Math.ceil(t / 8);
 		const [x, y] = snapToFeasible(grid, nearestFeasible, u + r * Math.cos(a), v + r * Math.sin(a));
-		if (!occupied.has(key(x, y))) return [x, y];
+		if (!occupied.has(x, y)) return [x, y];
 	}
 	return [u, v];
 }
