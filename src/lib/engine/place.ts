@@ -16,6 +16,7 @@ import type {
 	ZoneMap,
 	ZoneSummary
 } from './types';
+import { SpacingIndex } from './spacing-index';
 import { validatePlacementInput } from './validate';
 import { crossingGate, zoneBalanceState, zoneOfPoint, zoneTargets } from './zone-balance';
 import type { CrossingGate } from './zone-balance';
@@ -185,6 +186,7 @@ export function place(
 		const occupied = new Occupancy();
 		for (let i = 0; i < n; i++) occupied.add(pu[i], pv[i]);
 		const spacingU = options.minSpacing && options.minSpacing > 0 ? options.minSpacing / cellSize : 0;
+		const spacing = spacingU > 0 ? new SpacingIndex(nu, nv, spacingU) : null;
 		const constrain = (i: number, targetU: number, targetV: number): [number, number] => {
 			let x = targetU;
 			let y = targetV;
@@ -198,7 +200,7 @@ export function place(
 			[x, y] = snapToFeasible(grid, nearestFeasible, x, y);
 			[x, y] = separate(grid, nearestFeasible, occupied, x, y, i);
 			[x, y] = clampTravel(grid, startU[i], startV[i], maxTravelU[i], x, y, pu[i], pv[i]);
-			if (spacingU > 0 && tooClose(nu, nv, i, x, y, spacingU)) return [pu[i], pv[i]];
+			if (spacing && spacing.anyWithin(i, x, y)) return [pu[i], pv[i]];
 			return [x, y];
 		};
 		let maxMove = 0;
@@ -215,6 +217,7 @@ export function place(
 			occupied.add(x, y);
 			nu[i] = x;
 			nv[i] = y;
+			spacing?.move(i, pu[i], pv[i]);
 			maxMove = Math.max(maxMove, Math.hypot(x - pu[i], y - pv[i]));
 		}
 		pu = nu;
@@ -325,17 +328,6 @@ function clampTravel(
 		if (idx >= 0 && grid.feasible[idx]) return [x, y];
 	}
 	return [fallbackU, fallbackV];
-}
-
-function tooClose(pu: Float64Array, pv: Float64Array, i: number, u: number, v: number, spacing: number): boolean {
-	const s2 = spacing * spacing;
-	for (let j = 0; j < pu.length; j++) {
-		if (j === i) continue;
-		const du = pu[j] - u;
-		const dv = pv[j] - v;
-		if (du * du + dv * dv < s2) return true;
-	}
-	return false;
 }
 
 function finish(
