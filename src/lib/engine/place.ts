@@ -109,7 +109,7 @@ export function place(
 	if (!(total > 0)) {
 		// Nothing to serve: no step has a direction. Sensors stay where they are.
 		record({ iteration: 0, cost: 0, coverage: 0 });
-		return finish(grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, sensors, greenfield, options, 0, true, history, 0, 0);
+		return finish({ grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, inputs: sensors, greenfield, options }, 0, true, history);
 	}
 
 	const prefix = rowPrefixSums(mass, width, height);
@@ -226,9 +226,7 @@ export function place(
 		iterations++;
 	}
 	if (tolerance === 0 && iterations >= maxIterations) converged = lastMaxMove === 0;
-	const cost = history[history.length - 1].cost;
-	const coverage = history[history.length - 1].coverage;
-	return finish(grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, sensors, greenfield, options, iterations, converged, history, cost, coverage);
+	return finish({ grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, inputs: sensors, greenfield, options }, iterations, converged, history);
 }
 
 function sumOf(a: Float64Array): number {
@@ -330,28 +328,31 @@ function clampTravel(
 	return [fallbackU, fallbackV];
 }
 
-function finish(
-	grid: WorkingGrid,
-	zones: ZoneMap | null,
-	mass: Float64Array,
-	ids: string[],
-	radii: number[],
-	mobility: Mobility[],
-	pu: Float64Array,
-	pv: Float64Array,
-	startU: Float64Array,
-	startV: Float64Array,
-	inputs: SensorInput[],
-	greenfield: boolean,
-	options: PlacementOptions,
-	iterations: number,
-	converged: boolean,
-	history: HistoryEntry[],
-	cost: number,
-	coverage: number
-): PlacementResult {
+/** Everything finish() needs to describe the final state. */
+interface FinalState {
+	grid: WorkingGrid;
+	zones: ZoneMap | null;
+	/** Normalised mass. */
+	mass: Float64Array;
+	ids: string[];
+	radii: number[];
+	mobility: Mobility[];
+	/** Final and start positions, grid units. */
+	pu: Float64Array;
+	pv: Float64Array;
+	startU: Float64Array;
+	startV: Float64Array;
+	inputs: SensorInput[];
+	greenfield: boolean;
+	options: PlacementOptions;
+}
+
+/** Builds the result: sensors in metres, zone summaries, and the final metrics. */
+function finish(state: FinalState, iterations: number, converged: boolean, history: HistoryEntry[]): PlacementResult {
+	const { grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, inputs, greenfield, options } = state;
 	const { width, height, cellSize } = grid;
 	const n = ids.length;
+	const { cost, coverage } = history[history.length - 1];
 	const placed: PlacedSensor[] = [];
 	for (let i = 0; i < n; i++) {
 		const unchanged = pu[i] === startU[i] && pv[i] === startV[i];
