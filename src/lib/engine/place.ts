@@ -1,8 +1,9 @@
 import { cellMoments, rowScratch } from './cell-moments';
-import type { CellMoments } from './cell-moments';
+import { centroidTargets } from './centroid-step';
+import { clampTravel, Occupancy, separate, snapToFeasible } from './constraints';
 import { weightedDistanceQuantile } from './distance-percentile';
 import { nearestFeasibleCells } from './feasible-snap';
-import { cellIndexAt, toU, toV, toX, toY } from './grid-frame';
+import { toU, toV, toX, toY } from './grid-frame';
 import { rowPrefixSums } from './prefix-sums';
 import { kMeansPlusPlusSeeds } from './seeding';
 import type {
@@ -18,7 +19,7 @@ import type {
 } from './types';
 import { SpacingIndex } from './spacing-index';
 import { validatePlacementInput } from './validate';
-import { crossingGate, zoneBalanceState, zoneOfPoint, zoneTargets } from './zone-balance';
+import { crossingGate, zoneBalancedTargets, zoneOfPoint, zoneTargets } from './zone-balance';
 import type { CrossingGate } from './zone-balance';
 
 /**
@@ -127,9 +128,8 @@ export function place(
 	let iterations = 0;
 	let lastMaxMove = Infinity;
 	let converged = false;
-	let moments: CellMoments;
 	for (;;) {
-		moments = cellMoments(prefix, pu, pv, rho, scratch);
+		const moments = cellMoments(prefix, pu, pv, rho, scratch);
 		record({ iteration: iterations, cost: sumOf(moments.cost) * cellSize * cellSize, coverage: Math.min(1, sumOf(moments.diskMass)) });
 		if (iterations > 0 && (tolerance > 0 ? lastMaxMove <= tolU : false)) {
 			converged = true;
@@ -137,46 +137,18 @@ export function place(
 		}
 		if (iterations >= maxIterations) break;
 
-		// Targets.
-		const tu = pu.slice();
-		const tv = pv.slice();
-		if (options.strategy === 'lloyd') {
-			for (let i = 0; i < n; i++) {
-				if (movable[i] && moments.mass[i] > 0) {
-					tu[i] = moments.su[i] / moments.mass[i];
-					tv[i] = moments.sv[i] / moments.mass[i];
-				}
-			}
-		} else {
-			for (let i = 0; i < n; i++) {
-				if (movable[i] && moments.diskMass[i] > 0) {
-					tu[i] = moments.diskSu[i] / moments.diskMass[i];
-					tv[i] = moments.diskSv[i] / moments.diskMass[i];
-				}
-			}
-		}
-		// Zone-balanced: blend the local step with the pull towards the neediest zone.
-		const localU = tu.slice();
-		const localV = tv.slice();
+		// Targets: the local centroid step, blended with the zone pull for zone-balanced.
+		const local = centroidTargets(moments, movable, pu, pv, options.strategy !== 'lloyd');
+		let tu = local.u;
+		let tv = local.v;
 		let order: number[] = Array.from({ length: n }, (_, i) => i);
 		let gate: CrossingGate | null = null;
 		if (options.strategy === 'zone-balanced' && zones && zoneT) {
 			const deadBand = options.deadBand ?? 1 / (2 * n);
-			const state = zoneBalanceState(zones, zoneT.mass, pu, pv, width, height, deadBand);
-			const k = state.neediest;
-			if (state.pull > 0) {
-				for (let i = 0; i < n; i++) {
-					const j = zoneOfPoint(zones, width, height, pu[i], pv[i]);
-					if (!movable[i] || j < 0) continue;
-					const s = state.sigmaHat[j];
-					if (s <= 0 || j === k) continue;
-					tu[i] = pu[i] + (1 - s) * (tu[i] - pu[i]) + s * (zoneT.u[k] - pu[i]);
-					tv[i] = pv[i] + (1 - s) * (tv[i] - pv[i]) + s * (zoneT.v[k] - pv[i]);
-				}
-				// Sensors nearest to the neediest zone decide first whether they may cross.
-				const d2 = Float64Array.from(pu, (u, i) => (u - zoneT.u[k]) ** 2 + (pv[i] - zoneT.v[k]) ** 2);
-				order = order.sort((a, b) => d2[a] - d2[b] || a - b);
-			}
+			const pulled = zoneBalancedTargets(zones, zoneT, movable, pu, pv, local.u, local.v, width, height, deadBand);
+			tu = pulled.u;
+			tv = pulled.v;
+			order = pulled.order;
 			gate = crossingGate(zones, zoneT.mass, pu, pv, width, height, deadBand);
 		}
 
@@ -211,7 +183,7 @@ export function place(
 			if (gate && !gate.tryCross(pu[i], pv[i], x, y)) {
 				// Crossing refused (it would over-fill or under-fill a zone): take the local step
 				// alone, and stay put if that crosses too.
-				[x, y] = constrain(i, localU[i], localV[i]);
+				[x, y] = constrain(i, local.u[i], local.v[i]);
 				if (!gate.tryCross(pu[i], pv[i], x, y)) [x, y] = [pu[i], pv[i]];
 			}
 			occupied.add(x, y);
@@ -233,99 +205,6 @@ function sumOf(a: Float64Array): number {
 	let s = 0;
 	for (let k = 0; k < a.length; k++) s += a[k];
 	return s;
-}
-
-/** Multiset of exact positions, bucketed by the unit cell they fall in. */
-class Occupancy {
-	private buckets = new Map<number, number[]>();
-
-	private bucket(u: number, v: number): number {
-		return Math.floor(u) * 1_000_003 + Math.floor(v);
-	}
-
-	add(u: number, v: number): void {
-		const k = this.bucket(u, v);
-		const list = this.buckets.get(k);
-		if (list) list.push(u, v);
-		else this.buckets.set(k, [u, v]);
-	}
-
-	remove(u: number, v: number): void {
-		const list = this.buckets.get(this.bucket(u, v));
-		if (!list) return;
-		for (let j = 0; j < list.length; j += 2) {
-			if (list[j] === u && list[j + 1] === v) {
-				list.splice(j, 2);
-				return;
-			}
-		}
-	}
-
-	has(u: number, v: number): boolean {
-		const list = this.buckets.get(this.bucket(u, v));
-		if (!list) return false;
-		for (let j = 0; j < list.length; j += 2) if (list[j] === u && list[j + 1] === v) return true;
-		return false;
-	}
-}
-
-function snapToFeasible(grid: WorkingGrid, nearestFeasible: () => Int32Array, u: number, v: number): [number, number] {
-	const { width, height } = grid;
-	const idx = cellIndexAt(width, height, u, v);
-	if (idx >= 0 && grid.feasible[idx]) return [u, v];
-	const cu = Math.min(width - 1, Math.max(0, Math.floor(u)));
-	const cv = Math.min(height - 1, Math.max(0, Math.floor(v)));
-	const near = nearestFeasible()[cv * width + cu];
-	if (near < 0) return [u, v];
-	return [(near % width) + 0.5, Math.floor(near / width) + 0.5];
-}
-
-const GOLDEN_ANGLE = Math.PI * (3 - Math.sqrt(5));
-
-/** Moves (u, v) off any occupied position by growing golden-angle offsets; deterministic. */
-function separate(
-	grid: WorkingGrid,
-	nearestFeasible: () => Int32Array,
-	occupied: Occupancy,
-	u: number,
-	v: number,
-	i: number
-): [number, number] {
-	if (!occupied.has(u, v)) return [u, v];
-	for (let t = 1; t <= 64; t++) {
-		const a = (i + t) * GOLDEN_ANGLE;
-		const r = 0.5 * Math.ceil(t / 8);
-		const [x, y] = snapToFeasible(grid, nearestFeasible, u + r * Math.cos(a), v + r * Math.sin(a));
-		if (!occupied.has(x, y)) return [x, y];
-	}
-	return [u, v];
-}
-
-function clampTravel(
-	grid: WorkingGrid,
-	su: number,
-	sv: number,
-	limit: number,
-	u: number,
-	v: number,
-	fallbackU: number,
-	fallbackV: number
-): [number, number] {
-	const d = Math.hypot(u - su, v - sv);
-	if (!(d > limit)) return [u, v];
-	const f = limit / d;
-	let x = su + (u - su) * f;
-	let y = sv + (v - sv) * f;
-	// Walk back towards the start in half-cell steps until the point stands in a feasible cell.
-	const steps = Math.ceil(2 * limit) + 1;
-	for (let s = 0; s <= steps; s++) {
-		const g = 1 - s / steps;
-		x = su + (u - su) * f * g;
-		y = sv + (v - sv) * f * g;
-		const idx = cellIndexAt(grid.width, grid.height, x, y);
-		if (idx >= 0 && grid.feasible[idx]) return [x, y];
-	}
-	return [fallbackU, fallbackV];
 }
 
 /** Everything finish() needs to describe the final state. */

@@ -143,3 +143,42 @@ export function crossingGate(
 		}
 	};
 }
+
+/**
+ * The zone-balanced targets: a movable sensor in zone j with σ̂_j > 0 (and j not the
+ * neediest zone k) aims at p + (1 − σ̂_j)·(local − p) + σ̂_j·(t_k − p), where local is its
+ * range-limited centroid and t_k the neediest zone's target (zoneTargets). Everyone else keeps
+ * the local target. `order` lists the sensors nearest to t_k first (then by index): the order
+ * in which place() admits moves, so the nearest sensors cross first.
+ */
+export function zoneBalancedTargets(
+	zones: ZoneMap,
+	targets: { mass: Float64Array; u: Float64Array; v: Float64Array },
+	movable: readonly boolean[],
+	pu: Float64Array,
+	pv: Float64Array,
+	localU: Float64Array,
+	localV: Float64Array,
+	width: number,
+	height: number,
+	deadBand: number
+): { u: Float64Array; v: Float64Array; order: number[] } {
+	const n = pu.length;
+	const u = localU.slice();
+	const v = localV.slice();
+	const order = Array.from({ length: n }, (_, i) => i);
+	const state = zoneBalanceState(zones, targets.mass, pu, pv, width, height, deadBand);
+	if (!(state.pull > 0)) return { u, v, order };
+	const k = state.neediest;
+	for (let i = 0; i < n; i++) {
+		const j = zoneOfPoint(zones, width, height, pu[i], pv[i]);
+		if (!movable[i] || j < 0 || j === k) continue;
+		const s = state.sigmaHat[j];
+		if (s <= 0) continue;
+		u[i] = pu[i] + (1 - s) * (localU[i] - pu[i]) + s * (targets.u[k] - pu[i]);
+		v[i] = pv[i] + (1 - s) * (localV[i] - pv[i]) + s * (targets.v[k] - pv[i]);
+	}
+	const d2 = Float64Array.from(pu, (x, i) => (x - targets.u[k]) ** 2 + (pv[i] - targets.v[k]) ** 2);
+	order.sort((a, b) => d2[a] - d2[b] || a - b);
+	return { u, v, order };
+}
