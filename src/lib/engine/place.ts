@@ -104,7 +104,7 @@ export function place(
 	const history: HistoryEntry[] = [];
 	const record = (entry: HistoryEntry) => {
 		history.push(entry);
-		options.onIteration?.(entry);
+		options.onIteration?.({ ...entry });
 	};
 
 	if (!(total > 0)) {
