@@ -72,6 +72,18 @@ describe('place(…, zone-balanced)', () => {
 		expect(a.cost).toBeCloseTo(b.cost, 6);
 	});
 
+	it('place(…, zone-balanced) moves no sensor farther than maxStep in one update', () => {
+		for (const maxStep of [5, 15, 40]) {
+			const r = place(grid, halves, group(40), { strategy: 'zone-balanced', maxIterations: 1, maxStep });
+			expect(r.iterations).toBe(1);
+			for (const s of r.sensors) expect(s.movedM).toBeLessThanOrEqual(maxStep + 1e-9);
+			expect(Math.max(...r.sensors.map((s) => s.movedM))).toBeGreaterThan(maxStep - 1e-9);
+		}
+		// Default: max(2 cells, R/4) = 20 m here.
+		const d = place(grid, halves, group(40), { strategy: 'zone-balanced', maxIterations: 1 });
+		expect(Math.max(...d.sensors.map((s) => s.movedM))).toBeCloseTo(20, 9);
+	});
+
 	it('place(…, zone-balanced) without zones is an EngineInputError', () => {
 		expect(() => place(grid, null, group(40), { strategy: 'zone-balanced' })).toThrowError(/zone set/);
 	});
