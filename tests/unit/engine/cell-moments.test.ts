@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import { place } from '../../../src/lib/engine';
 import { bruteForceMoments } from '../../../src/lib/engine/brute-force';
 import { cellMoments } from '../../../src/lib/engine/cell-moments';
 import { rowPrefixSums } from '../../../src/lib/engine/prefix-sums';
@@ -61,5 +62,39 @@ describe('cellMoments(prefix, sensors) equals brute-force nearest-sensor integra
 		const m2 = cellMoments(rowPrefixSums(mass2, w2, w2), Float64Array.of(1.5, 4.5, 1.5, 4.5), Float64Array.of(1.5, 1.5, 4.5, 4.5), null);
 		expect(m2.mass.reduce((a, b) => a + b, 0)).toBeCloseTo(1, 12);
 		for (let i = 0; i < 4; i++) expect(m2.mass[i]).toBeCloseTo(9 / 36, 12);
+	});
+});
+
+describe('place(…, maxIterations 0) reports the start state', () => {
+	it('place(random grid, random sensors, maxIterations 0) has brute-force cost (m²) and coverage', () => {
+		const rnd = mulberry32(77);
+		for (let t = 0; t < 10; t++) {
+			const w = 5 + Math.floor(rnd() * 30);
+			const h = 5 + Math.floor(rnd() * 30);
+			const cellSize = 5 + rnd() * 20;
+			const raw = new Float64Array(w * h).map(() => rnd());
+			const total = raw.reduce((a, b) => a + b, 0);
+			const mass = raw.map((m) => m / total);
+			const grid = { crs: 'EPSG:3035', width: w, height: h, x0: 4_000_000, y0: 3_000_000, cellSize, mass, feasible: new Uint8Array(w * h).fill(1) };
+			const n = 1 + Math.floor(rnd() * 8);
+			const sensors = Array.from({ length: n }, (_, i) => ({
+				id: `S${i}`,
+				x: grid.x0 + rnd() * w * cellSize,
+				y: grid.y0 - rnd() * h * cellSize,
+				radius: (1 + rnd() * 6) * cellSize,
+				mobility: 'relocatable' as const
+			}));
+			const r = place(grid, null, sensors, { strategy: 'range-limited', maxIterations: 0 });
+			const pu = Float64Array.from(sensors, (s) => (s.x - grid.x0) / cellSize);
+			const pv = Float64Array.from(sensors, (s) => (grid.y0 - s.y) / cellSize);
+			const rho = Float64Array.from(sensors, (s) => s.radius / cellSize);
+			const b = bruteForceMoments(mass, w, h, pu, pv, rho);
+			const cost = b.cost.reduce((a, c) => a + c, 0) * cellSize * cellSize;
+			const coverage = b.diskMass.reduce((a, c) => a + c, 0);
+			expect(relErr(r.cost, cost)).toBeLessThan(1e-9);
+			expect(Math.abs(r.coverage - coverage)).toBeLessThan(1e-12);
+			expect(r.history).toHaveLength(1);
+			expect(r.iterations).toBe(0);
+		}
 	});
 });
