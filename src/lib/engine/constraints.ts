@@ -1,12 +1,16 @@
 import { cellIndexAt } from './grid-frame';
 import type { WorkingGrid } from './types';
+import { COINCIDENT_DISTANCE } from './voronoi-cells';
 
 /*
  * The constraints place() applies to every target (grid units; see grid-frame.ts):
  * feasibility snapping, separation of coincident sensors, and the travel limit.
  */
 
-/** Multiset of exact positions, bucketed by the unit cell they fall in. */
+/**
+ * Multiset of sensor positions, bucketed by the unit cell they fall in. Lookups treat
+ * positions within COINCIDENT_DISTANCE as the same (the Voronoi diagram does too).
+ */
 export class Occupancy {
 	private buckets = new Map<number, number[]>();
 
@@ -32,10 +36,22 @@ export class Occupancy {
 		}
 	}
 
+	/** True if a stored position lies within COINCIDENT_DISTANCE of (u, v). */
 	has(u: number, v: number): boolean {
-		const list = this.buckets.get(this.bucket(u, v));
-		if (!list) return false;
-		for (let j = 0; j < list.length; j += 2) if (list[j] === u && list[j + 1] === v) return true;
+		const d2 = COINCIDENT_DISTANCE * COINCIDENT_DISTANCE;
+		const bu = Math.floor(u);
+		const bv = Math.floor(v);
+		for (let du = -1; du <= 1; du++) {
+			for (let dv = -1; dv <= 1; dv++) {
+				const list = this.buckets.get((bu + du) * 1_000_003 + (bv + dv));
+				if (!list) continue;
+				for (let j = 0; j < list.length; j += 2) {
+					const eu = list[j] - u;
+					const ev = list[j + 1] - v;
+					if (eu * eu + ev * ev <= d2) return true;
+				}
+			}
+		}
 		return false;
 	}
 }
