@@ -105,7 +105,12 @@ function integrateCell(
 			const h = Math.sqrt(r2 - dv * dv);
 			const d0 = Math.max(c0, firstColumnAtOrAfter(px - h)) | 0;
 			const d1 = Math.min(c1, columnEndAtOrBefore(px + h)) | 0;
-			if (d1 > d0) {
+			if (d0 === c0 && d1 === c1) {
+				// The disk covers the whole span: same sums, no second read.
+				dMass += m;
+				dSu += s1;
+				dSv += v * m;
+			} else if (d1 > d0) {
 				const f0 = (3 * (o + d0)) | 0;
 				const f1 = (3 * (o + d1)) | 0;
 				const dm = sums[f1] - sums[f0];
