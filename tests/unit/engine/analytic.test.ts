@@ -57,25 +57,29 @@ describe('place(uniformSquare, …) against the analytic optimum', () => {
 		expect(r.coverage).toBeCloseTo((Math.PI * 200 * 200 * 4) / (a * a), 1);
 	});
 
-	it('place(uniformSquare, 4 sensors, lloyd, maxIterations 15, tolerance 0) performs exactly 15 updates', () => {
-		const seen: number[] = [];
-		const r = place(grid, null, [], {
-			strategy: 'lloyd',
-			count: 4,
-			radius: 100,
-			seed: 9,
-			maxIterations: 15,
-			tolerance: 0,
-			onIteration: (e) => seen.push(e.iteration)
+	for (const strategy of ['lloyd', 'range-limited'] as const) {
+		it(`place(uniformSquare, 4 sensors, ${strategy}, maxIterations 15, tolerance 0) performs exactly 15 updates`, () => {
+			const seen: number[] = [];
+			const r = place(grid, null, [], {
+				strategy,
+				count: 4,
+				radius: 100,
+				seed: 9,
+				maxIterations: 15,
+				tolerance: 0,
+				onIteration: (e) => seen.push(e.iteration)
+			});
+			expect(r.iterations).toBe(15);
+			expect(r.history.map((h) => h.iteration)).toEqual(Array.from({ length: 16 }, (_, i) => i));
+			expect(seen).toEqual(r.history.map((h) => h.iteration));
+			// Lloyd never increases the cost (range-limited need not: it ignores mass beyond R).
+			if (strategy === 'lloyd') {
+				for (let k = 1; k < r.history.length; k++) expect(r.history[k].cost).toBeLessThanOrEqual(r.history[k - 1].cost + 1e-9);
+			}
 		});
-		expect(r.iterations).toBe(15);
-		expect(r.history.map((h) => h.iteration)).toEqual(Array.from({ length: 16 }, (_, i) => i));
-		expect(seen).toEqual(r.history.map((h) => h.iteration));
-		// Lloyd never increases the cost.
-		for (let k = 1; k < r.history.length; k++) expect(r.history[k].cost).toBeLessThanOrEqual(r.history[k - 1].cost + 1e-9);
-	});
+	}
 
-	it('reports p95DistanceM as the mass-weighted 95th percentile of the nearest-sensor distance', () => {
+	it('place(ramp, 2 sensors) reports p95DistanceM as the mass-weighted 95th percentile of the nearest-sensor distance', () => {
 		const g = gridFrom(30, 20, 10, (u, v) => 1 + u + 0.5 * v);
 		const r = place(g, null, [sensor(g, 'A', 7.2, 5.1, 50), sensor(g, 'B', 21.7, 13.4, 50)], { strategy: 'lloyd', maxIterations: 0 });
 		// Brute force: sort every cell by its distance to the nearer sensor.
