@@ -29,9 +29,9 @@ import type { CrossingGate } from './zone-balance';
  * - range-limited: to the centroid of (Voronoi cell ∩ disk of its radius); no mass → stays.
  * - zone-balanced: (1 − σ̂_j)·(range-limited step) + σ̂_j·(step to the target of the most
  *   under-served zone), bounded by maxStep per iteration; sensors nearest to that zone move
- *   first, and a move into another zone is accepted only while it leaves the source zone's σ
- *   ≥ −deadBand and the destination's σ ≤ deadBand (σ re-counted after each accepted move), so
- *   sensors cross a few at a time instead of as a block; see zone-balance.ts.
+ *   first, and a move into another zone is accepted only if it does not increase Σ|σ_j|
+ *   (σ re-counted after each accepted move), so sensors cross a few at a time instead of as a
+ *   block, and may pass through balanced zones; see zone-balance.ts.
  *
  * Defaults (documented in the engine's API): maxIterations 500; tolerance 0.01 × cellSize
  * (stop once no sensor moved more than that in an iteration); tolerance 0 always runs
@@ -149,7 +149,7 @@ export function place(
 			tu = pulled.u;
 			tv = pulled.v;
 			order = pulled.order;
-			gate = crossingGate(zones, zoneT.mass, pu, pv, width, height, deadBand);
+			gate = crossingGate(zones, zoneT.mass, pu, pv, width, height);
 		}
 
 		// Constraints, sensor by sensor.
@@ -181,7 +181,7 @@ export function place(
 			occupied.remove(pu[i], pv[i]);
 			let [x, y] = constrain(i, tu[i], tv[i]);
 			if (gate && !gate.tryCross(pu[i], pv[i], x, y)) {
-				// Crossing refused (it would over-fill or under-fill a zone): take the local step
+				// Crossing refused (it would add to the zone imbalance): take the local step
 				// alone, and stay put if that crosses too.
 				[x, y] = constrain(i, local.u[i], local.v[i]);
 				if (!gate.tryCross(pu[i], pv[i], x, y)) [x, y] = [pu[i], pv[i]];

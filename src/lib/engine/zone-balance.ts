@@ -109,10 +109,13 @@ export interface CrossingGate {
 }
 
 /**
- * Admits moves between zones one at a time: a move from zone a to zone b (a ≠ b) is accepted
- * only if afterwards σ_a ≥ −deadBand and σ_b ≤ deadBand, counting the moves already accepted
- * in this iteration. Moves within a zone, or from/to outside every zone, are always accepted.
- * This keeps a whole group from crossing a boundary in the same iteration (and oscillating).
+ * Admits moves between zones one at a time, counting the moves already accepted in this
+ * iteration: a move from zone a to zone b (a ≠ b) is accepted only if it does not increase the
+ * total imbalance Σ_j |σ_j|. So a sensor may leave an over-full zone for an under-full one
+ * (imbalance falls by 2/N) or pass through a balanced zone on its way (imbalance unchanged),
+ * but a move that over-fills or under-fills a zone beyond what it repairs is refused. Moves
+ * within a zone, or from/to outside every zone, are always accepted. This keeps a whole group
+ * from crossing a boundary in the same iteration and oscillating.
  */
 export function crossingGate(
 	zones: ZoneMap,
@@ -120,8 +123,7 @@ export function crossingGate(
 	pu: Float64Array,
 	pv: Float64Array,
 	width: number,
-	height: number,
-	deadBand: number
+	height: number
 ): CrossingGate {
 	const n = pu.length;
 	const counts = new Float64Array(zones.ids.length);
@@ -135,8 +137,11 @@ export function crossingGate(
 			const a = zoneOfPoint(zones, width, height, u0, v0);
 			const b = zoneOfPoint(zones, width, height, u1, v1);
 			if (a === b) return true;
-			if (a >= 0 && (counts[a] - 1) / n - zoneMass[a] < -deadBand - eps) return false;
-			if (b >= 0 && (counts[b] + 1) / n - zoneMass[b] > deadBand + eps) return false;
+			const sigma = (z: number, c: number) => c / n - zoneMass[z];
+			let change = 0;
+			if (a >= 0) change += Math.abs(sigma(a, counts[a] - 1)) - Math.abs(sigma(a, counts[a]));
+			if (b >= 0) change += Math.abs(sigma(b, counts[b] + 1)) - Math.abs(sigma(b, counts[b]));
+			if (change > eps) return false;
 			if (a >= 0) counts[a]--;
 			if (b >= 0) counts[b]++;
 			return true;

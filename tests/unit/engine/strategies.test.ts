@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { place, zoneGrid } from '../../../src/lib/engine';
-import type { PlacementResult, SensorInput } from '../../../src/lib/engine';
+import type { PlacementResult, SensorInput, WorkingGrid, ZoneMap } from '../../../src/lib/engine';
 import { gridFrom, sensor } from './grids';
 
 // Method behaviour (facts of the method, common practice, no source): range-limited sensors
@@ -11,6 +11,8 @@ const grid = gridFrom(80, 40, 10, (u) => (u < 40 ? 0.6 : 0.4));
 const halves = zoneGrid(grid, 2, 1); // Z1 = west, Z2 = east
 const westStart = Array.from({ length: 10 }, (_, i) => [14 + (i % 4) * 3.1 + 0.37 * i, 12 + Math.floor(i / 4) * 5.3 + 0.21 * i]);
 const group = (radius: number): SensorInput[] => westStart.map(([u, v], i) => sensor(grid, `S${i + 1}`, u, v, radius));
+const zoneOf = (g: WorkingGrid, zones: ZoneMap, x: number, y: number) =>
+	zones.ids[zones.cellZone[Math.floor((g.y0 - y) / g.cellSize) * g.width + Math.floor((x - g.x0) / g.cellSize)]];
 const eastCount = (r: PlacementResult) => r.sensors.filter((s) => s.x - grid.x0 >= 400).length;
 
 describe('place(…, range-limited)', () => {
@@ -70,6 +72,20 @@ describe('place(…, zone-balanced)', () => {
 			expect(a.sensors[i].y).toBeCloseTo(b.sensors[i].y, 9);
 		}
 		expect(a.cost).toBeCloseTo(b.cost, 6);
+	});
+
+	it('place(3 × 3 zones, 20 sensors in one corner zone, zone-balanced) fills far zones through the middle', () => {
+		// The neediest zones are not adjacent to the start zone: sensors must pass through
+		// balanced zones on the way. Each zone must end within one sensor of N·m_j.
+		const g = gridFrom(120, 90, 10, (u, v) => 0.2 + Math.exp(-((u - 90) ** 2 + (v - 20) ** 2) / 800) + 0.5 * (v / 90));
+		const zones = zoneGrid(g, 3, 3);
+		const start = Array.from({ length: 20 }, (_, i) => sensor(g, `S${i}`, 5 + ((i * 7) % 20), 62 + ((i * 11) % 24), 150));
+		const r = place(g, zones, start, { strategy: 'zone-balanced' });
+		const lloyd = place(g, zones, start, { strategy: 'lloyd' });
+		expect(r.converged).toBe(true);
+		expect(start.filter((s) => zoneOf(g, zones, s.x, s.y) === 'Z7')).toHaveLength(20);
+		for (const z of r.zones) expect(Math.abs(z.sensors - 20 * z.mass)).toBeLessThan(1);
+		expect(r.cost / lloyd.cost).toBeLessThan(1.1);
 	});
 
 	it('place(…, zone-balanced) moves no sensor farther than maxStep in one update', () => {
