@@ -44,13 +44,16 @@ import type { CrossingGate } from './zone-balance';
  * 3. a target outside the raster or in an infeasible cell snaps to the nearest feasible cell
  *    centre (nearest to the centre of the cell the target falls in, or of the raster cell
  *    nearest to it when outside);
- * 4. a target equal to another sensor's position is nudged (deterministic golden-angle
- *    offsets of 0.5, 1, 1.5 … cells) so coincident sensors separate;
+ * 4. a target within 1e-5 cells of another sensor's position (coincident for the Voronoi
+ *    diagram) is nudged by deterministic golden-angle offsets of 0.5, 1, 1.5 … cells, so
+ *    coincident sensors separate;
  * 5. maxTravel: a target farther than maxTravel from the start is pulled back onto the circle
  *    around the start, then towards the start until it is in a feasible cell;
  * 6. minSpacing: moves are rejected, in sensor order (zone-balanced: nearest to the neediest
  *    zone first), when they would bring a sensor within minSpacing of another (the sensor
- *    keeps its position for that iteration).
+ *    keeps its position for that iteration);
+ * 7. zone-balanced: the crossing admission above; a refused move falls back to the local
+ *    step, and to staying put if that crosses too.
  *
  * Mass that does not sum to 1 is normalised (a copy; inputs are never mutated).
  */
