@@ -114,7 +114,7 @@ export interface CrossingGate {
  * total imbalance Σ_j |σ_j|. So a sensor may leave an over-full zone for an under-full one
  * (imbalance falls by 2/N) or pass through a balanced zone on its way (imbalance unchanged),
  * but a move that over-fills or under-fills a zone beyond what it repairs is refused. Moves
- * within a zone, or from/to outside every zone, are always accepted. This keeps a whole group
+ * within a zone, or from/to outside every zone (e.g. out of an exclusion), are always accepted. This keeps a whole group
  * from crossing a boundary in the same iteration and oscillating.
  */
 export function crossingGate(
@@ -137,11 +137,12 @@ export function crossingGate(
 			const a = zoneOfPoint(zones, width, height, u0, v0);
 			const b = zoneOfPoint(zones, width, height, u1, v1);
 			if (a === b) return true;
-			const sigma = (z: number, c: number) => c / n - zoneMass[z];
-			let change = 0;
-			if (a >= 0) change += Math.abs(sigma(a, counts[a] - 1)) - Math.abs(sigma(a, counts[a]));
-			if (b >= 0) change += Math.abs(sigma(b, counts[b] + 1)) - Math.abs(sigma(b, counts[b]));
-			if (change > eps) return false;
+			if (a >= 0 && b >= 0) {
+				const sigma = (z: number, c: number) => c / n - zoneMass[z];
+				const change =
+					Math.abs(sigma(a, counts[a] - 1)) - Math.abs(sigma(a, counts[a])) + Math.abs(sigma(b, counts[b] + 1)) - Math.abs(sigma(b, counts[b]));
+				if (change > eps) return false;
+			}
 			if (a >= 0) counts[a]--;
 			if (b >= 0) counts[b]++;
 			return true;

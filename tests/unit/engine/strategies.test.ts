@@ -88,6 +88,20 @@ describe('place(…, zone-balanced)', () => {
 		expect(r.cost / lloyd.cost).toBeLessThan(1.1);
 	});
 
+	it('place(…, zone-balanced) lets a sensor leave an exclusion that is in no zone', () => {
+		// West strip (columns 0–9) is infeasible and in no zone (-1); the sensor starts there.
+		const g = gridFrom(40, 20, 10, (u) => (u < 10 ? 0 : 1), (u) => u >= 10);
+		const zones = zoneGrid(g, 2, 1);
+		const cellZone = zones.cellZone.map((z, k) => (k % 40 < 10 ? -1 : z));
+		// Z1 (columns 10–19) holds 1/3 of the mass and already has B: entering it adds to the
+		// imbalance, which must not keep A in the exclusion.
+		const sensors = [sensor(g, 'A', 3.2, 9.7, 60), sensor(g, 'B', 15.2, 5.1, 60), sensor(g, 'C', 25.3, 5.4, 60), sensor(g, 'D', 35.1, 14.2, 60)];
+		const r = place(g, { ids: zones.ids, cellZone }, sensors, { strategy: 'zone-balanced' });
+		expect((r.sensors[0].x - g.x0) / g.cellSize).toBeGreaterThanOrEqual(10);
+		expect(r.sensors[0].zone).not.toBeNull();
+		expect(r.converged).toBe(true);
+	});
+
 	it('place(…, zone-balanced) moves no sensor farther than maxStep in one update', () => {
 		for (const maxStep of [5, 15, 40]) {
 			const r = place(grid, halves, group(40), { strategy: 'zone-balanced', maxIterations: 1, maxStep });
