@@ -48,7 +48,8 @@ import type { CrossingGate } from './zone-balance';
  *    diagram) is nudged by deterministic golden-angle offsets of 0.5, 1, 1.5 … cells, so
  *    coincident sensors separate;
  * 5. maxTravel: a target farther than maxTravel from the start is pulled back onto the circle
- *    around the start, then towards the start until it is in a feasible cell;
+ *    around the start, then towards the start until it is in a feasible cell (a sensor that
+ *    starts in an infeasible cell with none within maxTravel stays where it is);
  * 6. minSpacing: moves are rejected, in sensor order (zone-balanced: nearest to the neediest
  *    zone first), when they would bring a sensor within minSpacing of another (the sensor
  *    keeps its position for that iteration);
