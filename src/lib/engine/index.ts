@@ -1,0 +1,3 @@
+export { place } from './place';
+export { EngineInputError } from './errors';
+export * from './types';
