@@ -60,7 +60,7 @@ export function cellMoments(
 
 function integrateCell(
 	prefix: RowPrefixSums,
-	ring: number[][],
+	ring: ArrayLike<number>,
 	i: number,
 	px: number,
 	py: number,
@@ -68,7 +68,7 @@ function integrateCell(
 	scratch: RowScratch,
 	out: CellMoments
 ): void {
-	const { width, m0, m1, m2 } = prefix;
+	const { width, sums } = prefix;
 	const stride = width + 1;
 	const { lo, hi } = scratch;
 	const { rowStart, rowEnd } = polygonRowSpans(ring, prefix.height, lo, hi);
@@ -84,14 +84,17 @@ function integrateCell(
 		const left = lo[r];
 		const right = hi[r];
 		if (!(right > left)) continue;
-		const c0 = Math.max(0, firstColumnAtOrAfter(left));
-		const c1 = Math.min(width, columnEndBefore(right));
+		// `| 0` keeps the indices small integers (typed-array reads with double indices are slow).
+		const c0 = Math.max(0, firstColumnAtOrAfter(left)) | 0;
+		const c1 = Math.min(width, columnEndBefore(right)) | 0;
 		if (c1 <= c0) continue;
-		const o = r * stride;
-		const m = m0[o + c1] - m0[o + c0];
+		const o = (r * stride) | 0;
+		const e0 = (3 * (o + c0)) | 0;
+		const e1 = (3 * (o + c1)) | 0;
+		const m = sums[e1] - sums[e0];
 		if (m === 0) continue;
-		const s1 = m1[o + c1] - m1[o + c0];
-		const s2 = m2[o + c1] - m2[o + c0];
+		const s1 = sums[e1 + 1] - sums[e0 + 1];
+		const s2 = sums[e1 + 2] - sums[e0 + 2];
 		const v = r + 0.5;
 		const dv = v - py;
 		mass += m;
@@ -100,12 +103,14 @@ function integrateCell(
 		cost += s2 - 2 * px * s1 + px * px * m + m * dv * dv;
 		if (radius > 0 && dv * dv <= r2) {
 			const h = Math.sqrt(r2 - dv * dv);
-			const d0 = Math.max(c0, firstColumnAtOrAfter(px - h));
-			const d1 = Math.min(c1, columnEndAtOrBefore(px + h));
+			const d0 = Math.max(c0, firstColumnAtOrAfter(px - h)) | 0;
+			const d1 = Math.min(c1, columnEndAtOrBefore(px + h)) | 0;
 			if (d1 > d0) {
-				const dm = m0[o + d1] - m0[o + d0];
+				const f0 = (3 * (o + d0)) | 0;
+				const f1 = (3 * (o + d1)) | 0;
+				const dm = sums[f1] - sums[f0];
 				dMass += dm;
-				dSu += m1[o + d1] - m1[o + d0];
+				dSu += sums[f1 + 1] - sums[f0 + 1];
 				dSv += v * dm;
 			}
 		}

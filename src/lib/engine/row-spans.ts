@@ -1,5 +1,6 @@
 /**
- * Row-by-row extent of a convex polygon (grid units, rows centred at v = r + 0.5).
+ * Row-by-row extent of a convex polygon (grid units, rows centred at v = r + 0.5), given as a
+ * flat open ring [u0, v0, u1, v1, ...].
  *
  * For each row r whose centre crosses the polygon, fills lo[r] and hi[r] with the polygon's
  * x-interval at v = r + 0.5, and returns the half-open row range [rowStart, rowEnd).
@@ -9,16 +10,16 @@
  * Cells are then taken as centres in [lo, hi): a centre on a shared edge is counted once.
  */
 export function polygonRowSpans(
-	ring: number[][],
+	ring: ArrayLike<number>,
 	height: number,
 	lo: Float64Array,
 	hi: Float64Array
 ): { rowStart: number; rowEnd: number } {
 	let vMin = Infinity;
 	let vMax = -Infinity;
-	const nv = ring.length - 1; // closed ring: last vertex repeats the first
+	const nv = ring.length >> 1;
 	for (let k = 0; k < nv; k++) {
-		const v = ring[k][1];
+		const v = ring[2 * k + 1];
 		if (v < vMin) vMin = v;
 		if (v > vMax) vMax = v;
 	}
@@ -30,10 +31,11 @@ export function polygonRowSpans(
 		hi[r] = -Infinity;
 	}
 	for (let k = 0; k < nv; k++) {
-		let pu = ring[k][0];
-		let pv = ring[k][1];
-		let qu = ring[k + 1][0];
-		let qv = ring[k + 1][1];
+		const k2 = k + 1 === nv ? 0 : 2 * (k + 1);
+		let pu = ring[2 * k];
+		let pv = ring[2 * k + 1];
+		let qu = ring[k2];
+		let qv = ring[k2 + 1];
 		if (pv === qv) continue; // horizontal edge: its row (if any) is covered by the neighbours
 		if (pv > qv) {
 			const tu = pu;

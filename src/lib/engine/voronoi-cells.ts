@@ -2,7 +2,8 @@ import { Delaunay } from 'd3-delaunay';
 
 /**
  * Voronoi cells of the sensors, clipped to the raster [0, width] x [0, height] (grid units).
- * Each cell is a closed convex ring (first vertex repeated last), or null when the sensor
+ * Each cell is a convex ring as a flat open list [u0, v0, u1, v1, ...] (the last vertex is not
+ * a repeat of the first; consecutive duplicates may occur), or null when the sensor
  * owns no part of the raster (it stands outside it, behind others) or coincides with an
  * earlier sensor (the first of coincident sensors owns the cell, as d3-delaunay does).
  *
@@ -17,7 +18,7 @@ export function voronoiCells(
 	pv: Float64Array,
 	width: number,
 	height: number
-): (number[][] | null)[] {
+): (number[] | null)[] {
 	const n = pu.length;
 	if (n === 0) return [];
 	const line = collinearLine(pu, pv);
@@ -35,10 +36,20 @@ export function voronoiCells(
 		return stripCells(pu, pv, width, height, extremeLine(pu, pv));
 	}
 	const voronoi = delaunay.voronoi([0, 0, width, height]);
-	const cells: (number[][] | null)[] = new Array(n);
+	// d3-delaunay 6.0.6 (pinned) computes each clipped cell as a flat array in _clip(i), which
+	// cellPolygon(i) then copies into [x, y] pairs; reading the flat array directly saves that
+	// allocation per cell and iteration. Falls back to cellPolygon if the method is absent.
+	const clip = (voronoi as unknown as { _clip?: (i: number) => number[] | null })._clip;
+	const cells: (number[] | null)[] = new Array(n);
 	for (let i = 0; i < n; i++) {
-		const ring = voronoi.cellPolygon(i);
-		cells[i] = ring && ring.length >= 4 ? (ring as number[][]) : null;
+		let ring: number[] | null;
+		if (typeof clip === 'function') {
+			ring = clip.call(voronoi, i);
+		} else {
+			const poly = voronoi.cellPolygon(i);
+			ring = poly ? poly.flat() : null;
+		}
+		cells[i] = ring && ring.length >= 6 ? ring : null;
 	}
 	return cells;
 }
@@ -89,12 +100,12 @@ function stripCells(
 	width: number,
 	height: number,
 	line: Line
-): (number[][] | null)[] {
+): (number[] | null)[] {
 	const n = pu.length;
 	const t = new Float64Array(n);
 	for (let i = 0; i < n; i++) t[i] = (pu[i] - line.au) * line.du + (pv[i] - line.av) * line.dv;
 	const order = Array.from({ length: n }, (_, i) => i).sort((a, b) => t[a] - t[b] || a - b);
-	const cells: (number[][] | null)[] = new Array(n).fill(null);
+	const cells: (number[] | null)[] = new Array(n).fill(null);
 	// Group coincident sensors: the first index of a group owns the strip.
 	const owners: number[] = [];
 	for (const i of order) {
@@ -116,7 +127,7 @@ function stripCells(
 		let poly: number[][] = box;
 		if (k > 0) poly = clipCloserTo(poly, pu[i], pv[i], pu[owners[k - 1]], pv[owners[k - 1]]);
 		if (k < owners.length - 1) poly = clipCloserTo(poly, pu[i], pv[i], pu[owners[k + 1]], pv[owners[k + 1]]);
-		if (poly.length >= 3) cells[i] = [...poly, poly[0]];
+		if (poly.length >= 3) cells[i] = poly.flat();
 	}
 	return cells;
 }
