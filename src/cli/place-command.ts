@@ -17,6 +17,8 @@ import { CliError, type PlaceArgs } from './args';
 async function readBytes(file: string): Promise<ArrayBuffer> {
 	try {
 		const buf = await readFile(file);
+		// Large files get their own ArrayBuffer: use it as is; small ones share Node's pool, so copy.
+		if (buf.byteOffset === 0 && buf.byteLength === buf.buffer.byteLength) return buf.buffer as ArrayBuffer;
 		return buf.buffer.slice(buf.byteOffset, buf.byteOffset + buf.byteLength) as ArrayBuffer;
 	} catch (e) {
 		const code = (e as NodeJS.ErrnoException).code;
