@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import proj4 from 'proj4';
+import { geodesicDistance } from '../../../src/lib/geo/geodesic';
 import {
 	chooseWorkingCrs,
 	CrsError,
@@ -166,6 +167,21 @@ describe('choosing the working CRS', () => {
 	it('keeps a projected raster CRS', () => {
 		expect(chooseWorkingCrs(3035, [16, 48])).toBe(3035);
 		expect(chooseWorkingCrs(32633, [16, 48])).toBe(32633);
+	});
+	it('does not keep Web Mercator or EASE-Grid 2.0: their metres are not ground metres', () => {
+		expect(chooseWorkingCrs(3857, [16, 48])).toBe(32633);
+		expect(chooseWorkingCrs(6933, [16, 48])).toBe(32633);
+		expect(chooseWorkingCrs(6933, [16, 48], 'EPSG:6933')).toBe(6933); // an explicit choice is honoured
+		// Why: east-west scale of a 1 km step at 48°N, measured against GeographicLib. Web Mercator's
+		// scale is 1/cos φ ≈ 1.49; cylindrical equal-area with standard parallel 30° has k = cos 30°/cos φ
+		// ≈ 1.29 on the sphere (Snyder 1987, ch. 10) — both far from UTM's 0.9996–1.0004 band.
+		for (const [epsg, k] of [[3857, 1 / Math.cos((48 * Math.PI) / 180)], [6933, Math.cos(Math.PI / 6) / Math.cos((48 * Math.PI) / 180)]]) {
+			const t = transformer(4326, epsg).forward;
+			const a = t(16, 48);
+			const b = t(16.0134, 48);
+			const ratio = Math.hypot(b[0] - a[0], b[1] - a[1]) / geodesicDistance(16, 48, 16.0134, 48);
+			expect(Math.abs(ratio - k) / k).toBeLessThan(0.01);
+		}
 	});
 	it('uses the UTM zone of the centre for a geographic raster', () => {
 		expect(chooseWorkingCrs(4326, [16, 48])).toBe(32633);

@@ -175,3 +175,18 @@ describe('buildWorkingGrid from WGS 84 into UTM', () => {
 		expect(() => buildWorkingGrid(raster, { studyArea: far })).toThrow(/does not overlap/);
 	});
 });
+
+describe('buildWorkingGrid from EASE-Grid 2.0 (a SMAP-like 9 km raster)', () => {
+	it('goes to UTM, and an equal-area pixel keeps its ground area: cell ≈ 9008 m', () => {
+		// EASE2 9 km cell: 9008.05521 m (NSIDC EASE2_M09km grid definition) [S: seen in stored public copies].
+		// EPSG:6933 is equal-area, so sqrt(pixel area) is the ground size; UTM's k² changes it < 0.1 %.
+		const size = 9008.05521;
+		const [x0, y0] = transformer(4326, 6933).forward(15.5, 48.5);
+		const raster = band({ width: 12, height: 8, data: new Float32Array(96).fill(0.3), epsg: 6933, transform: [x0, size, 0, y0, 0, -size] });
+		const res = buildWorkingGrid(raster);
+		expect(res.epsg).toBe(32633);
+		expect(Math.abs(res.grid.cellSize - size) / size).toBeLessThan(0.002);
+		expect(res.controlError).toBeLessThan(0.05);
+	});
+});
+
