@@ -17,7 +17,8 @@ import type {
 	ZoneSummary
 } from './types';
 import { validatePlacementInput } from './validate';
-import { zoneBalanceState, zoneOfPoint, zoneTargets } from './zone-balance';
+import { crossingGate, zoneBalanceState, zoneOfPoint, zoneTargets } from './zone-balance';
+import type { CrossingGate } from './zone-balance';
 
 /**
  * Runs one placement: Lloyd's algorithm on the discrete importance map, in one of three forms.
@@ -25,7 +26,10 @@ import { zoneBalanceState, zoneOfPoint, zoneTargets } from './zone-balance';
  * - lloyd: each movable sensor steps to the mass centroid of its whole Voronoi cell.
  * - range-limited: to the centroid of (Voronoi cell ∩ disk of its radius); no mass → stays.
  * - zone-balanced: (1 − σ̂_j)·(range-limited step) + σ̂_j·(step to the target of the most
- *   under-served zone), bounded by maxStep per iteration; see zone-balance.ts.
+ *   under-served zone), bounded by maxStep per iteration; sensors nearest to that zone move
+ *   first, and a move into another zone is accepted only while it leaves the source zone's σ
+ *   ≥ −deadBand and the destination's σ ≤ deadBand (σ re-counted after each accepted move), so
+ *   sensors cross a few at a time instead of as a block; see zone-balance.ts.
  *
  * Defaults (documented in the engine's API): maxIterations 500; tolerance 0.01 × cellSize
  * (stop once no sensor moved more than that in an iteration); tolerance 0 always runs
@@ -42,8 +46,9 @@ import { zoneBalanceState, zoneOfPoint, zoneTargets } from './zone-balance';
  *    offsets of 0.5, 1, 1.5 … cells) so coincident sensors separate;
  * 5. maxTravel: a target farther than maxTravel from the start is pulled back onto the circle
  *    around the start, then towards the start until it is in a feasible cell;
- * 6. minSpacing: moves are rejected, in sensor order, when they would bring a sensor within
- *    minSpacing of another (the sensor keeps its position for that iteration).
+ * 6. minSpacing: moves are rejected, in sensor order (zone-balanced: nearest to the neediest
+ *    zone first), when they would bring a sensor within minSpacing of another (the sensor
+ *    keeps its position for that iteration).
  *
  * Mass that does not sum to 1 is normalised (a copy; inputs are never mutated).
  */
@@ -148,32 +153,41 @@ export function place(
 					tv[i] = moments.diskSv[i] / moments.diskMass[i];
 				}
 			}
-			if (options.strategy === 'zone-balanced' && zones && zoneT) {
-				const state = zoneBalanceState(zones, zoneT.mass, pu, pv, width, height, options.deadBand ?? 1 / (2 * n));
-				if (state.pull > 0) {
-					const k = state.neediest;
-					for (let i = 0; i < n; i++) {
-						const j = zoneOfPoint(zones, width, height, pu[i], pv[i]);
-						if (!movable[i] || j < 0) continue;
-						const s = state.sigmaHat[j];
-						if (s <= 0 || j === k) continue;
-						tu[i] = pu[i] + (1 - s) * (tu[i] - pu[i]) + s * (zoneT.u[k] - pu[i]);
-						tv[i] = pv[i] + (1 - s) * (tv[i] - pv[i]) + s * (zoneT.v[k] - pv[i]);
-					}
+		}
+		// Zone-balanced: blend the local step with the pull towards the neediest zone.
+		const localU = tu.slice();
+		const localV = tv.slice();
+		let order: number[] = Array.from({ length: n }, (_, i) => i);
+		let gate: CrossingGate | null = null;
+		if (options.strategy === 'zone-balanced' && zones && zoneT) {
+			const deadBand = options.deadBand ?? 1 / (2 * n);
+			const state = zoneBalanceState(zones, zoneT.mass, pu, pv, width, height, deadBand);
+			const k = state.neediest;
+			if (state.pull > 0) {
+				for (let i = 0; i < n; i++) {
+					const j = zoneOfPoint(zones, width, height, pu[i], pv[i]);
+					if (!movable[i] || j < 0) continue;
+					const s = state.sigmaHat[j];
+					if (s <= 0 || j === k) continue;
+					tu[i] = pu[i] + (1 - s) * (tu[i] - pu[i]) + s * (zoneT.u[k] - pu[i]);
+					tv[i] = pv[i] + (1 - s) * (tv[i] - pv[i]) + s * (zoneT.v[k] - pv[i]);
 				}
+				// Sensors nearest to the neediest zone decide first whether they may cross.
+				const d2 = Float64Array.from(pu, (u, i) => (u - zoneT.u[k]) ** 2 + (pv[i] - zoneT.v[k]) ** 2);
+				order = order.sort((a, b) => d2[a] - d2[b] || a - b);
 			}
+			gate = crossingGate(zones, zoneT.mass, pu, pv, width, height, deadBand);
 		}
 
-		// Constraints, sensor by sensor in order.
+		// Constraints, sensor by sensor.
 		const nu = pu.slice();
 		const nv = pv.slice();
 		const occupied = new Map<string, number>();
 		for (let i = 0; i < n; i++) bump(occupied, key(pu[i], pv[i]), 1);
-		let maxMove = 0;
-		for (let i = 0; i < n; i++) {
-			if (!movable[i]) continue;
-			let x = tu[i];
-			let y = tv[i];
+		const spacingU = options.minSpacing && options.minSpacing > 0 ? options.minSpacing / cellSize : 0;
+		const constrain = (i: number, targetU: number, targetV: number): [number, number] => {
+			let x = targetU;
+			let y = targetV;
 			const du = x - pu[i];
 			const dv = y - pv[i];
 			const step = Math.hypot(du, dv);
@@ -182,12 +196,21 @@ export function place(
 				y = pv[i] + (dv * maxStepU) / step;
 			}
 			[x, y] = snapToFeasible(grid, nearestFeasible, x, y);
-			bump(occupied, key(pu[i], pv[i]), -1);
 			[x, y] = separate(grid, nearestFeasible, occupied, x, y, i);
 			[x, y] = clampTravel(grid, startU[i], startV[i], maxTravelU[i], x, y, pu[i], pv[i]);
-			if (options.minSpacing && options.minSpacing > 0 && tooClose(nu, nv, i, x, y, options.minSpacing / cellSize)) {
-				x = pu[i];
-				y = pv[i];
+			if (spacingU > 0 && tooClose(nu, nv, i, x, y, spacingU)) return [pu[i], pv[i]];
+			return [x, y];
+		};
+		let maxMove = 0;
+		for (const i of order) {
+			if (!movable[i]) continue;
+			bump(occupied, key(pu[i], pv[i]), -1);
+			let [x, y] = constrain(i, tu[i], tv[i]);
+			if (gate && !gate.tryCross(pu[i], pv[i], x, y)) {
+				// Crossing refused (it would over-fill or under-fill a zone): take the local step
+				// alone, and stay put if that crosses too.
+				[x, y] = constrain(i, localU[i], localV[i]);
+				if (!gate.tryCross(pu[i], pv[i], x, y)) [x, y] = [pu[i], pv[i]];
 			}
 			bump(occupied, key(x, y), 1);
 			nu[i] = x;

@@ -101,3 +101,45 @@ export function zoneBalanceState(
 	if (!(Math.abs(sigma[neediest]) >= deadBand)) pull = 0;
 	return { sigma, sigmaHat, neediest, pull };
 }
+
+/** Admission of zone crossings within one iteration; see crossingGate. */
+export interface CrossingGate {
+	/** True (and the counts updated) if a sensor may move from (u0, v0) to (u1, v1). */
+	tryCross(u0: number, v0: number, u1: number, v1: number): boolean;
+}
+
+/**
+ * Admits moves between zones one at a time: a move from zone a to zone b (a ≠ b) is accepted
+ * only if afterwards σ_a ≥ −deadBand and σ_b ≤ deadBand, counting the moves already accepted
+ * in this iteration. Moves within a zone, or from/to outside every zone, are always accepted.
+ * This keeps a whole group from crossing a boundary in the same iteration (and oscillating).
+ */
+export function crossingGate(
+	zones: ZoneMap,
+	zoneMass: Float64Array,
+	pu: Float64Array,
+	pv: Float64Array,
+	width: number,
+	height: number,
+	deadBand: number
+): CrossingGate {
+	const n = pu.length;
+	const counts = new Float64Array(zones.ids.length);
+	for (let i = 0; i < n; i++) {
+		const z = zoneOfPoint(zones, width, height, pu[i], pv[i]);
+		if (z >= 0) counts[z]++;
+	}
+	const eps = 1e-12;
+	return {
+		tryCross(u0, v0, u1, v1) {
+			const a = zoneOfPoint(zones, width, height, u0, v0);
+			const b = zoneOfPoint(zones, width, height, u1, v1);
+			if (a === b) return true;
+			if (a >= 0 && (counts[a] - 1) / n - zoneMass[a] < -deadBand - eps) return false;
+			if (b >= 0 && (counts[b] + 1) / n - zoneMass[b] > deadBand + eps) return false;
+			if (a >= 0) counts[a]--;
+			if (b >= 0) counts[b]++;
+			return true;
+		}
+	};
+}
