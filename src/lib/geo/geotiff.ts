@@ -247,6 +247,16 @@ export async function readGeoTiff(buffer: ArrayBuffer, opts: ReadGeoTiffOptions 
 	return { width, height, data, nodata, epsg, transform, bandCount, band: bandNo, sampleFormat, bitsPerSample, compression, tiled };
 }
 
+/**
+ * The nodata value as it is stored in the band's array: for Float32 data the GDAL_NODATA text is
+ * rounded to single precision ("9999.99" is stored as 9999.990234375), so compare with this.
+ * NaN nodata never compares equal: test NaN separately.
+ */
+export function storedNodata(band: Pick<RasterBand, 'nodata' | 'data'>): number | null {
+	if (band.nodata === null) return null;
+	return band.data instanceof Float32Array ? Math.fround(band.nodata) : band.nodata;
+}
+
 /** Map a pixel-corner position (col, row) to CRS coordinates. */
 export function pixelToCrs(t: GeoTransform, col: number, row: number): [number, number] {
 	return [t[0] + t[1] * col + t[2] * row, t[3] + t[4] * col + t[5] * row];

@@ -10,7 +10,7 @@
 import type { WorkingGrid } from '../engine/types';
 import { rasterizeRings, type GridGeometry, type Ring } from '../engine/rasterize';
 import { chooseWorkingCrs, crsLabel, transformer, type PointTransform } from './crs';
-import { crsToPixel, pixelToCrs, type RasterBand } from './geotiff';
+import { crsToPixel, pixelToCrs, storedNodata, type RasterBand } from './geotiff';
 import { projectRings } from './geojson';
 
 export class WorkingGridError extends Error {
@@ -231,7 +231,7 @@ export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = 
 	const feasible = new Uint8Array(n);
 	const { data } = raster;
 	// A Float32 band stores nodata rounded to single precision ("-3.4e+38" is not a float32 value).
-	const nodata = raster.nodata !== null && data instanceof Float32Array ? Math.fround(raster.nodata) : raster.nodata;
+	const nodata = storedNodata(raster);
 	const W = raster.width;
 	const H = raster.height;
 	const px = new Float64Array(width);

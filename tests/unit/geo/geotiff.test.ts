@@ -3,7 +3,7 @@ import { deflateSync } from 'node:zlib';
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { writeArrayBuffer } from 'geotiff';
-import { readGeoTiff, RasterError, pixelToCrs, crsToPixel } from '../../../src/lib/geo/geotiff';
+import { readGeoTiff, RasterError, pixelToCrs, crsToPixel, storedNodata } from '../../../src/lib/geo/geotiff';
 import { encodeTiff, type TiffWriteOptions } from '../../../src/lib/geo/tiff-writer';
 
 // GeoKey ids from the GeoTIFF 1.0 specification, section 6.2 (GTModelType 1024, GTRasterType 1025,
@@ -178,6 +178,15 @@ describe('readGeoTiff on layouts written by the independent encoder', () => {
 		expect((await readGeoTiff(encodeTiff(baseOpts({ nodata: 'nan' })))).nodata).toBeNaN();
 		expect((await readGeoTiff(encodeTiff(baseOpts({ nodata: '-3.4e+38' })))).nodata).toBe(-3.4e38);
 		expect((await readGeoTiff(encodeTiff(baseOpts({})))).nodata).toBeNull();
+	});
+
+	it('storedNodata rounds a Float32 band\'s nodata to single precision, not a Float64 one', async () => {
+		const f32 = await readGeoTiff(encodeTiff(baseOpts({ nodata: '9999.99' })));
+		expect(f32.nodata).toBe(9999.99);
+		expect(storedNodata(f32)).toBe(Math.fround(9999.99));
+		const f64 = await readGeoTiff(encodeTiff(baseOpts({ nodata: '9999.99', bitsPerSample: 64 })));
+		expect(storedNodata(f64)).toBe(9999.99);
+		expect(storedNodata({ nodata: null, data: new Float32Array(1) })).toBeNull();
 	});
 
 	it('reads the geographic CRS key when no projected key exists', async () => {
