@@ -1,7 +1,8 @@
 /**
  * Visiting order for a field crew: nearest-neighbour construction, then 2-opt and Or-opt
- * (moving runs of 1–3 sites elsewhere, either way round) until neither shortens the route. Planar lengths (working-CRS metres) by default; any symmetric
- * distance may be supplied (e.g. for published test instances).
+ * (moving runs of 1–3 sites elsewhere, either way round) until neither shortens the route.
+ * Planar lengths (working-CRS metres) by default; any symmetric distance may be supplied (e.g. for
+ * published test instances). Cost: an n × n distance matrix and O(n²) per improvement pass.
  */
 
 export type Point = readonly [number, number];
@@ -21,11 +22,13 @@ export interface Route {
 	length: number;
 }
 
+const MAX_STARTS = 32;
+
 const euclid: Distance = (a, b) => Math.hypot(a[0] - b[0], a[1] - b[1]);
 
 /**
- * Order in which to visit `points` starting from `start` (the depot or the crew's position; when
- * null the route starts at points[0]).
+ * Order in which to visit `points` starting from `start` (the depot or the crew's position); when
+ * start is null the route may begin at any point and the best of several first points is kept.
  */
 export function routeOrder(start: Point | null, points: readonly Point[], opts: RouteOptions = {}): Route {
 	const dist = opts.distance ?? euclid;
@@ -45,35 +48,28 @@ export function routeOrder(start: Point | null, points: readonly Point[], opts: 
 			d[j * n + i] = v;
 		}
 
-	// Nearest neighbour from node 0 (ties: lowest index, so the result is deterministic).
-	const tour = new Int32Array(n);
-	const used = new Uint8Array(n);
-	used[0] = 1;
-	for (let k = 1; k < n; k++) {
-		const last = tour[k - 1];
-		let best = -1;
-		let bestD = Infinity;
-		for (let j = 0; j < n; j++) {
-			if (!used[j] && d[last * n + j] < bestD) {
-				bestD = d[last * n + j];
-				best = j;
-			}
-		}
-		tour[k] = best;
-		used[best] = 1;
-	}
-
-	const eps = 1e-9;
 	const D = (a: number, b: number) => d[a * n + b];
-	let improved = true;
-	while (improved) {
-		improved = twoOpt(tour, n, closed, D, eps);
-		if (orOpt(tour, n, closed, D, eps)) improved = true;
+	const lengthOf = (tour: Int32Array) => {
+		let total = 0;
+		for (let k = 1; k < n; k++) total += D(tour[k - 1], tour[k]);
+		if (closed && n > 1) total += D(tour[n - 1], tour[0]);
+		return total;
+	};
+	// With a given start, one construction from it; without, the best of several first sites
+	// (all of them up to MAX_STARTS, else MAX_STARTS spread evenly), since any may come first.
+	const firsts = start ? [0] : n <= MAX_STARTS ? Array.from({ length: n }, (_, i) => i) : Array.from({ length: MAX_STARTS }, (_, i) => Math.floor((i * n) / MAX_STARTS));
+	let tour = improvedTour(firsts[0], n, closed, D);
+	let best = lengthOf(tour);
+	for (let k = 1; k < firsts.length; k++) {
+		const t = improvedTour(firsts[k], n, closed, D);
+		const len = lengthOf(t);
+		if (len < best - 1e-9) {
+			tour = t;
+			best = len;
+		}
 	}
 
-	let length = 0;
-	for (let k = 1; k < n; k++) length += d[tour[k - 1] * n + tour[k]];
-	if (closed && n > 1) length += d[tour[n - 1] * n + tour[0]];
+	const length = best;
 	const order = Array.from(tour)
 		.filter((v) => v >= offset)
 		.map((v) => v - offset);
@@ -88,6 +84,34 @@ export function routeLength(start: Point | null, points: readonly Point[], order
 	for (let k = 1; k < seq.length; k++) total += dist(seq[k - 1], seq[k]);
 	if (opts.closed && seq.length > 1) total += dist(seq[seq.length - 1], seq[0]);
 	return total;
+}
+
+/** Nearest neighbour from `first` (ties: lowest index), then 2-opt and Or-opt to a local optimum. */
+function improvedTour(first: number, n: number, closed: boolean, D: (a: number, b: number) => number): Int32Array {
+	const tour = new Int32Array(n);
+	const used = new Uint8Array(n);
+	tour[0] = first;
+	used[first] = 1;
+	for (let k = 1; k < n; k++) {
+		const last = tour[k - 1];
+		let next = -1;
+		let nextD = Infinity;
+		for (let j = 0; j < n; j++) {
+			if (!used[j] && D(last, j) < nextD) {
+				nextD = D(last, j);
+				next = j;
+			}
+		}
+		tour[k] = next;
+		used[next] = 1;
+	}
+	const eps = 1e-9;
+	let improved = true;
+	while (improved) {
+		improved = twoOpt(tour, n, closed, D, eps);
+		if (orOpt(tour, n, closed, D, eps)) improved = true;
+	}
+	return tour;
 }
 
 /** 2-opt passes (reverse tour[i..j]) until none helps; node 0 stays first. True if anything changed. */
