@@ -55,9 +55,11 @@ export function routeOrder(start: Point | null, points: readonly Point[], opts: 
 		if (closed && n > 1) total += D(tour[n - 1], tour[0]);
 		return total;
 	};
-	// With a given start, one construction from it; without, the best of several first sites
-	// (all of them up to MAX_STARTS, else MAX_STARTS spread evenly), since any may come first.
-	const firsts = start ? [0] : n <= MAX_STARTS ? Array.from({ length: n }, (_, i) => i) : Array.from({ length: MAX_STARTS }, (_, i) => Math.floor((i * n) / MAX_STARTS));
+	// With a given start, one construction from it; without, the best of several first sites spread
+	// evenly, since any may come first: up to MAX_STARTS, fewer for large n (one improvement run
+	// costs about n³ steps, so the number of runs is capped to keep the total near 1e8).
+	const starts = start ? 1 : Math.max(1, Math.min(MAX_STARTS, n, Math.floor(1e8 / (n * n * n))));
+	const firsts = Array.from({ length: starts }, (_, i) => Math.floor((i * n) / starts));
 	let tour = improvedTour(firsts[0], n, closed, D);
 	let best = lengthOf(tour);
 	for (let k = 1; k < firsts.length; k++) {
