@@ -3,13 +3,14 @@
  * density (two Gaussian bumps on a gentle slope), for N = 16 … 1024 sensors, and one
  * brute-force (cells × sensors) iteration at N = 256 for comparison.
  * An iteration here = the prefix-sum Voronoi integration (cellMoments) plus the centroid
- * step, which is what place() does per iteration. Figures: see the report in the engine's
- * commit history; printed, never asserted.
+ * step, which is what place() does per iteration; then the whole of place() once.
+ * Printed, never asserted. `npx tsx src/bench/run.ts lloyd` (`--quick`: 5 repetitions).
  */
 import { bruteForceMoments } from '../lib/engine/brute-force';
 import { cellMoments, rowScratch } from '../lib/engine/cell-moments';
 import { rowPrefixSums } from '../lib/engine/prefix-sums';
 import { kMeansPlusPlusSeeds } from '../lib/engine/seeding';
+import { place } from '../lib/engine';
 
 function smoothDensity(width: number, height: number): Float64Array {
 	const mass = new Float64Array(width * height);
@@ -54,12 +55,11 @@ export async function run(args: string[]): Promise<void> {
 	const quick = args.includes('--quick');
 	const reps = quick ? 5 : 30;
 	const mass = smoothDensity(width, height);
-	const feasible = new Uint8Array(width * height).fill(1);
 	let t = performance.now();
 	const prefix = rowPrefixSums(mass, width, height);
 	console.log(`grid ${width}x${height}; prefix sums built once in ${(performance.now() - t).toFixed(1)} ms`);
 	const scratch = rowScratch(height);
-	console.log('N      lloyd ms/iter   range-limited ms/iter');
+	console.log('N      lloyd ms/iter (mean, median)   range-limited ms/iter (mean, median)');
 	for (const n of [16, 64, 256, 1024]) {
 		// Seeds on a coarse copy of the grid (k-means++ is O(N × cells)), scaled up.
 		const coarse = new Float64Array(100 * 100);
@@ -68,16 +68,22 @@ export async function run(args: string[]): Promise<void> {
 		const u0 = seeds.u.map((x) => x * 10);
 		const v0 = seeds.v.map((x) => x * 10);
 		const rho = new Float64Array(n).fill(0.5 * Math.sqrt((width * height) / n));
-		const times: number[] = [];
+		const times: string[] = [];
 		for (const limited of [false, true]) {
 			const pu = u0.slice();
 			const pv = v0.slice();
-			iterate(prefix, pu, pv, limited ? rho : null, scratch); // warm-up
-			t = performance.now();
-			for (let k = 0; k < reps; k++) iterate(prefix, pu, pv, limited ? rho : null, scratch);
-			times.push((performance.now() - t) / reps);
+			for (let k = 0; k < 10; k++) iterate(prefix, pu, pv, limited ? rho : null, scratch); // warm-up (JIT)
+			const each: number[] = [];
+			for (let k = 0; k < reps; k++) {
+				t = performance.now();
+				iterate(prefix, pu, pv, limited ? rho : null, scratch);
+				each.push(performance.now() - t);
+			}
+			each.sort((a, b) => a - b);
+			const mean = each.reduce((a, b) => a + b, 0) / reps;
+			times.push(`${mean.toFixed(2)} (median ${each[reps >> 1].toFixed(2)})`);
 		}
-		console.log(`${String(n).padEnd(6)} ${times[0].toFixed(2).padStart(14)} ${times[1].toFixed(2).padStart(22)}`);
+		console.log(`${String(n).padEnd(6)} ${times[0].padEnd(31)} ${times[1]}`);
 	}
 	const n = 256;
 	const pu = new Float64Array(n).map((_, i) => ((i % 16) + 0.5) * (width / 16));
@@ -89,5 +95,12 @@ export async function run(args: string[]): Promise<void> {
 	cellMoments(prefix, pu, pv, null, scratch);
 	const fast = performance.now() - t;
 	console.log(`N=256 one brute-force iteration: ${brute.toFixed(0)} ms (prefix-sum: ${fast.toFixed(2)} ms, x${(brute / fast).toFixed(0)})`);
-	void feasible;
+
+	// The whole of place() (validation, seeding, constraints, history, final p95), 50 updates.
+	const grid = { crs: 'EPSG:32633', width, height, x0: 0, y0: height * 10, cellSize: 10, mass, feasible: new Uint8Array(width * height).fill(1) };
+	for (const strategy of ['lloyd', 'range-limited'] as const) {
+		t = performance.now();
+		const r = place(grid, null, [], { strategy, count: 256, radius: 300, seed: 1, maxIterations: 50, tolerance: 0 });
+		console.log(`place(1000x1000, greenfield 256, ${strategy}, 50 updates): ${(performance.now() - t).toFixed(0)} ms in all (${r.iterations} updates)`);
+	}
 }

@@ -16,6 +16,7 @@ import type {
 	ZoneMap,
 	ZoneSummary
 } from './types';
+import { SpacingIndex } from './spacing-index';
 import { validatePlacementInput } from './validate';
 import { crossingGate, zoneBalanceState, zoneOfPoint, zoneTargets } from './zone-balance';
 import type { CrossingGate } from './zone-balance';
@@ -108,7 +109,7 @@ export function place(
 	if (!(total > 0)) {
 		// Nothing to serve: no step has a direction. Sensors stay where they are.
 		record({ iteration: 0, cost: 0, coverage: 0 });
-		return finish(grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, sensors, greenfield, options, 0, true, history, 0, 0);
+		return finish({ grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, inputs: sensors, greenfield, options }, 0, true, history);
 	}
 
 	const prefix = rowPrefixSums(mass, width, height);
@@ -182,9 +183,10 @@ export function place(
 		// Constraints, sensor by sensor.
 		const nu = pu.slice();
 		const nv = pv.slice();
-		const occupied = new Map<string, number>();
-		for (let i = 0; i < n; i++) bump(occupied, key(pu[i], pv[i]), 1);
+		const occupied = new Occupancy();
+		for (let i = 0; i < n; i++) occupied.add(pu[i], pv[i]);
 		const spacingU = options.minSpacing && options.minSpacing > 0 ? options.minSpacing / cellSize : 0;
+		const spacing = spacingU > 0 ? new SpacingIndex(nu, nv, spacingU) : null;
 		const constrain = (i: number, targetU: number, targetV: number): [number, number] => {
 			let x = targetU;
 			let y = targetV;
@@ -198,13 +200,13 @@ export function place(
 			[x, y] = snapToFeasible(grid, nearestFeasible, x, y);
 			[x, y] = separate(grid, nearestFeasible, occupied, x, y, i);
 			[x, y] = clampTravel(grid, startU[i], startV[i], maxTravelU[i], x, y, pu[i], pv[i]);
-			if (spacingU > 0 && tooClose(nu, nv, i, x, y, spacingU)) return [pu[i], pv[i]];
+			if (spacing && spacing.anyWithin(i, x, y)) return [pu[i], pv[i]];
 			return [x, y];
 		};
 		let maxMove = 0;
 		for (const i of order) {
 			if (!movable[i]) continue;
-			bump(occupied, key(pu[i], pv[i]), -1);
+			occupied.remove(pu[i], pv[i]);
 			let [x, y] = constrain(i, tu[i], tv[i]);
 			if (gate && !gate.tryCross(pu[i], pv[i], x, y)) {
 				// Crossing refused (it would over-fill or under-fill a zone): take the local step
@@ -212,9 +214,10 @@ export function place(
 				[x, y] = constrain(i, localU[i], localV[i]);
 				if (!gate.tryCross(pu[i], pv[i], x, y)) [x, y] = [pu[i], pv[i]];
 			}
-			bump(occupied, key(x, y), 1);
+			occupied.add(x, y);
 			nu[i] = x;
 			nv[i] = y;
+			spacing?.move(i, pu[i], pv[i]);
 			maxMove = Math.max(maxMove, Math.hypot(x - pu[i], y - pv[i]));
 		}
 		pu = nu;
@@ -223,9 +226,7 @@ export function place(
 		iterations++;
 	}
 	if (tolerance === 0 && iterations >= maxIterations) converged = lastMaxMove === 0;
-	const cost = history[history.length - 1].cost;
-	const coverage = history[history.length - 1].coverage;
-	return finish(grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, sensors, greenfield, options, iterations, converged, history, cost, coverage);
+	return finish({ grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, inputs: sensors, greenfield, options }, iterations, converged, history);
 }
 
 function sumOf(a: Float64Array): number {
@@ -234,14 +235,38 @@ function sumOf(a: Float64Array): number {
 	return s;
 }
 
-function key(u: number, v: number): string {
-	return `${u},${v}`;
-}
+/** Multiset of exact positions, bucketed by the unit cell they fall in. */
+class Occupancy {
+	private buckets = new Map<number, number[]>();
 
-function bump(counts: Map<string, number>, k: string, by: number): void {
-	const c = (counts.get(k) ?? 0) + by;
-	if (c > 0) counts.set(k, c);
-	else counts.delete(k);
+	private bucket(u: number, v: number): number {
+		return Math.floor(u) * 1_000_003 + Math.floor(v);
+	}
+
+	add(u: number, v: number): void {
+		const k = this.bucket(u, v);
+		const list = this.buckets.get(k);
+		if (list) list.push(u, v);
+		else this.buckets.set(k, [u, v]);
+	}
+
+	remove(u: number, v: number): void {
+		const list = this.buckets.get(this.bucket(u, v));
+		if (!list) return;
+		for (let j = 0; j < list.length; j += 2) {
+			if (list[j] === u && list[j + 1] === v) {
+				list.splice(j, 2);
+				return;
+			}
+		}
+	}
+
+	has(u: number, v: number): boolean {
+		const list = this.buckets.get(this.bucket(u, v));
+		if (!list) return false;
+		for (let j = 0; j < list.length; j += 2) if (list[j] === u && list[j + 1] === v) return true;
+		return false;
+	}
 }
 
 function snapToFeasible(grid: WorkingGrid, nearestFeasible: () => Int32Array, u: number, v: number): [number, number] {
@@ -261,17 +286,17 @@ const GOLDEN_ANGLE = Math.PI * (3 - Math.sqrt(5));
 function separate(
 	grid: WorkingGrid,
 	nearestFeasible: () => Int32Array,
-	occupied: Map<string, number>,
+	occupied: Occupancy,
 	u: number,
 	v: number,
 	i: number
 ): [number, number] {
-	if (!occupied.has(key(u, v))) return [u, v];
+	if (!occupied.has(u, v)) return [u, v];
 	for (let t = 1; t <= 64; t++) {
 		const a = (i + t) * GOLDEN_ANGLE;
 		const r = 0.5 * Math.ceil(t / 8);
 		const [x, y] = snapToFeasible(grid, nearestFeasible, u + r * Math.cos(a), v + r * Math.sin(a));
-		if (!occupied.has(key(x, y))) return [x, y];
+		if (!occupied.has(x, y)) return [x, y];
 	}
 	return [u, v];
 }
@@ -303,39 +328,31 @@ function clampTravel(
 	return [fallbackU, fallbackV];
 }
 
-function tooClose(pu: Float64Array, pv: Float64Array, i: number, u: number, v: number, spacing: number): boolean {
-	const s2 = spacing * spacing;
-	for (let j = 0; j < pu.length; j++) {
-		if (j === i) continue;
-		const du = pu[j] - u;
-		const dv = pv[j] - v;
-		if (du * du + dv * dv < s2) return true;
-	}
-	return false;
+/** Everything finish() needs to describe the final state. */
+interface FinalState {
+	grid: WorkingGrid;
+	zones: ZoneMap | null;
+	/** Normalised mass. */
+	mass: Float64Array;
+	ids: string[];
+	radii: number[];
+	mobility: Mobility[];
+	/** Final and start positions, grid units. */
+	pu: Float64Array;
+	pv: Float64Array;
+	startU: Float64Array;
+	startV: Float64Array;
+	inputs: SensorInput[];
+	greenfield: boolean;
+	options: PlacementOptions;
 }
 
-function finish(
-	grid: WorkingGrid,
-	zones: ZoneMap | null,
-	mass: Float64Array,
-	ids: string[],
-	radii: number[],
-	mobility: Mobility[],
-	pu: Float64Array,
-	pv: Float64Array,
-	startU: Float64Array,
-	startV: Float64Array,
-	inputs: SensorInput[],
-	greenfield: boolean,
-	options: PlacementOptions,
-	iterations: number,
-	converged: boolean,
-	history: HistoryEntry[],
-	cost: number,
-	coverage: number
-): PlacementResult {
+/** Builds the result: sensors in metres, zone summaries, and the final metrics. */
+function finish(state: FinalState, iterations: number, converged: boolean, history: HistoryEntry[]): PlacementResult {
+	const { grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, inputs, greenfield, options } = state;
 	const { width, height, cellSize } = grid;
 	const n = ids.length;
+	const { cost, coverage } = history[history.length - 1];
 	const placed: PlacedSensor[] = [];
 	for (let i = 0; i < n; i++) {
 		const unchanged = pu[i] === startU[i] && pv[i] === startV[i];

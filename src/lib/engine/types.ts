@@ -30,6 +30,7 @@ export interface WorkingGrid {
 	/**
 	 * Probability mass per cell: non-negative, sums to 1 (or all zero for an empty problem).
 	 * Cells outside the study area, inside exclusions, nodata or negative carry 0.
+	 * The engine rejects NaN/negative values (EngineInputError) and normalises a sum ≠ 1.
 	 */
 	mass: Float64Array;
 	/**
@@ -60,21 +61,34 @@ export interface SensorInput {
 
 export interface PlacementOptions {
 	strategy: Strategy;
-	/** Default 500. */
+	/** Largest number of updates (one update moves every movable sensor once). Default 500. */
 	maxIterations?: number;
-	/** Stop when no sensor moved more than this many metres in one iteration; 0 runs every iteration. */
+	/**
+	 * Stop when no sensor moved more than this many metres in one update. Default
+	 * 0.01 × cellSize. 0 runs exactly maxIterations updates (converged is then true only if the
+	 * last update moved nothing).
+	 */
 	tolerance?: number;
 	/** Seed for greenfield k-means++ seeding; default 1. */
 	seed?: number;
-	/** Greenfield: number of new sensors to seed (used when sensors is empty). */
+	/**
+	 * Greenfield: number of new sensors to seed (used when sensors is empty). They are seeded by
+	 * weighted k-means++ on the feasible cell centres, named "S1".."SN", mobility 'relocatable'.
+	 */
 	count?: number;
-	/** Radius for greenfield sensors, metres. */
+	/** Radius for greenfield sensors, metres (required with count). */
 	radius?: number;
-	/** Optional minimum spacing between sensors, metres. */
+	/**
+	 * Optional minimum spacing between sensors, metres. A move that would bring a sensor closer
+	 * than this to another is rejected for that update (the sensor stays).
+	 */
 	minSpacing?: number;
 	/** Zone-balance dead-band on |sigma|; default 1 / (2N). */
 	deadBand?: number;
-	/** Zone-balanced: largest step a sensor takes in one iteration, metres; default 2 cells... see engine docs. */
+	/**
+	 * Largest step a sensor takes in one update, metres. Default: unbounded for lloyd and
+	 * range-limited; max(2 × cellSize, 0.25 × median sensor radius) for zone-balanced.
+	 */
 	maxStep?: number;
 	/** Called after each iteration (for progress reporting in workers). */
 	onIteration?: (entry: HistoryEntry) => void;
@@ -110,11 +124,17 @@ export interface PlacedSensor {
 export interface PlacementResult {
 	crs: string;
 	strategy: Strategy;
+	/** Updates performed (history has iterations + 1 entries). */
 	iterations: number;
 	converged: boolean;
+	/** Locational cost H at the final positions, m² (full Voronoi cells, φ summing to 1). */
 	cost: number;
+	/** Share of the mass within R_i of its nearest sensor i, 0..1. */
 	coverage: number;
-	/** Importance-weighted 95th percentile of the distance to the nearest sensor, metres. */
+	/**
+	 * Importance-weighted 95th percentile of the distance from cell centres to the nearest
+	 * sensor, metres (exact, computed once for the final positions).
+	 */
 	p95DistanceM: number;
 	sensors: PlacedSensor[];
 	zones: ZoneSummary[];

@@ -3,6 +3,7 @@ import { EngineInputError, place } from '../../../src/lib/engine';
 import type { PlacementOptions, SensorInput, WorkingGrid } from '../../../src/lib/engine';
 import { nearestFeasibleCells } from '../../../src/lib/engine/feasible-snap';
 import { mulberry32 } from '../../../src/lib/engine/prng';
+import { SpacingIndex } from '../../../src/lib/engine/spacing-index';
 import { at, gridFrom, sensor, uniformSquare } from './grids';
 
 const toUV = (g: WorkingGrid, x: number, y: number) => [(x - g.x0) / g.cellSize, (g.y0 - y) / g.cellSize];
@@ -77,6 +78,38 @@ describe('place() constraints', () => {
 		};
 		expect(minDist(free)).toBeLessThan(spacing); // the constraint binds
 		expect(minDist(spaced)).toBeGreaterThanOrEqual(spacing - 1e-9);
+	});
+
+	it('place(…, sensor starting in an exclusion with nothing in reach) is moved to the nearest feasible cell', () => {
+		// Infeasible, massless west strip (columns 0–9); mass only far east.
+		const g = gridFrom(40, 10, 10, (u) => (u > 35 ? 1 : 0), (u) => u >= 10);
+		const r = place(g, null, [sensor(g, 'A', 3.2, 4.7, 20)], { strategy: 'range-limited' });
+		const [u, v] = toUV(g, r.sensors[0].x, r.sensors[0].y);
+		expect([u, v]).toEqual([10.5, 4.5]);
+		expect(r.converged).toBe(true);
+	});
+
+	it('SpacingIndex.anyWithin agrees with an all-pairs check', () => {
+		const rnd = mulberry32(21);
+		for (let t = 0; t < 20; t++) {
+			const n = 1 + Math.floor(rnd() * 60);
+			const pu = new Float64Array(n).map(() => rnd() * 50 - 5);
+			const pv = new Float64Array(n).map(() => rnd() * 50 - 5);
+			const spacing = 0.5 + rnd() * 8;
+			const index = new SpacingIndex(pu, pv, spacing);
+			for (let q = 0; q < 30; q++) {
+				const i = Math.floor(rnd() * n);
+				const [u, v] = [rnd() * 50 - 5, rnd() * 50 - 5];
+				let want = false;
+				for (let j = 0; j < n; j++) if (j !== i && Math.hypot(pu[j] - u, pv[j] - v) < spacing) want = true;
+				expect(index.anyWithin(i, u, v)).toBe(want);
+				// Move sensor i there and keep checking against the updated arrays.
+				const [u0, v0] = [pu[i], pv[i]];
+				pu[i] = u;
+				pv[i] = v;
+				index.move(i, u0, v0);
+			}
+		}
 	});
 
 	it('nearestFeasibleCells equals a brute-force nearest feasible cell (distance) on random masks', () => {
