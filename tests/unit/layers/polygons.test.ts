@@ -1,3 +1,4 @@
+import { Geodesic } from 'geographiclib-geodesic';
 import { describe, expect, it } from 'vitest';
 import { parseGeoJsonPolygons, parseKmlPolygons, parsePolygonUpload, PolygonError, ringArea2 } from '../../../src/lib/geo/polygons';
 
@@ -39,6 +40,14 @@ describe('parseGeoJsonPolygons', () => {
 		expect(poly[0]).toEqual([...cwSquare].reverse());
 		// Shoelace: twice the area of a 1°×1° square is 2.
 		expect(ringArea2(poly[0])).toBeCloseTo(2, 12);
+		// GeographicLib's signed geodesic area is positive for a counter-clockwise ring (its docs).
+		const signed = (ring: number[][]) => {
+			const p = Geodesic.WGS84.Polygon(false);
+			for (const [lon, lat] of ring.slice(0, -1)) p.AddPoint(lat, lon);
+			return p.Compute(false, true).area ?? NaN;
+		};
+		expect(signed(poly[0])).toBeGreaterThan(0);
+		expect(signed(poly[1])).toBeLessThan(0);
 	});
 
 	it('keeps ids and names from a FeatureCollection of Polygon and MultiPolygon features, dropping heights', () => {
