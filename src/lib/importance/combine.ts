@@ -1,12 +1,12 @@
 /**
  * Turn aligned layers into one importance surface: each recipe step transforms its layer, the
- * result is scaled to 0..1 (min–max over valid cells), and the scaled layers are summed with
- * weights normalised to add up to 1. Importance is therefore in 0..1; a cell without data in
- * any layer the recipe uses is NaN (nodata) in the output.
+ * result is scaled to 0..1 (scaleToUnit), and the scaled layers are summed with weights
+ * normalised to add up to 1. Importance is therefore in 0..1; a cell without data in any layer
+ * the recipe uses is NaN (nodata) in the output.
  */
 import { ImportanceError, sameGrid, toNaNArray, type GridBand, type GridSpec } from './grid';
 import { recipeSchema, type Recipe, type RecipeInput } from './recipe';
-import { applyStep, minmax } from './transforms';
+import { applyStep, scaleToUnit } from './transforms';
 
 export interface ImportanceSurface {
 	grid: GridSpec;
@@ -48,7 +48,7 @@ export function combineLayers(recipeInput: Recipe | RecipeInput, bands: BandLook
 	const acc = new Float64Array(n);
 	for (const step of recipe.layers) {
 		const band = lookup(bands, step.layerId) as GridBand;
-		const scaled = minmax(applyStep(step, toNaNArray(band), grid));
+		const scaled = scaleToUnit(step.transform, applyStep(step, toNaNArray(band), grid));
 		const w = step.weight / totalWeight;
 		for (let i = 0; i < n; i++) acc[i] += w * scaled[i]; // NaN propagates: nodata anywhere → nodata
 	}

@@ -3,7 +3,7 @@
  * returns a new array of the same length, NaN kept where the input had no data.
  */
 import { cellSizeMetres, ImportanceError, type GridSpec } from './grid';
-import type { RecipeStep } from './recipe';
+import type { RecipeStep, TransformName } from './recipe';
 import { localStdDev } from './summed-area';
 
 export function validRange(values: Float64Array): { min: number; max: number; count: number } {
@@ -92,4 +92,20 @@ export function applyStep(step: RecipeStep, values: Float64Array, grid: GridSpec
 		case 'variability':
 			return variability(values, grid, step.params.distanceM);
 	}
+}
+
+/**
+ * Scale a transformed layer to 0..1 before weighting:
+ *  - identity, invert, minmax: min–max over valid cells (a constant layer becomes 1: uniform);
+ *  - band: already 0..1 with an absolute meaning (inside / outside the band), kept as is, so a
+ *    band that no cell falls into contributes 0 rather than being stretched;
+ *  - variability: divided by its maximum, so "no variability" stays 0 (a flat field gives 0).
+ */
+export function scaleToUnit(transform: TransformName, values: Float64Array): Float64Array {
+	if (transform === 'band') return Float64Array.from(values);
+	if (transform === 'variability') {
+		const { max } = validRange(values);
+		return values.map((v) => (Number.isNaN(v) ? NaN : max > 0 ? v / max : 0));
+	}
+	return minmax(values);
 }

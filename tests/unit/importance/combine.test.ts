@@ -43,6 +43,24 @@ describe('combineLayers', () => {
 		expect(Array.from(out.data).map((v) => +v.toFixed(5))).toEqual([0, 1, 1, 0.5]);
 	});
 
+	it('a band no cell falls into contributes 0, not a stretched constant', () => {
+		// m in band → 1 everywhere... n has no cell in 5..6 → 0; weights 1:1 → 0.5 everywhere
+		const out = combineLayers(
+			{ layers: [{ layerId: 'm', transform: 'band', weight: 1, params: { lo: 0, hi: 10 } }, { layerId: 'n', transform: 'band', weight: 1, params: { lo: 5, hi: 6 } }] },
+			{ m: bandOf([1, 2, 3, 4]), n: bandOf([1, 2, 3, 4]) }
+		);
+		expect(Array.from(out.data)).toEqual([0.5, 0.5, 0.5, 0.5]);
+	});
+
+	it('variability is scaled by its maximum: a flat field contributes 0, the most variable cell 1', () => {
+		const g: GridSpec = { ...g22, width: 3, height: 1 };
+		const flat = combineLayers({ layers: [{ layerId: 'f', transform: 'variability', weight: 1, params: { distanceM: 100 } }] }, { f: bandOf([2, 2, 2], g) });
+		expect(Array.from(flat.data)).toEqual([0, 0, 0]);
+		// [0, 0, 3] with ±1 cell: std{0,0}=0, std{0,0,3}=sqrt(2), std{0,3}=1.5 → /1.5 → [0, 0.9428, 1]
+		const v = combineLayers({ layers: [{ layerId: 'f', transform: 'variability', weight: 1, params: { distanceM: 100 } }] }, { f: bandOf([0, 0, 3], g) });
+		expect(Array.from(v.data).map((x) => +x.toFixed(4))).toEqual([0, +(Math.sqrt(2) / 1.5).toFixed(4), 1]);
+	});
+
 	it('refuses a missing layer, mismatched grids and an invalid recipe', () => {
 		expect(() => combineLayers({ layers: [{ layerId: 'x', transform: 'identity', weight: 1 }] }, {})).toThrow(/Layer x .*not available/);
 		const other = { ...g22, x0: g22.x0 + 50 };
