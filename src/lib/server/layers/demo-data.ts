@@ -11,6 +11,7 @@
 import { writeArrayBuffer } from 'geotiff';
 import { mkdir, writeFile } from 'node:fs/promises';
 import path from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { transformer } from '../../geo/crs';
 import { exportSensorsCsv, type SensorRecord } from '../inventory';
 
@@ -311,7 +312,7 @@ export async function writeDemoData(outDir: string): Promise<string[]> {
 	return written;
 }
 
-const invokedDirectly = process.argv[1] !== undefined && path.resolve(process.argv[1]) === path.resolve(new URL(import.meta.url).pathname);
+const invokedDirectly = process.argv[1] !== undefined && path.resolve(process.argv[1]) === fileURLToPath(import.meta.url);
 if (invokedDirectly) {
 	const out = process.argv[2] ?? 'data/demo';
 	writeDemoData(out).then(

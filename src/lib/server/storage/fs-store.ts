@@ -2,6 +2,7 @@
  * Object store on the local file system: one file per key under a root directory.
  * Writes go to a hidden temporary file in the target directory and are renamed into place,
  * so a reader sees either the old object or the whole new one, never a half-written file.
+ * Content types are not kept on disk: a caller that needs one stores it beside the key.
  */
 import { randomUUID } from 'node:crypto';
 import { createReadStream, createWriteStream } from 'node:fs';
