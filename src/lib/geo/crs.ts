@@ -27,6 +27,14 @@ const FIXED: Record<number, string> = {
 
 const registered = new Map<number, string>();
 
+/**
+ * Projected CRSs whose metres are not ground metres over most of the globe: Web Mercator's scale
+ * is 1/cos φ (1.5 at 48°), EASE-Grid 2.0's cylindrical equal-area stretches east-west and shrinks
+ * north-south away from ±30°. Sensing radii and travel in metres would be wrong in them, so they
+ * are never chosen as a working CRS automatically (an explicit override is still honoured).
+ */
+const GLOBAL_DISTORTED = new Set<number>([3857, 6933]);
+
 /** Definition of UTM zone codes 32601–32660 (north) and 32701–32760 (south), generated. */
 function utmDefinition(epsg: number): string | null {
 	const north = epsg >= 32601 && epsg <= 32660;
@@ -36,8 +44,11 @@ function utmDefinition(epsg: number): string | null {
 	return `+proj=utm +zone=${zone}${south ? ' +south' : ''} +datum=WGS84 +units=m +no_defs`;
 }
 
-/** Register (or replace) a proj4 definition for an EPSG code not built in. */
-export function registerCrs(epsg: number, proj4Definition: string): void {
+/**
+ * Register (or replace) a proj4 definition for an EPSG code not built in. Mark `globalDistorted`
+ * for world-wide projections whose scale is far from 1 (see GLOBAL_DISTORTED).
+ */
+export function registerCrs(epsg: number, proj4Definition: string, opts: { globalDistorted?: boolean } = {}): void {
 	if (!Number.isInteger(epsg) || epsg <= 0) throw new CrsError(`"${epsg}" is not an EPSG code`);
 	try {
 		// Validate by building a converter once.
@@ -47,6 +58,8 @@ export function registerCrs(epsg: number, proj4Definition: string): void {
 	}
 	registered.set(epsg, proj4Definition);
 	proj4.defs(`EPSG:${epsg}`, proj4Definition);
+	if (opts.globalDistorted) GLOBAL_DISTORTED.add(epsg);
+	else GLOBAL_DISTORTED.delete(epsg);
 }
 
 /** The proj4 definition of an EPSG code, or null when Cairnfield has none. */
@@ -69,6 +82,11 @@ function requireDefinition(epsg: number): string {
 /** True when the CRS has metric projected coordinates (false for geographic lon/lat). */
 export function isProjected(epsg: number): boolean {
 	return !/\+proj=longlat\b/.test(requireDefinition(epsg));
+}
+
+/** Projected, and with ground-true metres near any network (not Web Mercator, not EASE-Grid 2.0). */
+export function isSuitableWorkingCrs(epsg: number): boolean {
+	return isProjected(epsg) && !GLOBAL_DISTORTED.has(epsg);
 }
 
 /** Parse "EPSG:32633", "epsg:32633" or "32633" to 32633; anything else is a CrsError. */
@@ -108,7 +126,8 @@ export function utmZoneFor(lon: number, lat: number): number {
 
 /**
  * The working CRS of a network: an explicit override wins (it must be known and projected);
- * otherwise the raster's own CRS when projected; otherwise the UTM zone of the area's centre.
+ * otherwise the raster's own CRS when projected with ground-true metres (isSuitableWorkingCrs);
+ * otherwise (geographic, Web Mercator, EASE-Grid 2.0) the UTM zone of the area's centre.
  */
 export function chooseWorkingCrs(
 	rasterEpsg: number,
@@ -122,7 +141,7 @@ export function chooseWorkingCrs(
 		}
 		return epsg;
 	}
-	if (isProjected(rasterEpsg)) return rasterEpsg;
+	if (isSuitableWorkingCrs(rasterEpsg)) return rasterEpsg;
 	return utmZoneFor(centreLonLat[0], centreLonLat[1]);
 }
 

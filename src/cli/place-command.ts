@@ -1,0 +1,165 @@
+/**
+ * `cairnfield place`: files in, a GeoJSON FeatureCollection out. Reads the inputs, builds the
+ * working grid, runs the engine, plans the moves, and returns the document (writing is the
+ * caller's job, so nothing is written when anything fails).
+ */
+import { readFile } from 'node:fs/promises';
+import { place, zoneGrid, type PlacementResult, type SensorInput, type ZoneMap } from '../lib/engine';
+import { rasterizeZones } from '../lib/engine/rasterize';
+import { assignMoves, routeLength, routeOrder, type Point } from '../lib/engine/moves';
+import { readGeoTiff } from '../lib/geo/geotiff';
+import { GeoJsonError, projectRings, readPolygons, readSensors, readZones } from '../lib/geo/geojson';
+import { transformer } from '../lib/geo/crs';
+import { buildWorkingGrid } from '../lib/geo/working-grid';
+import { geodesicDistance } from '../lib/geo/geodesic';
+import { CliError, type PlaceArgs } from './args';
+
+async function readBytes(file: string): Promise<ArrayBuffer> {
+	try {
+		const buf = await readFile(file);
+		// Large files get their own ArrayBuffer: use it as is; small ones share Node's pool, so copy.
+		if (buf.byteOffset === 0 && buf.byteLength === buf.buffer.byteLength) return buf.buffer as ArrayBuffer;
+		return buf.buffer.slice(buf.byteOffset, buf.byteOffset + buf.byteLength) as ArrayBuffer;
+	} catch (e) {
+		const code = (e as NodeJS.ErrnoException).code;
+		if (code === 'ENOENT') throw new CliError(`${file}: no such file`);
+		if (code === 'EISDIR') throw new CliError(`${file}: is a directory, not a file`);
+		throw new CliError(`${file}: cannot be read (${code ?? String(e)})`);
+	}
+}
+
+async function readJson(file: string): Promise<unknown> {
+	const text = new TextDecoder().decode(await readBytes(file));
+	try {
+		return JSON.parse(text);
+	} catch (e) {
+		throw new GeoJsonError(`${file}: not valid JSON (${e instanceof Error ? e.message : String(e)})`);
+	}
+}
+
+export interface PlaceOutput {
+	type: 'FeatureCollection';
+	features: unknown[];
+	placement: Record<string, unknown>;
+}
+
+export async function runPlace(args: PlaceArgs): Promise<PlaceOutput> {
+	const raster = await readGeoTiff(await readBytes(args.importance), { band: args.band, name: args.importance });
+	const studyDoc = args.studyArea ? readPolygons(await readJson(args.studyArea), args.studyArea) : null;
+	const exclusionDoc = args.exclusions ? readPolygons(await readJson(args.exclusions), args.exclusions) : null;
+	const zoneDoc = args.zones ? readZones(await readJson(args.zones), args.zones) : null;
+	const sensorDoc = args.sensors ? readSensors(await readJson(args.sensors), args.sensors) : null;
+	if (sensorDoc && sensorDoc.length === 0) throw new GeoJsonError(`${args.sensors}: no sensors`);
+
+	const { grid, epsg } = buildWorkingGrid(raster, {
+		crs: args.crs,
+		cellSize: args.cellSize ?? undefined,
+		studyArea: studyDoc ? studyDoc.flat() : undefined,
+		exclusions: exclusionDoc ?? undefined
+	});
+	const toWork = transformer(4326, epsg).forward;
+	const toLonLat = transformer(epsg, 4326).forward;
+
+	let zones: ZoneMap | null = null;
+	if (zoneDoc) {
+		zones = rasterizeZones(grid, zoneDoc.map((z) => ({ id: z.id, rings: projectRings(z.rings, toWork, grid.cellSize * 4) })));
+	} else if (args.zoneGrid) {
+		const { cols, rows } = args.zoneGrid;
+		if (cols > grid.width || rows > grid.height) {
+			throw new CliError(`--zone-grid ${cols}x${rows} has more zones per side than the ${grid.width}x${grid.height} working grid has cells`);
+		}
+		zones = zoneGrid(grid, cols, rows);
+	}
+
+	let sensors: SensorInput[] = [];
+	if (sensorDoc) {
+		sensors = sensorDoc.map((s) => {
+			const radius = s.radius ?? args.radius;
+			if (radius === null || radius === undefined) {
+				throw new CliError(`${args.sensors}: sensor "${s.id}" has no radius_m and no --radius was given`);
+			}
+			const [x, y] = toWork(s.lon, s.lat);
+			return { id: s.id, x, y, radius, mobility: s.mobility };
+		});
+	}
+
+	const result: PlacementResult = place(grid, zones, sensors, {
+		strategy: args.strategy,
+		maxIterations: args.maxIterations,
+		tolerance: args.tolerance ?? undefined,
+		seed: args.seed,
+		count: args.count ?? undefined,
+		radius: args.radius ?? undefined
+	});
+
+	const features = result.sensors.map((s) => ({
+		type: 'Feature',
+		geometry: { type: 'Point', coordinates: toLonLat(s.x, s.y) },
+		properties: { id: s.id, x: s.x, y: s.y, zone: s.zone, moved_m: s.movedM, radius_m: s.radius, mobility: s.mobility }
+	}));
+
+	const placement: Record<string, unknown> = {
+		crs: result.crs,
+		strategy: result.strategy,
+		iterations: result.iterations,
+		converged: result.converged,
+		cost: result.cost,
+		coverage: result.coverage,
+		p95_distance_m: result.p95DistanceM,
+		cell_size_m: grid.cellSize,
+		zones: result.zones.map((z) => ({ id: z.id, mass: z.mass, sensors: z.sensors, sigma: z.sigma })),
+		history: result.history.map((h) => ({ iteration: h.iteration, cost: h.cost, coverage: h.coverage }))
+	};
+	if (sensors.length > 0) placement.moves = planMoves(sensors, result, toLonLat);
+	return { type: 'FeatureCollection', features, placement };
+}
+
+/**
+ * Moves for the field crew: which sensor goes to which final position (optimal assignment within
+ * each sensor type), and the order to do them in. A job is "go to the sensor, carry it to its
+ * target"; jobs are ordered by a route through their midpoints, and the reported lengths follow
+ * the actual path from_1 → to_1 → from_2 → to_2 → … (planar in the working CRS, and geodesic).
+ */
+function planMoves(sensors: SensorInput[], result: PlacementResult, toLonLat: (x: number, y: number) => [number, number]) {
+	const movable = result.sensors.filter((s) => s.mobility !== 'fixed');
+	const assignment = assignMoves(
+		sensors.map((s) => ({ id: s.id, x: s.x, y: s.y, mobility: s.mobility, radius: s.radius })),
+		movable.map((s) => ({ x: s.x, y: s.y, radius: s.radius }))
+	);
+	const jobs = assignment.moves.filter((m) => m.distance > 1e-6);
+	const mid: Point[] = jobs.map((m) => [(m.fromX + m.toX) / 2, (m.fromY + m.toY) / 2]);
+	const order = routeOrder(null, mid).order;
+	const path: Point[] = order.flatMap((k) => [[jobs[k].fromX, jobs[k].fromY] as Point, [jobs[k].toX, jobs[k].toY] as Point]);
+	const pathLonLat = path.map(([x, y]) => toLonLat(x, y));
+	let geodesicPath = 0;
+	for (let i = 1; i < pathLonLat.length; i++) {
+		geodesicPath += geodesicDistance(pathLonLat[i - 1][0], pathLonLat[i - 1][1], pathLonLat[i][0], pathLonLat[i][1]);
+	}
+	const planarPath = routeLength(null, path, path.map((_, i) => i));
+	let geodesicTotal = 0;
+	const assigned = assignment.moves.map((m) => {
+		const from = toLonLat(m.fromX, m.fromY);
+		const to = toLonLat(m.toX, m.toY);
+		const g = geodesicDistance(from[0], from[1], to[0], to[1]);
+		geodesicTotal += g;
+		return {
+			id: m.id,
+			target: movable[m.target].id,
+			from: { x: m.fromX, y: m.fromY, lon: from[0], lat: from[1] },
+			to: { x: m.toX, y: m.toY, lon: to[0], lat: to[1] },
+			planar_m: m.distance,
+			geodesic_m: g
+		};
+	});
+	return {
+		assignment: assigned,
+		total_planar_m: assignment.total,
+		total_geodesic_m: geodesicTotal,
+		fixed: assignment.fixed,
+		route: {
+			order: order.map((k) => jobs[k].id),
+			planar_m: planarPath,
+			geodesic_m: geodesicPath
+		}
+	};
+}

@@ -1,0 +1,4 @@
+export { place } from './place';
+export { zoneGrid, computeZones } from './zones';
+export { EngineInputError } from './errors';
+export * from './types';

@@ -1,0 +1,21 @@
+/**
+ * Geodesic (ellipsoidal) lengths on WGS 84 for reports, through GeographicLib's JavaScript port.
+ */
+import geodesic from 'geographiclib-geodesic';
+
+const WGS84 = geodesic.Geodesic.WGS84;
+
+/** Geodesic distance in metres between two lon/lat points (degrees) on WGS 84. */
+export function geodesicDistance(lon1: number, lat1: number, lon2: number, lat2: number): number {
+	const r = WGS84.Inverse(lat1, lon1, lat2, lon2, geodesic.Geodesic.DISTANCE);
+	return r.s12 ?? Number.NaN;
+}
+
+/** Sum of geodesic leg lengths along a path of lon/lat points (degrees), metres. */
+export function geodesicPathLength(points: ReadonlyArray<readonly [number, number]>): number {
+	let total = 0;
+	for (let i = 1; i < points.length; i++) {
+		total += geodesicDistance(points[i - 1][0], points[i - 1][1], points[i][0], points[i][1]);
+	}
+	return total;
+}
