@@ -115,3 +115,28 @@ describe('demo data (data/demo)', () => {
 		expect(out.validCount).toBeGreaterThan(25_000);
 	});
 });
+
+describe('demo data through the engine side readers', () => {
+	it('study area and zones read with readPolygons/readZones, and the moisture raster builds a working grid', async () => {
+		const { readPolygons, readZones } = await import('../../../src/lib/geo/geojson');
+		const { buildWorkingGrid } = await import('../../../src/lib/geo/working-grid');
+		const study = readPolygons(JSON.parse((await read('study-area.geojson')).toString()), 'study-area.geojson');
+		const lake = readPolygons(JSON.parse((await read('exclusions.geojson')).toString()), 'exclusions.geojson');
+		const zones = readZones(JSON.parse((await read('zones.geojson')).toString()), 'zones.geojson');
+		expect(zones.map((z) => z.id)).toEqual(['north-fell', 'west-moss', 'south-heath', 'eastern-reach']);
+		const { band } = await loadLayer(await read('soil-moisture.tif'));
+		const { grid, epsg } = buildWorkingGrid(band, { studyArea: study[0], exclusions: lake, cellSize: 250 });
+		expect(epsg).toBe(32632);
+		let mass = 0;
+		let feasible = 0;
+		for (let i = 0; i < grid.mass.length; i++) {
+			mass += grid.mass[i];
+			feasible += grid.feasible[i];
+		}
+		expect(mass).toBeCloseTo(1, 9);
+		// feasible area ≈ catchment minus reservoir, at 250 m cells (0.0625 km² each)
+		const feasibleKm2 = feasible * 0.0625;
+		expect(feasibleKm2).toBeGreaterThan(300);
+		expect(feasibleKm2).toBeLessThan(grid.width * grid.height * 0.0625);
+	});
+});
