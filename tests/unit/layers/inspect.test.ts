@@ -126,6 +126,13 @@ describe('inspectLayer: refusals with LayerRejected', () => {
 		expect(['corrupt', 'unsupported']).toContain(e.code);
 		expect(e.message).toMatch(/compression|corrupt/i);
 	});
+	it('reads the requested band of a three-band file', async () => {
+		const bands = [0, 1, 2].map((b) => Array.from({ length: 12 }, (_, i) => b * 100 + i));
+		const m = await inspectLayer(encodeTiff({ ...base, bands, geo }), { band: 2 });
+		expect(m.bandCount).toBe(3);
+		expect(m.band).toBe(2);
+		expect([m.stats.min, m.stats.max, m.stats.mean]).toEqual([100, 111, 105.5]);
+	});
 	it('a valid Deflate file is accepted', async () => {
 		const m = await inspectLayer(encodeTiff({ ...base, geo, compression: { code: 8, encode: (r) => deflateSync(r) } }));
 		expect(m.stats.validCount).toBe(12);

@@ -139,6 +139,17 @@ describe('parseKmlPolygons (OGC KML 2.2: lon,lat[,alt] tuples)', () => {
 		const pin = '<kml xmlns="http://www.opengis.net/kml/2.2"><Placemark><name>Pin</name><Point><coordinates>1,2</coordinates></Point></Placemark></kml>';
 		expectError(() => parseKmlPolygons(pin), /feature 1 "Pin": is a Point/);
 	});
+	it('reads an innerBoundaryIs as a clockwise hole', () => {
+		const withHole = `<kml xmlns="http://www.opengis.net/kml/2.2"><Placemark><name>Ring field</name><Polygon>
+			<outerBoundaryIs><LinearRing><coordinates>0,0 4,0 4,4 0,4 0,0</coordinates></LinearRing></outerBoundaryIs>
+			<innerBoundaryIs><LinearRing><coordinates>1,1 1,2 2,2 2,1 1,1</coordinates></LinearRing></innerBoundaryIs>
+		</Polygon></Placemark></kml>`;
+		const [f] = parseKmlPolygons(withHole);
+		const [poly] = f.geometry.coordinates;
+		expect(poly).toHaveLength(2);
+		expect(ringArea2(poly[0])).toBeCloseTo(32, 12); // 2 × 16
+		expect(ringArea2(poly[1])).toBeCloseTo(-2, 12); // 2 × 1, clockwise
+	});
 	it('refuses an empty upload', () => {
 		expectError(() => parsePolygonUpload('   '), /empty/);
 	});
