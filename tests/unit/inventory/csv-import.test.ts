@@ -87,6 +87,13 @@ describe('importSensorsCsv', () => {
 		expect(importSensorsCsv(many, { ...opts, maxRows: 3 }).ok).toBe(false);
 	});
 
+	it('explains a semicolon-separated file', () => {
+		expect(importSensorsCsv('id;serial;type;lon;lat\nA;1;CRNS;0;0\n', opts)).toEqual({
+			ok: false,
+			errors: [{ row: 1, field: '', message: 'the columns are separated by semicolons or tabs; save the file as comma-separated CSV' }]
+		});
+	});
+
 	it('says when no sensor types exist yet', () => {
 		const res = importSensorsCsv('id,serial,type,lon,lat\nA,1,CRNS,0,0\n', { knownTypes: [] });
 		expect(res).toEqual({ ok: false, errors: [{ row: 2, field: 'type', message: 'unknown sensor type "CRNS" (known: none are defined yet)' }] });

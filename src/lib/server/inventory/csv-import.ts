@@ -30,6 +30,9 @@ export function importSensorsCsv(text: string, opts: SensorImportOptions): Impor
 	const errors: RowError[] = [];
 	const lines = parsed.data;
 	const header = (lines[0] ?? []).map((h) => h.trim().toLowerCase());
+	if (header.length === 1 && /[;\t]/.test(header[0])) {
+		return { ok: false, errors: [{ row: 1, field: '', message: 'the columns are separated by semicolons or tabs; save the file as comma-separated CSV' }] };
+	}
 	const known = new Set<string>(CSV_COLUMNS);
 	header.forEach((h, i) => {
 		if (h === '') errors.push({ row: 1, field: '', message: `column ${i + 1} has no name` });
