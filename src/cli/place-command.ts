@@ -54,7 +54,7 @@ export async function runPlace(args: PlaceArgs): Promise<PlaceOutput> {
 	const { grid, epsg } = buildWorkingGrid(raster, {
 		crs: args.crs,
 		cellSize: args.cellSize ?? undefined,
-		studyArea: studyDoc ? studyDoc.flat() : undefined,
+		studyArea: studyDoc ?? undefined,
 		exclusions: exclusionDoc ?? undefined
 	});
 	const toWork = transformer(4326, epsg).forward;

@@ -29,8 +29,11 @@ export interface WorkingGridOptions {
 	cellSize?: number;
 	/** Default 'bilinear'. */
 	sampling?: Sampling;
-	/** Study area rings in WGS 84 lon/lat (even-odd rule); cells outside get mass 0, feasible 0. */
-	studyArea?: readonly Ring[];
+	/**
+	 * Study area polygons (each a list of WGS 84 lon/lat rings, even-odd within a polygon, union
+	 * across polygons); cells outside get mass 0, feasible 0, and the grid is clipped to it.
+	 */
+	studyArea?: ReadonlyArray<readonly Ring[]>;
 	/** Exclusion polygons (each a list of lon/lat rings); cells inside get mass 0, feasible 0. */
 	exclusions?: ReadonlyArray<readonly Ring[]>;
 	/** Largest accepted number of cells; default 64 million. */
@@ -143,7 +146,7 @@ export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = 
 	let centre: [number, number];
 	if (opts.studyArea && opts.studyArea.length > 0) {
 		let minLon = Infinity, maxLon = -Infinity, minLat = Infinity, maxLat = -Infinity;
-		for (const ring of opts.studyArea) for (const [lon, lat] of ring) {
+		for (const ring of opts.studyArea.flat()) for (const [lon, lat] of ring) {
 			minLon = Math.min(minLon, lon); maxLon = Math.max(maxLon, lon);
 			minLat = Math.min(minLat, lat); maxLat = Math.max(maxLat, lat);
 		}
@@ -187,10 +190,10 @@ export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = 
 	// Study area and exclusions in working metres; the study area also clips the extent.
 	const densify = cellSize * 4;
 	const projLonLat = transformer(4326, epsg).forward;
-	const studyRings = opts.studyArea && opts.studyArea.length > 0 ? projectRings(opts.studyArea, projLonLat, densify) : null;
-	if (studyRings) {
+	const studyPolygons = opts.studyArea && opts.studyArea.length > 0 ? opts.studyArea.map((p) => projectRings(p, projLonLat, densify)) : null;
+	if (studyPolygons) {
 		let sMinX = Infinity, sMaxX = -Infinity, sMinY = Infinity, sMaxY = -Infinity;
-		for (const ring of studyRings) for (const [x, y] of ring) {
+		for (const ring of studyPolygons.flat()) for (const [x, y] of ring) {
 			sMinX = Math.min(sMinX, x); sMaxX = Math.max(sMaxX, x);
 			sMinY = Math.min(sMinY, y); sMaxY = Math.max(sMaxY, y);
 		}
@@ -207,7 +210,7 @@ export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = 
 	const width = Math.max(1, Math.ceil((maxX - x0) / cellSize - 1e-9));
 	const height = Math.max(1, Math.ceil((y0 - minY) / cellSize - 1e-9));
 	if (width * height > maxCells) {
-		throw new WorkingGridError(`${width}×${height} cells of ${cellSize} m is over the limit of ${maxCells} cells; choose a larger cell size`);
+		throw new WorkingGridError(`${width}×${height} cells of ${cellSize} m is over the limit of ${maxCells} cells; choose a larger cell size or a smaller study area`);
 	}
 	const geom: GridGeometry = { width, height, x0, y0, cellSize };
 
@@ -226,7 +229,9 @@ export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = 
 	const n = width * height;
 	const mass = new Float64Array(n);
 	const feasible = new Uint8Array(n);
-	const { data, nodata } = raster;
+	const { data } = raster;
+	// A Float32 band stores nodata rounded to single precision ("-3.4e+38" is not a float32 value).
+	const nodata = raster.nodata !== null && data instanceof Float32Array ? Math.fround(raster.nodata) : raster.nodata;
 	const W = raster.width;
 	const H = raster.height;
 	const px = new Float64Array(width);
@@ -269,8 +274,12 @@ export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = 
 		}
 	}
 
-	if (studyRings) {
-		const inside = rasterizeRings(geom, studyRings);
+	if (studyPolygons) {
+		const inside = new Uint8Array(n);
+		for (const polygon of studyPolygons) {
+			const part = rasterizeRings(geom, polygon);
+			for (let i = 0; i < n; i++) inside[i] |= part[i];
+		}
 		for (let i = 0; i < n; i++) if (inside[i] === 0) { mass[i] = 0; feasible[i] = 0; }
 	}
 	for (const polygon of opts.exclusions ?? []) {

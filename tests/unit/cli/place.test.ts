@@ -56,6 +56,7 @@ beforeAll(() => {
 	});
 	writeFileSync(f('zones.geojson'), JSON.stringify({ type: 'FeatureCollection', features: [box('west', 15.4, 48.21, 15.43, 48.25), box('east', 15.43, 48.21, 15.46, 48.25)] }));
 	writeFileSync(f('exclusions.geojson'), JSON.stringify(box('lake', 15.435, 48.23, 15.445, 48.24)));
+	writeFileSync(f('study.geojson'), JSON.stringify({ type: 'FeatureCollection', features: [box('field', 15.41, 48.22, 15.45, 48.245)] }));
 	writeFileSync(f('broken.geojson'), '{"type": "FeatureCollection", "features": [');
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -142,6 +143,28 @@ describe.concurrent('cairnfield place (greenfield and not-a-TIFF spawn node src/
 		const p = JSON.parse(r.stdout).placement;
 		expect(p.iterations).toBe(7);
 		expect(p.history.map((h: { iteration: number }) => h.iteration)).toEqual([0, 1, 2, 3, 4, 5, 6, 7]);
+	});
+
+	it('--study-area keeps sensors inside; --crs, --cell-size and --zone-grid are honoured', async () => {
+		const r = await runHere([
+			'place', '--importance', f('imp.tif'), '--count', '3', '--radius', '300', '--study-area', f('study.geojson'),
+			'--crs', 'EPSG:3035', '--cell-size', '50', '--zone-grid', '2x1'
+		]);
+		expect(r.stderr).toBe('');
+		const doc = JSON.parse(r.stdout);
+		expect(doc.placement.crs).toBe('EPSG:3035');
+		expect(doc.placement.cell_size_m).toBe(50);
+		expect(doc.placement.zones.map((z: { id: string }) => z.id)).toEqual(['Z1', 'Z2']);
+		for (const feat of doc.features) {
+			const [lon, lat] = feat.geometry.coordinates;
+			expect(lon).toBeGreaterThan(15.41);
+			expect(lon).toBeLessThan(15.45);
+			expect(lat).toBeGreaterThan(48.22);
+			expect(lat).toBeLessThan(48.245);
+			const [x, y] = proj4('EPSG:4326', '+proj=laea +lat_0=52 +lon_0=10 +x_0=4321000 +y_0=3210000 +ellps=GRS80 +units=m', [lon, lat]);
+			expect(Math.abs(x - feat.properties.x)).toBeLessThan(1e-3);
+			expect(Math.abs(y - feat.properties.y)).toBeLessThan(1e-3);
+		}
 	});
 
 	it('--help prints the usage and exits 0', async () => {

@@ -1,5 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { deflateSync } from 'node:zlib';
+import { readFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
 import { writeArrayBuffer } from 'geotiff';
 import { readGeoTiff, RasterError, pixelToCrs, crsToPixel } from '../../../src/lib/geo/geotiff';
 import { encodeTiff, type TiffWriteOptions } from '../../../src/lib/geo/tiff-writer';
@@ -230,5 +232,29 @@ describe('readGeoTiff errors', () => {
 	it('rejects dimensions over the limit', async () => {
 		await expectRasterError(readGeoTiff(encodeTiff(baseOpts({})), { name: 'field.tif', maxPixels: 34 }), 'too-large', /7×5 pixels is over the limit of 34/);
 		await expect(readGeoTiff(encodeTiff(baseOpts({})), { maxPixels: 35 })).resolves.toBeTruthy();
+	});
+});
+
+describe('readGeoTiff on the committed fixtures (tests/fixtures/geo/README.md)', () => {
+	const load = (name: string) => {
+		const b = readFileSync(fileURLToPath(new URL(`../../fixtures/geo/${name}`, import.meta.url)));
+		return b.buffer.slice(b.byteOffset, b.byteOffset + b.byteLength) as ArrayBuffer;
+	};
+	it('utm33-int16-tiled-deflate.tif', async () => {
+		const r = await readGeoTiff(load('utm33-int16-tiled-deflate.tif'), { name: 'utm33-int16-tiled-deflate.tif' });
+		expect([r.width, r.height, r.epsg, r.sampleFormat, r.bitsPerSample, r.compression, r.tiled, r.nodata]).toEqual([20, 12, 32633, 2, 16, 8, true, -32768]);
+		expect(r.transform).toEqual([500000, 30, 0, 5300000, 0, -30]);
+		expect(r.data[0]).toBe(-32768);
+		expect(r.data[1]).toBe(10);
+		expect(r.data[239]).toBe(19 * 10 + 11);
+	});
+	it('wgs84-float32-2band.tif, both bands', async () => {
+		const b1 = await readGeoTiff(load('wgs84-float32-2band.tif'));
+		const b2 = await readGeoTiff(load('wgs84-float32-2band.tif'), { band: 2 });
+		expect([b1.bandCount, b1.epsg, b1.width, b1.height]).toEqual([2, 4326, 8, 6]);
+		expect(b1.nodata).toBeNaN();
+		expect(b1.data[5]).toBe(1.25);
+		expect(b1.data[47]).toBeNaN();
+		expect(b2.data[5]).toBe(95);
 	});
 });

@@ -57,6 +57,15 @@ describe('buildWorkingGrid in the raster’s own projected CRS', () => {
 		expect(grid.mass[0]).toBeCloseTo(5 / 25, 12);
 	});
 
+	it('Float32 nodata written as "9999.99" matches the stored single-precision value', () => {
+		// 9999.99 is not a float32 value: the band holds Math.fround(9999.99) ≠ 9999.99 (positive, so
+		// only the nodata test can reject it).
+		expect(Math.fround(9999.99)).not.toBe(9999.99);
+		const d = Float32Array.from([1, 9999.99, 1, 1]);
+		const { grid } = buildWorkingGrid(band({ width: 2, height: 2, data: d, nodata: 9999.99 }), { sampling: 'nearest' });
+		expect(Array.from(grid.feasible)).toEqual([1, 0, 1, 1]);
+	});
+
 	it('an all-zero raster stays all zero (and feasible)', () => {
 		const { grid } = buildWorkingGrid(band({ width: 4, height: 4, data: new Float32Array(16) }));
 		expect(sum(grid.mass)).toBe(0);
@@ -145,8 +154,8 @@ describe('buildWorkingGrid from WGS 84 into UTM', () => {
 		const raster = geo(new Float32Array(w * h).fill(1));
 		const study: Ring[] = [[[15.45, 48.17], [15.54, 48.17], [15.54, 48.23], [15.45, 48.23]]];
 		const hole: Ring[] = [[[15.48, 48.19], [15.5, 48.19], [15.5, 48.21], [15.48, 48.21]]];
-		const full = buildWorkingGrid(raster, { studyArea: study });
-		const cut = buildWorkingGrid(raster, { studyArea: study, exclusions: [hole] });
+		const full = buildWorkingGrid(raster, { studyArea: [study] });
+		const cut = buildWorkingGrid(raster, { studyArea: [study], exclusions: [hole] });
 		const fwd = transformer(4326, 32633).forward;
 		const area = (ring: Ring) => {
 			const p = ring.map(([lo, la]) => fwd(lo, la));
@@ -169,10 +178,22 @@ describe('buildWorkingGrid from WGS 84 into UTM', () => {
 		expect(full.grid.width * full.grid.height).toBeLessThan(w * h * 1.2);
 	});
 
+	it('a study area of two overlapping polygons is their union (not an even-odd cancellation)', () => {
+		const raster = geo(new Float32Array(w * h).fill(1));
+		const a: Ring[] = [[[15.45, 48.17], [15.5, 48.17], [15.5, 48.22], [15.45, 48.22]]];
+		const b: Ring[] = [[[15.48, 48.17], [15.53, 48.17], [15.53, 48.22], [15.48, 48.22]]];
+		const both = buildWorkingGrid(raster, { studyArea: [a, b] });
+		const g = both.grid;
+		const [x, y] = transformer(4326, 32633).forward(15.49, 48.195); // in the overlap
+		const c = Math.floor((x - g.x0) / g.cellSize);
+		const r = Math.floor((g.y0 - y) / g.cellSize);
+		expect(g.feasible[r * g.width + c]).toBe(1);
+	});
+
 	it('refuses a study area that misses the raster', () => {
 		const raster = geo(new Float32Array(w * h).fill(1));
 		const far: Ring[] = [[[16.5, 48], [16.6, 48], [16.6, 48.1], [16.5, 48.1]]];
-		expect(() => buildWorkingGrid(raster, { studyArea: far })).toThrow(/does not overlap/);
+		expect(() => buildWorkingGrid(raster, { studyArea: [far] })).toThrow(/does not overlap/);
 	});
 });
 
