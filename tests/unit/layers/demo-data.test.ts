@@ -125,7 +125,7 @@ describe('demo data through the engine side readers', () => {
 		const zones = readZones(JSON.parse((await read('zones.geojson')).toString()), 'zones.geojson');
 		expect(zones.map((z) => z.id)).toEqual(['north-fell', 'west-moss', 'south-heath', 'eastern-reach']);
 		const { band } = await loadLayer(await read('soil-moisture.tif'));
-		const { grid, epsg } = buildWorkingGrid(band, { studyArea: study[0], exclusions: lake, cellSize: 250 });
+		const { grid, epsg } = buildWorkingGrid(band, { studyArea: study, exclusions: lake, cellSize: 250 });
 		expect(epsg).toBe(32632);
 		let mass = 0;
 		let feasible = 0;
