@@ -18,10 +18,10 @@ export const DEMO_USERS = [
 ] as const;
 
 export const DEMO_NETWORK = {
-	slug: 'tarnbeck-vale',
-	name: 'Tarnbeck Vale soil moisture',
+	slug: 'vennarrow-vale',
+	name: 'Vennarrow Vale soil moisture',
 	description:
-		'Soil-moisture probes and two cosmic-ray neutron sensors across the invented Tarnbeck Vale catchment: upland pasture, a reservoir and the valley floor.',
+		'Soil-moisture probes and two cosmic-ray neutron sensors across the invented Vennarrow Vale catchment: sandy heath, pine stands, the Vennarrow Water reservoir and the beck's valley floor.',
 	public_text: 'A demonstration network in an invented catchment. All data are generated.'
 };
 

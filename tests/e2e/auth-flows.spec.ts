@@ -6,7 +6,7 @@ test.describe('signing in and out', () => {
 		const u = demoUser('analyst');
 		await signInPage(page, u.email, u.password);
 		await expect(page.getByRole('heading', { name: 'Networks' })).toBeVisible();
-		await expect(page.getByRole('link', { name: 'Tarnbeck Vale soil moisture' })).toBeVisible();
+		await expect(page.getByRole('link', { name: 'Vennarrow Vale soil moisture' })).toBeVisible();
 		await expect(page.getByRole('link', { name: 'Users' })).toHaveCount(0);
 		await page.getByRole('button', { name: 'Sign out' }).click();
 		await expect(page).toHaveURL(/\/signin/);
@@ -94,6 +94,7 @@ test.describe.serial('invitation, role change and password reset', () => {
 		const t0 = Date.now() - 1000;
 		await page.goto('/signin');
 		await page.getByRole('link', { name: 'Forgot your password?' }).click();
+		await expect(page).toHaveURL(/\/reset$/);
 		await page.getByLabel('E-mail').fill(email);
 		await page.getByRole('button', { name: 'Send the link' }).click();
 		await expect(page.getByText('we have sent a link')).toBeVisible();

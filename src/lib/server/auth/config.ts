@@ -35,7 +35,7 @@ export function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 		logger: { error: (e) => { if ((e as { type?: string }).type !== 'CredentialsSignin') console.error(e); }, warn: () => {} },
 		adapter: knexAdapter(db),
 		session: { strategy: 'jwt', maxAge: 7 * 24 * 3600 },
-		pages: { signIn: '/signin', error: '/signin', verifyRequest: '/signin?sent=1' },
+		pages: { signIn: '/signin', error: '/signin' },
 		providers: [
 			Credentials({
 				id: 'password',

@@ -48,6 +48,12 @@ export const actions = {
 		const email = String(data.get('email') ?? '').trim();
 		if (!/^[^\s@]+@[^\s@]+\.[^\s@]+$/.test(email)) return fail(400, { form: 'link', email, message: 'Enter a valid e-mail address.' });
 		if (data.get('providerId') !== 'link') return fail(400, { form: 'link', email, message: 'Reload the page and try again.' });
-		await signIn(event);
+		try {
+			await signIn(event);
+		} catch (err) {
+			// Auth.js answers with its own "check your e-mail" page; show ours instead.
+			if (isRedirect(err) && err.location.includes('verify-request')) redirect(303, '/signin?sent=1');
+			throw err;
+		}
 	}
 } satisfies Actions;
