@@ -21,7 +21,7 @@ export const DEMO_NETWORK = {
 	slug: 'vennarrow-vale',
 	name: 'Vennarrow Vale soil moisture',
 	description:
-		'Soil-moisture probes and two cosmic-ray neutron sensors across the invented Vennarrow Vale catchment: sandy heath, pine stands, the Vennarrow Water reservoir and the beck's valley floor.',
+		'Soil-moisture probes and two cosmic-ray neutron sensors across the invented Vennarrow Vale catchment: sandy heath, pine stands, the Vennarrow Water reservoir and the valley floor along the beck.',
 	public_text: 'A demonstration network in an invented catchment. All data are generated.'
 };
 

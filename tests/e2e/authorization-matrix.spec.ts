@@ -35,7 +35,7 @@ const checks: Check[] = [
 	{ name: 'network list', method: 'GET', path: '/networks', expect: signedIn(200) },
 	{ name: 'new network page', method: 'GET', path: '/networks/new', expect: adminOnly(200) },
 	{ name: 'network overview', method: 'GET', path: '/networks/1', expect: signedIn(200) },
-	{ name: 'missing network', method: 'GET', path: '/networks/999999', expect: page(404, 404, 404, 404, 404) },
+	{ name: 'missing network', method: 'GET', path: '/networks/999999', expect: page(303, 404, 404, 404, 404) },
 	{ name: 'non-numeric network id', method: 'GET', path: '/networks/abc', expect: page(404, 404, 404, 404, 404) },
 	{ name: 'profile', method: 'GET', path: '/profile', expect: signedIn(200) },
 	{ name: 'user administration', method: 'GET', path: '/admin/users', expect: adminOnly(200) },

@@ -20,5 +20,19 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/(admin)/admin/users': 'signed-in',
 	'/(admin)/admin/audit': 'signed-in',
 	'/api/v1/networks': 'signed-in',
-	'/api/v1/networks/[id=id]': 'signed-in'
+	'/api/v1/networks/[id=id]': 'signed-in',
+
+	// Map
+	'/(app)/networks/[id=id]/map': 'signed-in',
+	// (map routes end)
+
+	// Layers and importance
+	'/(app)/networks/[id=id]/layers': 'signed-in',
+	'/(app)/networks/[id=id]/importance': 'signed-in',
+	// (layers routes end)
+
+	// Sensors, study area and zones
+	'/(app)/networks/[id=id]/sensors': 'signed-in',
+	'/(app)/networks/[id=id]/zones': 'signed-in'
+	// (sensors routes end)
 };

@@ -1,23 +1,13 @@
-import { error, fail } from '@sveltejs/kit';
-import type { Actions, PageServerLoad, RequestEvent } from './$types';
+import { fail } from '@sveltejs/kit';
+import type { Actions, PageServerLoad } from './$types';
 import { getDb } from '$lib/server/db';
-import { requirePermission } from '$lib/server/auth/guard';
+import { networkAccess } from '$lib/server/auth/network-access';
 import { roleAllows } from '$lib/server/auth/roles';
 import { formFields, parseForm, serviceFailure } from '$lib/server/forms';
-import { findNetwork } from '$lib/server/repositories/networks';
 import { networkPatch, publicView, updateNetworkDetails } from '$lib/server/services/networks';
-import { roleIn } from '$lib/server/auth/actor';
-
-/** Loads the network and checks that the actor may see it (404 when it is in another organisation). */
-async function visibleNetwork(event: RequestEvent) {
-	const network = await findNetwork(getDb(), Number(event.params.id));
-	if (!network || (event.locals.actor && !roleIn(event.locals.actor, network.organisation_id))) error(404, 'No such network.');
-	return network;
-}
 
 export const load = (async (event) => {
-	const network = await visibleNetwork(event);
-	const { role } = requirePermission(event, 'network.view', network.organisation_id);
+	const { network, role } = await networkAccess(event, 'network.view');
 	return {
 		network: publicView(network),
 		role,
@@ -28,8 +18,7 @@ export const load = (async (event) => {
 
 export const actions = {
 	update: async (event) => {
-		const network = await visibleNetwork(event);
-		const { actor, role } = requirePermission(event, 'network.edit', network.organisation_id);
+		const { network, actor, role } = await networkAccess(event, 'network.edit');
 		const values = formFields(await event.request.formData(), ['name', 'description', 'crsEpsg', 'publicText', 'version']);
 		const input: Record<string, unknown> = { ...values, crsEpsg: values.crsEpsg ? values.crsEpsg : null };
 		const parsed = parseForm(networkPatch, input as Record<string, string>, ['name', 'description', 'crsEpsg', 'publicText']);
@@ -42,8 +31,7 @@ export const actions = {
 		return { saved: true };
 	},
 	publication: async (event) => {
-		const network = await visibleNetwork(event);
-		const { actor } = requirePermission(event, 'network.publish', network.organisation_id);
+		const { network, actor } = await networkAccess(event, 'network.publish');
 		const data = await event.request.formData();
 		const parsed = networkPatch.safeParse({ publication: data.get('publication'), version: data.get('version') });
 		if (!parsed.success) return fail(400, { errors: { publication: 'Choose public or private.' } });

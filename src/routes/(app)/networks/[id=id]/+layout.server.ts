@@ -1,0 +1,22 @@
+import type { LayoutServerLoad } from './$types';
+import { networkAccess } from '$lib/server/auth/network-access';
+import { roleAllows } from '$lib/server/auth/roles';
+
+// The network's name and which tabs the role sees. Each page still checks its own permission.
+export const load = (async (event) => {
+	const { network, role } = await networkAccess(event, 'network.view');
+	return {
+		networkNav: {
+			id: network.id,
+			name: network.name,
+			tabs: [
+				{ href: '', label: 'Overview', show: true },
+				{ href: '/map', label: 'Map', show: true },
+				{ href: '/layers', label: 'Layers', show: roleAllows(role, 'layer.view') },
+				{ href: '/importance', label: 'Importance', show: roleAllows(role, 'layer.view') },
+				{ href: '/sensors', label: 'Sensors', show: roleAllows(role, 'sensor.view') },
+				{ href: '/zones', label: 'Area & zones', show: roleAllows(role, 'layer.view') }
+			].filter((t) => t.show)
+		}
+	};
+}) satisfies LayoutServerLoad;
