@@ -8,6 +8,7 @@
  *   npm test                 everything
  *   npm test -- unit         vitest only (no browser)
  *   npm test -- e2e          Playwright only
+ *   npm test -- unit tests/unit/engine      vitest on some files only (the same for e2e)
  */
 import { spawn } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
@@ -21,6 +22,7 @@ import { ensureDebianPackages, freePort, log, portInUse, waitFor } from './syste
 
 const root = path.resolve(import.meta.dirname, '../..');
 const only = process.argv[2] as 'unit' | 'e2e' | undefined;
+const filters = process.argv.slice(3);
 const bin = (name: string) => path.join(root, 'node_modules', '.bin', name);
 
 interface Counts {
@@ -90,7 +92,7 @@ try {
 	if (only !== 'e2e') {
 		log('unit and integration tests (vitest)');
 		const report = path.join(tmp, 'vitest.json');
-		const code = await run(bin('vitest'), ['run', '--reporter=default', '--reporter=json', `--outputFile.json=${report}`], env);
+		const code = await run(bin('vitest'), ['run', '--reporter=default', '--reporter=json', `--outputFile.json=${report}`, ...filters], env);
 		const r = readJson(report) as { numPassedTests: number; numFailedTests: number; numPendingTests: number; numTodoTests: number } | null;
 		if (r) {
 			total.passed += r.numPassedTests;
@@ -124,7 +126,7 @@ try {
 		await waitFor('the app to listen', () => portInUse(appPort), 30_000);
 		log(`end-to-end tests (Playwright, /usr/bin/chromium) against ${origin}`);
 		const report = path.join(tmp, 'playwright.json');
-		const code = await run(bin('playwright'), ['test'], { ...env, BASE_URL: origin, PLAYWRIGHT_JSON_OUTPUT_NAME: report });
+		const code = await run(bin('playwright'), ['test', ...filters], { ...env, BASE_URL: origin, PLAYWRIGHT_JSON_OUTPUT_NAME: report });
 		const r = readJson(report) as { stats: { expected: number; unexpected: number; flaky: number; skipped: number } } | null;
 		if (r) {
 			total.passed += r.stats.expected + r.stats.flaky;
