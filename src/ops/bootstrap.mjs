@@ -3,7 +3,8 @@
 // project's packages when they are missing or older than package-lock.json, then hands over to the
 // TypeScript entry (start.ts or test.ts) through tsx.
 import { spawnSync, spawn } from 'node:child_process';
-import { existsSync, statSync } from 'node:fs';
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { createHash } from 'node:crypto';
 import { fileURLToPath } from 'node:url';
 import path from 'node:path';
 
@@ -14,9 +15,11 @@ if (entry !== 'start' && entry !== 'test') {
 	process.exit(2);
 }
 
+// node_modules is current when it was installed from this very package-lock.json (by content).
 const lock = path.join(root, 'package-lock.json');
-const marker = path.join(root, 'node_modules', '.package-lock.json');
-const stale = !existsSync(marker) || (existsSync(lock) && statSync(lock).mtimeMs > statSync(marker).mtimeMs + 1000);
+const stamp = path.join(root, 'node_modules', '.cairnfield-lock-hash');
+const lockHash = createHash('sha256').update(readFileSync(lock)).digest('hex');
+const stale = !existsSync(stamp) || readFileSync(stamp, 'utf8').trim() !== lockHash;
 if (stale) {
 	console.log('› installing packages (npm ci)…');
 	const r = spawnSync('npm', ['ci', '--no-audit', '--no-fund'], { cwd: root, stdio: 'inherit' });
@@ -24,6 +27,7 @@ if (stale) {
 		console.error('npm ci failed');
 		process.exit(r.status ?? 1);
 	}
+	writeFileSync(stamp, lockHash + '\n');
 }
 
 const tsx = path.join(root, 'node_modules', '.bin', 'tsx');
