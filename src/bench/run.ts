@@ -5,8 +5,8 @@ export {};
  * Each module under src/bench/ exports `run(args: string[]): Promise<void>`.
  */
 const suites: Record<string, () => Promise<{ run: (args: string[]) => Promise<void> }>> = {
-	lloyd: () => import('./lloyd.ts'),
-	ingest: () => import('./ingest.ts')
+	lloyd: () => import('./lloyd'),
+	ingest: () => import('./ingest')
 };
 
 const wanted = process.argv.slice(2).filter((a) => !a.startsWith('-'));
