@@ -8,6 +8,7 @@
  *   npm test                 everything
  *   npm test -- unit         vitest only (no browser)
  *   npm test -- e2e          Playwright only
+ *   (the full run also type-checks with svelte-check, counted as one test)
  *   npm test -- unit tests/unit/engine      vitest on some files only (the same for e2e)
  */
 import { spawn } from 'node:child_process';
@@ -88,6 +89,17 @@ try {
 		AUTH_SECRET: 'test-secret-not-for-production-0123456789abcdef',
 		STORAGE_DIR: path.join(tmp, 'objects')
 	};
+
+	if (only === undefined) {
+		log('type check (svelte-check)');
+		const sync = await run(bin('svelte-kit'), ['sync'], env);
+		const code = sync === 0 ? await run(bin('svelte-check'), ['--tsconfig', './tsconfig.json', '--output', 'machine-verbose', '--fail-on-warnings'], env) : sync;
+		if (code === 0) total.passed += 1;
+		else {
+			total.failed += 1;
+			exitCode = 1;
+		}
+	}
 
 	if (only !== 'e2e') {
 		log('unit and integration tests (vitest)');
