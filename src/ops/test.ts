@@ -93,7 +93,7 @@ try {
 	if (only === undefined) {
 		log('type check (svelte-check)');
 		const sync = await run(bin('svelte-kit'), ['sync'], env);
-		const code = sync === 0 ? await run(bin('svelte-check'), ['--tsconfig', './tsconfig.json', '--output', 'machine-verbose', '--fail-on-warnings'], env) : sync;
+		const code = sync === 0 ? await run(bin('svelte-check'), ['--tsconfig', './tsconfig.json', '--output', 'human', '--fail-on-warnings'], env) : sync;
 		if (code === 0) total.passed += 1;
 		else {
 			total.failed += 1;
