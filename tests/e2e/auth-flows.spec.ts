@@ -79,13 +79,15 @@ test.describe.serial('invitation, role change and password reset', () => {
 		await page.reload();
 		const row = page.getByRole('row', { name: /Wren Hollis/ });
 		await row.getByRole('combobox').selectOption('admin');
-		await row.getByRole('button', { name: 'Change' }).click();
-		await expect(page.getByRole('row', { name: /Wren Hollis/ }).getByRole('combobox')).toHaveValue('admin');
+		// Wait for the action's answer: the select shows the new value before the server has it.
+		await Promise.all([page.waitForResponse((r) => r.url().includes('?/role') && r.request().method() === 'POST'), row.getByRole('button', { name: 'Change' }).click()]);
 		const res = await p2.goto('/admin/users');
 		expect(res?.status()).toBe(200);
 		await page.getByRole('row', { name: /Wren Hollis/ }).getByRole('combobox').selectOption('technician');
-		await page.getByRole('row', { name: /Wren Hollis/ }).getByRole('button', { name: 'Change' }).click();
-		await expect(page.getByRole('row', { name: /Wren Hollis/ }).getByRole('combobox')).toHaveValue('technician');
+		await Promise.all([
+			page.waitForResponse((r) => r.url().includes('?/role') && r.request().method() === 'POST'),
+			page.getByRole('row', { name: /Wren Hollis/ }).getByRole('button', { name: 'Change' }).click()
+		]);
 		expect((await p2.goto('/admin/users'))?.status()).toBe(403);
 		await ctx.close();
 	});
