@@ -14,6 +14,8 @@ export async function startFakeSmtp(port: number, dir: string): Promise<{ close(
 	let seq = 0;
 	const server = new SMTPServer({
 		authOptional: true,
+		// Close promptly on shutdown instead of waiting for idle clients.
+		closeTimeout: 2000,
 		disabledCommands: ['STARTTLS'],
 		logger: false,
 		banner: 'Cairnfield local mail catcher',

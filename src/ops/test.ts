@@ -49,7 +49,8 @@ function readJson(file: string): unknown {
 async function cleanup(): Promise<void> {
 	for (const fn of cleanups.reverse()) {
 		try {
-			await fn();
+			// No clean-up step may hang the run (a lingering SMTP connection, say): 15 s each at most.
+			await Promise.race([Promise.resolve().then(fn), new Promise((resolve) => setTimeout(resolve, 15_000).unref())]);
 		} catch (err) {
 			console.error(`clean-up step failed: ${err instanceof Error ? err.message : err}`);
 		}
