@@ -3,7 +3,6 @@
  * nodata value, through the `geotiff` package. Everything that can go wrong with a user's file
  * becomes a RasterError whose message names the file and the reason.
  */
-import { fromArrayBuffer } from 'geotiff';
 import type GeoTIFF from 'geotiff';
 import type { GeoTIFFImage } from 'geotiff';
 import { isKnownCrs } from './crs';
@@ -173,7 +172,9 @@ export async function readGeoTiff(buffer: ArrayBuffer, opts: ReadGeoTiffOptions 
 	let tiff: GeoTIFF;
 	let image: GeoTIFFImage;
 	try {
-		tiff = await fromArrayBuffer(buffer);
+		// Loaded on first use: geotiff pulls in web-worker, which breaks when imported inside
+		// SvelteKit's build-time analysis worker.
+		tiff = await (await import('geotiff')).fromArrayBuffer(buffer);
 		image = await tiff.getImage(0);
 	} catch (e) {
 		throw new RasterError(file, 'corrupt', `corrupt TIFF (${errorText(e)})`);
