@@ -19,6 +19,7 @@ import {
 	listZoneSets,
 	networkZoneSetId,
 	setNetworkZoneSet,
+	setZoneShare,
 	type ZoneRow,
 	type ZoneSetKind,
 	type ZoneSetRow
@@ -30,6 +31,10 @@ import { computeZones } from '../../engine/zones';
 import { rasterizeZones } from '../../engine/rasterize';
 import type { WorkingGrid, ZoneMap } from '../../engine/types';
 import { EngineInputError } from '../../engine/errors';
+import { buildWorkingGrid } from '../../geo/working-grid';
+import type { ObjectStore } from '../storage';
+import { networkImportance, surfaceRasterBand } from './importance';
+import { exclusionList } from './areas';
 import { workingCrsOf } from './sensors';
 import { ServiceError } from './errors';
 
@@ -243,6 +248,41 @@ function sharesOfMap(grid: WorkingGrid, map: ZoneMap): (number | null)[] {
 		if (z >= 0) sums[z] += m;
 	}
 	return total > 0 ? Array.from(sums, (s) => s / total) : map.ids.map(() => null);
+}
+
+/** Largest importance grid used for zones; coarser cells are taken beyond it (zones are coarse). */
+const MAX_ZONE_GRID_CELLS = 250_000;
+
+/**
+ * The network's importance (its chosen recipe version) on the working grid, clipped to the study
+ * area and with exclusions at zero; null when no recipe version is chosen yet.
+ */
+export async function importanceForZones(db: Knex, store: ObjectStore, network: NetworkRow): Promise<ImportanceSurface | null> {
+	const imp = await networkImportance(db, store, network.id);
+	if (!imp) return null;
+	const area = network.study_area as MultiPolygonGeometry | null;
+	const opts = {
+		crs: workingCrsOf(network),
+		studyArea: area?.coordinates?.length ? area.coordinates : undefined,
+		exclusions: exclusionList(network.exclusions).map((f) => f.geometry.coordinates).flat()
+	};
+	let { grid } = buildWorkingGrid(surfaceRasterBand(imp), opts);
+	const cells = grid.width * grid.height;
+	if (cells > MAX_ZONE_GRID_CELLS) ({ grid } = buildWorkingGrid(surfaceRasterBand(imp), { ...opts, cellSize: grid.cellSize * Math.sqrt(cells / MAX_ZONE_GRID_CELLS) }));
+	return { grid, recipeVersionId: imp.recipeVersionId };
+}
+
+/** Re-measure the shares of a zone set against the current importance (or clear them). */
+export async function measureZoneSet(db: Knex, network: NetworkRow, actorId: number, zoneSetId: number, importance: ImportanceSurface | null): Promise<void> {
+	await db.transaction(async (trx) => {
+		const set = await findZoneSet(trx, network.id, zoneSetId);
+		if (!set) throw new ServiceError(404, 'not_found', 'No such zone set.');
+		const zones = await listZones(trx, [set.id]);
+		const shares = importance ? zoneShares(importance.grid, zones.map((z) => z.geometry)) : zones.map(() => null);
+		for (let k = 0; k < zones.length; k++) await setZoneShare(trx, zones[k].id, shares[k]);
+		await trx('zone_sets').where({ id: set.id }).update({ recipe_version_id: importance?.recipeVersionId ?? null });
+		await recordAudit(trx, { organisationId: network.organisation_id, actorUserId: actorId, action: 'zone_set.measure', objectType: 'zone_set', objectId: set.id, after: { recipe_version_id: importance?.recipeVersionId ?? null } });
+	});
 }
 
 // ---------------------------------------------------------------- inputs
