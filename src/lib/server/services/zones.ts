@@ -24,7 +24,7 @@ import {
 	type ZoneSetKind,
 	type ZoneSetRow
 } from '../repositories/zones';
-import { parsePolygonUpload, PolygonError, ringArea2, type MultiPolygonGeometry, type Position, type Ring } from '../../geo/polygons';
+import { parsePolygonUpload, PolygonError, ringArea2, type MultiPolygonGeometry, type Position } from '../../geo/polygons';
 import { projectRings } from '../../geo/geojson';
 import { parseEpsg, transformer } from '../../geo/crs';
 import { computeZones } from '../../engine/zones';
@@ -34,7 +34,7 @@ import { EngineInputError } from '../../engine/errors';
 import { buildWorkingGrid } from '../../geo/working-grid';
 import type { ObjectStore } from '../storage';
 import { networkImportance, surfaceRasterBand } from './importance';
-import { exclusionList } from './areas';
+import { exclusionList, studyAreaMultiPolygon } from './areas';
 import { workingCrsOf } from './sensors';
 import { ServiceError } from './errors';
 
@@ -260,7 +260,7 @@ const MAX_ZONE_GRID_CELLS = 250_000;
 export async function importanceForZones(db: Knex, store: ObjectStore, network: NetworkRow): Promise<ImportanceSurface | null> {
 	const imp = await networkImportance(db, store, network.id);
 	if (!imp) return null;
-	const area = network.study_area as MultiPolygonGeometry | null;
+	const area = studyAreaMultiPolygon(network.study_area);
 	const opts = {
 		crs: workingCrsOf(network),
 		studyArea: area?.coordinates?.length ? area.coordinates : undefined,
@@ -304,9 +304,8 @@ export const zoneSetApiInput = z.discriminatedUnion('kind', [
 // ---------------------------------------------------------------- use cases
 
 function studyAreaOf(network: NetworkRow): MultiPolygonGeometry {
-	const a = network.study_area as MultiPolygonGeometry | null;
-	if (!a || !Array.isArray(a.coordinates) || a.coordinates.length === 0) throw new ServiceError(422, 'no_study_area', 'Outline the study area first.');
-	if ((a as { type: string }).type === 'Polygon') return { type: 'MultiPolygon', coordinates: [a.coordinates as unknown as Ring[]] };
+	const a = studyAreaMultiPolygon(network.study_area);
+	if (!a) throw new ServiceError(422, 'no_study_area', 'Outline the study area first.');
 	return a;
 }
 
