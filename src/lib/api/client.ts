@@ -233,6 +233,7 @@ export interface ZoneSet {
 	kind: 'uploaded' | 'grid' | 'computed';
 	params: Record<string, unknown> | null;
 	inUse: boolean;
+	recipeVersionId: number | null;
 	createdAt: string;
 	zones: Zone[];
 }

@@ -26,12 +26,13 @@ import {
 } from '../repositories/zones';
 import { parsePolygonUpload, PolygonError, ringArea2, type MultiPolygonGeometry, type Position } from '../../geo/polygons';
 import { projectRings } from '../../geo/geojson';
-import { parseEpsg, transformer } from '../../geo/crs';
+import { CrsError, parseEpsg, transformer } from '../../geo/crs';
 import { computeZones } from '../../engine/zones';
 import { rasterizeZones } from '../../engine/rasterize';
 import type { WorkingGrid, ZoneMap } from '../../engine/types';
 import { EngineInputError } from '../../engine/errors';
-import { buildWorkingGrid } from '../../geo/working-grid';
+import { buildWorkingGrid, WorkingGridError } from '../../geo/working-grid';
+import { ImportanceError } from '../../importance/grid';
 import type { ObjectStore } from '../storage';
 import { networkImportance, surfaceRasterBand } from './importance';
 import { exclusionList, studyAreaMultiPolygon } from './areas';
@@ -258,18 +259,26 @@ const MAX_ZONE_GRID_CELLS = 250_000;
  * area and with exclusions at zero; null when no recipe version is chosen yet.
  */
 export async function importanceForZones(db: Knex, store: ObjectStore, network: NetworkRow): Promise<ImportanceSurface | null> {
-	const imp = await networkImportance(db, store, network.id);
-	if (!imp) return null;
-	const area = studyAreaMultiPolygon(network.study_area);
-	const opts = {
-		crs: workingCrsOf(network),
-		studyArea: area?.coordinates?.length ? area.coordinates : undefined,
-		exclusions: exclusionList(network.exclusions).map((f) => f.geometry.coordinates).flat()
-	};
-	let { grid } = buildWorkingGrid(surfaceRasterBand(imp), opts);
-	const cells = grid.width * grid.height;
-	if (cells > MAX_ZONE_GRID_CELLS) ({ grid } = buildWorkingGrid(surfaceRasterBand(imp), { ...opts, cellSize: grid.cellSize * Math.sqrt(cells / MAX_ZONE_GRID_CELLS) }));
-	return { grid, recipeVersionId: imp.recipeVersionId };
+	try {
+		const imp = await networkImportance(db, store, network.id);
+		if (!imp) return null;
+		const area = studyAreaMultiPolygon(network.study_area);
+		const opts = {
+			crs: workingCrsOf(network),
+			studyArea: area?.coordinates?.length ? area.coordinates : undefined,
+			exclusions: exclusionList(network.exclusions).map((f) => f.geometry.coordinates).flat()
+		};
+		let { grid } = buildWorkingGrid(surfaceRasterBand(imp), opts);
+		const cells = grid.width * grid.height;
+		if (cells > MAX_ZONE_GRID_CELLS) ({ grid } = buildWorkingGrid(surfaceRasterBand(imp), { ...opts, cellSize: grid.cellSize * Math.sqrt(cells / MAX_ZONE_GRID_CELLS) }));
+		return { grid, recipeVersionId: imp.recipeVersionId };
+	} catch (e) {
+		// A recipe that cannot be computed (a layer gone, a grid outside the study area …): say so.
+		if (e instanceof ImportanceError || e instanceof WorkingGridError || e instanceof CrsError) {
+			throw new ServiceError(422, 'importance_unavailable', `The importance cannot be measured: ${e.message}`);
+		}
+		throw e;
+	}
 }
 
 /** Re-measure the shares of a zone set against the current importance (or clear them). */
@@ -403,6 +412,8 @@ export interface ZoneSetView {
 	kind: ZoneSetKind;
 	params: Record<string, unknown> | null;
 	inUse: boolean;
+	/** The importance recipe version the shares were measured with (null: not measured). */
+	recipeVersionId: number | null;
 	createdAt: Date;
 	zones: ZoneView[];
 }
@@ -414,6 +425,7 @@ function view(set: ZoneSetRow, zones: ZoneRow[], points: { lon: number; lat: num
 		kind: set.kind,
 		params: set.params,
 		inUse,
+		recipeVersionId: set.recipe_version_id,
 		createdAt: set.created_at,
 		zones: zones.map((z) => ({
 			id: z.id,
