@@ -2,6 +2,7 @@
  * Area & zones tab end to end: the analyst uploads the demo study area, exclusions and zones,
  * lays a 3 km grid and sees each zone's share and sensor count. Works on a network of its own.
  */
+import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test, type APIRequestContext } from '@playwright/test';
 import { contextFor, demoUser, signInPage } from './support';
@@ -83,8 +84,29 @@ test('the analyst uploads the study area, exclusions and zones, lays a 3 km grid
 	await expect(page.getByTestId('zone-set').filter({ hasText: 'regular grid' }).getByText('in use')).toBeVisible();
 	await page.screenshot({ path: '/tmp/inventory-zones.png', fullPage: true });
 
-	// The same through the JSON API.
+	// With an importance recipe (the demo soil moisture, inverted: drier = more important), the shares are measured.
 	const analyst: APIRequestContext = await contextFor('analyst');
+	const up = await analyst.post(`/api/v1/networks/${networkId}/layers?name=soil&kind=soil_moisture&fileName=soil-moisture.tif`, {
+		data: readFileSync(path.join(demoDir, 'soil-moisture.tif')),
+		headers: { accept: 'application/json', 'content-type': 'application/octet-stream' }
+	});
+	expect(up.status(), await up.text()).toBe(201);
+	const layer = (await up.json()).layer;
+	const rec = await analyst.post(`/api/v1/networks/${networkId}/recipes`, { data: { name: 'Dry', definition: { layers: [{ layerId: String(layer.id), transform: 'invert', weight: 1 }] } }, headers: { accept: 'application/json' } });
+	expect(rec.status(), await rec.text()).toBe(201);
+	const cur = await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId: (await rec.json()).version.id }, headers: { accept: 'application/json' } });
+	expect(cur.status(), await cur.text()).toBe(200);
+	await page.reload();
+	const uploadedSet = page.getByTestId('zone-set').filter({ hasText: 'uploaded polygons' });
+	await expect(uploadedSet.getByText('Shares not measured with the current importance recipe')).toBeVisible();
+	await uploadedSet.getByRole('button', { name: 'Measure shares' }).click();
+	await expect(page.getByText('Shares measured with the current importance.')).toBeVisible();
+	const foot = page.getByTestId('zone-set').filter({ hasText: 'uploaded polygons' }).getByTestId('zone-table').locator('tfoot');
+	await expect(foot).toContainText(/(99\.[5-9]|100\.0) %/);
+	await expect(page.getByTestId('zone-set').filter({ hasText: 'uploaded polygons' }).getByTestId('zone-table').locator('tbody tr').first()).toContainText('%');
+	await page.screenshot({ path: '/tmp/inventory-zones-shares.png', fullPage: true });
+
+	// The same through the JSON API.
 	const sets = await (await analyst.get(`/api/v1/networks/${networkId}/zone-sets`, { headers: { accept: 'application/json' } })).json();
 	const inUse = sets.zoneSets.find((s: { inUse: boolean }) => s.inUse);
 	expect(inUse.kind).toBe('grid');
