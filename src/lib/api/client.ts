@@ -43,6 +43,203 @@ export interface NetworkPatch {
 	publication?: 'private' | 'published';
 }
 
+// ---- Layers and importance recipes (types) ----------------------------------------------
+export type LayerKind = 'soil_moisture' | 'vegetation_index' | 'elevation' | 'other';
+export type LayerPlatform = 'satellite' | 'aircraft' | 'drone' | 'model' | 'other';
+
+export interface Layer {
+	id: number;
+	name: string;
+	kind: LayerKind;
+	units: string;
+	acquiredOn: string | null;
+	platform: LayerPlatform;
+	status: 'uploading' | 'processing' | 'ready' | 'failed';
+	error: string | null;
+	originalName: string;
+	sizeBytes: number;
+	band: number;
+	bandCount: number | null;
+	width: number | null;
+	height: number | null;
+	epsg: number | null;
+	resolution: { x: number; y: number } | null;
+	nodata: number | null;
+	footprint: { bbox: [number, number, number, number]; polygon: { type: 'Polygon'; coordinates: [number, number][][] } } | null;
+	stats: { min: number; max: number; mean: number; std: number; validCount: number } | null;
+	histogram: { edges: number[]; counts: number[] } | null;
+	hasPreview: boolean;
+	createdAt: string;
+}
+
+export interface LayerUploadMeta {
+	name: string;
+	kind: LayerKind;
+	units?: string;
+	acquiredOn?: string;
+	platform?: LayerPlatform;
+	band?: number;
+	fileName?: string;
+}
+
+export type RecipeTransform = 'identity' | 'invert' | 'minmax' | 'band' | 'variability';
+
+export interface RecipeStepInput {
+	layerId: string;
+	transform: RecipeTransform;
+	weight: number;
+	params?: { lo?: number; hi?: number; soft?: number; distanceM?: number };
+}
+
+export interface RecipeDefinition {
+	layers: RecipeStepInput[];
+}
+
+export interface RecipeVersion {
+	id: number;
+	recipeId: number;
+	version: number;
+	definition: RecipeDefinition;
+	note: string;
+	createdBy: string | null;
+	createdAt: string;
+	hasSurface: boolean;
+}
+
+export interface Recipe {
+	id: number;
+	name: string;
+	latestVersion: number;
+	versions: RecipeVersion[];
+}
+
+export interface RecipePreview {
+	/** PNG, base64. */
+	png: string;
+	width: number;
+	height: number;
+	grid: { epsg: number; width: number; height: number; x0: number; y0: number; dx: number; dy: number; units?: 'metre' | 'degree' };
+	validCount: number;
+	min: number;
+	max: number;
+	mean: number;
+	legend: { value: number; colour: string }[];
+}
+
+/** URL of a layer's preview PNG. */
+export function layerPreviewUrl(networkId: number, layerId: number, base = '/api/v1'): string {
+	return `${base}/networks/${networkId}/layers/${layerId}/preview.png`;
+}
+
+/** Query string carrying an upload's metadata (the body is the file itself). */
+export function layerUploadQuery(meta: LayerUploadMeta): string {
+	const q = new URLSearchParams();
+	for (const [k, v] of Object.entries(meta)) if (v !== undefined && v !== '') q.set(k, String(v));
+	return q.toString();
+}
+// ---- (layers and recipes types end) -------------------------------------------------------
+
+// ---- Sensors, study area and zones (types) --------------------------------------------------
+export type Mobility = 'fixed' | 'relocatable' | 'mobile';
+export type SensorStatus = 'active' | 'faulty' | 'retired';
+
+export interface SensorType {
+	id: number;
+	name: string;
+	radiusM: number;
+	mobility: Mobility;
+	relocationMinutes: number | null;
+	notes: string;
+}
+export interface SensorTypeInput {
+	name: string;
+	radiusM: number;
+	mobility: Mobility;
+	relocationMinutes?: number | null;
+	notes?: string;
+}
+export interface Sensor {
+	id: number;
+	code: string;
+	serial: string;
+	typeId: number;
+	type: string;
+	lon: number;
+	lat: number;
+	/** In the working CRS (metres), null when it is not known. */
+	x: number | null;
+	y: number | null;
+	status: SensorStatus;
+	installedOn: string | null;
+	notes: string;
+	version: number;
+}
+/** lon/lat (positionMode 'lonlat', the default) or x/y in the working CRS (positionMode 'xy'). */
+export interface SensorInput {
+	code: string;
+	serial: string;
+	typeId: number;
+	positionMode?: 'lonlat' | 'xy';
+	lon?: number;
+	lat?: number;
+	x?: number;
+	y?: number;
+	installedOn?: string | null;
+	status?: SensorStatus;
+	notes?: string;
+}
+export interface SensorListQuery {
+	sort?: 'code' | 'serial' | 'type' | 'status' | 'installed_on' | 'lon' | 'lat';
+	dir?: 'asc' | 'desc';
+	type?: number;
+	status?: SensorStatus;
+	q?: string;
+	page?: number;
+	perPage?: 10 | 25 | 50 | 100;
+}
+export interface SensorList {
+	sensors: Sensor[];
+	total: number;
+	page: number;
+	pages: number;
+	perPage: number;
+	workingCrs: number | null;
+}
+export interface GeoMultiPolygon {
+	type: 'MultiPolygon';
+	coordinates: [number, number][][][];
+}
+export interface ExclusionFeature {
+	type: 'Feature';
+	properties: { name: string };
+	geometry: GeoMultiPolygon;
+}
+export interface NetworkArea {
+	version: number;
+	studyArea: GeoMultiPolygon | null;
+	exclusions: ExclusionFeature[];
+}
+export interface Zone {
+	id: number;
+	code: string;
+	name: string;
+	importanceShare: number | null;
+	sensorCount: number;
+	geometry?: GeoMultiPolygon;
+}
+export interface ZoneSet {
+	id: number;
+	name: string;
+	kind: 'uploaded' | 'grid' | 'computed';
+	params: Record<string, unknown> | null;
+	inUse: boolean;
+	recipeVersionId: number | null;
+	createdAt: string;
+	zones: Zone[];
+}
+export type ZoneSetInput = { kind: 'uploaded'; name?: string; geojson: unknown } | { kind: 'grid'; name?: string; cellSizeKm: number } | { kind: 'computed'; name?: string; k: number };
+// ---- (sensors and zones types end) -----------------------------------------------------------
+
 type Fetch = typeof fetch;
 
 export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
@@ -66,6 +263,54 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		createNetwork: (input: { name: string; description?: string; crsEpsg?: number | null; publicText?: string }) =>
 			call<{ network: Network }>('POST', '/networks', input).then((r) => r.network),
 		updateNetwork: (id: number, patch: NetworkPatch) => call<{ network: Network }>('POST', `/networks/${id}`, patch).then((r) => r.network),
+		// ---- Layers and importance recipes ----
+		listLayers: (networkId: number) => call<{ layers: Layer[] }>('GET', `/networks/${networkId}/layers`).then((r) => r.layers),
+		getLayer: (networkId: number, layerId: number) => call<{ layer: Layer }>('GET', `/networks/${networkId}/layers/${layerId}`).then((r) => r.layer),
+		deleteLayer: (networkId: number, layerId: number) => call<null>('DELETE', `/networks/${networkId}/layers/${layerId}`),
+		/** Whole-body upload through fetch (scripts, tests); the page uses XMLHttpRequest for progress. */
+		uploadLayer: async (networkId: number, meta: LayerUploadMeta, file: Blob | Uint8Array) => {
+			const res = await fetchFn(`${base}/networks/${networkId}/layers?${layerUploadQuery(meta)}`, { method: 'POST', headers: { accept: 'application/json', 'content-type': 'application/octet-stream' }, body: file as BodyInit });
+			const data = await res.json().catch(() => null);
+			if (!res.ok) {
+				const e = (data as ApiErrorBody | null)?.error;
+				throw new ApiClientError(res.status, e?.code ?? 'http_error', e?.message ?? res.statusText, e?.fields);
+			}
+			return (data as { layer: Layer }).layer;
+		},
+		listRecipes: (networkId: number) => call<{ recipes: Recipe[]; currentVersionId: number | null }>('GET', `/networks/${networkId}/recipes`),
+		getRecipe: (networkId: number, recipeId: number) => call<{ recipe: Recipe }>('GET', `/networks/${networkId}/recipes/${recipeId}`).then((r) => r.recipe),
+		listRecipeVersions: (networkId: number, recipeId: number) => call<{ versions: RecipeVersion[] }>('GET', `/networks/${networkId}/recipes/${recipeId}/versions`).then((r) => r.versions),
+		createRecipe: (networkId: number, input: { name: string; definition: RecipeDefinition; note?: string }) =>
+			call<{ version: RecipeVersion }>('POST', `/networks/${networkId}/recipes`, input).then((r) => r.version),
+		addRecipeVersion: (networkId: number, recipeId: number, input: { definition: RecipeDefinition; note?: string }) =>
+			call<{ version: RecipeVersion }>('POST', `/networks/${networkId}/recipes/${recipeId}/versions`, input).then((r) => r.version),
+		deleteRecipe: (networkId: number, recipeId: number) => call<null>('DELETE', `/networks/${networkId}/recipes/${recipeId}`),
+		previewRecipe: (networkId: number, definition: RecipeDefinition) => call<{ preview: RecipePreview }>('POST', `/networks/${networkId}/recipes/preview`, { definition }).then((r) => r.preview),
+		useRecipeVersion: (networkId: number, versionId: number) => call<{ versionId: number }>('POST', `/networks/${networkId}/recipes/current`, { versionId }),
+		// ---- (layers and recipes end) ----
+		// ---- Sensors, study area and zones ----
+		listSensorTypes: (networkId: number) => call<{ sensorTypes: SensorType[] }>('GET', `/networks/${networkId}/sensor-types`).then((r) => r.sensorTypes),
+		createSensorType: (networkId: number, input: SensorTypeInput) => call<{ sensorType: SensorType }>('POST', `/networks/${networkId}/sensor-types`, input).then((r) => r.sensorType),
+		updateSensorType: (networkId: number, typeId: number, input: SensorTypeInput) => call<{ sensorType: SensorType }>('POST', `/networks/${networkId}/sensor-types/${typeId}`, input).then((r) => r.sensorType),
+		deleteSensorType: (networkId: number, typeId: number) => call<null>('DELETE', `/networks/${networkId}/sensor-types/${typeId}`),
+		listSensors: (networkId: number, query: SensorListQuery = {}) => {
+			const p = new URLSearchParams(Object.entries(query).filter(([, v]) => v !== undefined && v !== '').map(([k, v]) => [k, String(v)]));
+			return call<SensorList>('GET', `/networks/${networkId}/sensors${p.size ? `?${p}` : ''}`);
+		},
+		getSensor: (networkId: number, sensorId: number) => call<{ sensor: Sensor }>('GET', `/networks/${networkId}/sensors/${sensorId}`).then((r) => r.sensor),
+		createSensor: (networkId: number, input: SensorInput) => call<{ sensor: Sensor }>('POST', `/networks/${networkId}/sensors`, input).then((r) => r.sensor),
+		updateSensor: (networkId: number, sensorId: number, input: SensorInput & { version: number }) => call<{ sensor: Sensor }>('POST', `/networks/${networkId}/sensors/${sensorId}`, input).then((r) => r.sensor),
+		deleteSensor: (networkId: number, sensorId: number, version: number) => call<null>('DELETE', `/networks/${networkId}/sensors/${sensorId}?version=${version}`),
+		/** URL of the inventory download (CSV or GeoJSON), for a link or a fetch. */
+		sensorExportUrl: (networkId: number, format: 'csv' | 'geojson') => `${base}/networks/${networkId}/sensors?format=${format}`,
+		getArea: (networkId: number) => call<{ area: NetworkArea }>('GET', `/networks/${networkId}/area`).then((r) => r.area),
+		setArea: (networkId: number, input: { version: number; studyArea?: unknown; exclusions?: unknown[] }) => call<{ area: NetworkArea }>('POST', `/networks/${networkId}/area`, input).then((r) => r.area),
+		listZoneSets: (networkId: number, opts: { geometry?: boolean } = {}) => call<{ zoneSets: ZoneSet[] }>('GET', `/networks/${networkId}/zone-sets${opts.geometry ? '?geometry=1' : ''}`).then((r) => r.zoneSets),
+		getZoneSet: (networkId: number, zoneSetId: number) => call<{ zoneSet: ZoneSet }>('GET', `/networks/${networkId}/zone-sets/${zoneSetId}`).then((r) => r.zoneSet),
+		createZoneSet: (networkId: number, input: ZoneSetInput) => call<{ zoneSet: ZoneSet }>('POST', `/networks/${networkId}/zone-sets`, input).then((r) => r.zoneSet),
+		useZoneSet: (networkId: number, zoneSetId: number, inUse = true) => call<{ zoneSet: ZoneSet }>('POST', `/networks/${networkId}/zone-sets/${zoneSetId}`, { inUse }).then((r) => r.zoneSet),
+		deleteZoneSet: (networkId: number, zoneSetId: number) => call<null>('DELETE', `/networks/${networkId}/zone-sets/${zoneSetId}`),
+		// ---- (sensors and zones end) ----
 		call
 	};
 }
