@@ -84,7 +84,7 @@ export async function up(knex: Knex): Promise<void> {
 		t.integer('sensor_type_id').unsigned().notNullable().references('sensor_types.id').onDelete('RESTRICT');
 		t.double('lon').notNullable();
 		t.double('lat').notNullable();
-		t.specificType('position', 'POINT NOT NULL REF_SYSTEM_ID=4326');
+		t.specificType('position', 'POINT REF_SYSTEM_ID=4326 NOT NULL');
 		t.enu('status', ['active', 'faulty', 'retired']).notNullable().defaultTo('active');
 		t.date('installed_on').nullable();
 		t.text('notes').notNullable();
