@@ -14,89 +14,14 @@
 import { contours as d3Contours } from 'd3-contour';
 import { PNG } from 'pngjs';
 import { chooseWorkingCrs, crsDefinition, isProjected, transformer, utmZoneFor, type PointTransform } from '../../geo/crs';
-import { legendStops, rampTable, type LegendStop } from '../../importance/colour-ramp';
+import { legendStops, rampTable } from '../../importance/colour-ramp';
 import type { GridSpec } from '../../importance/grid';
 import type { Db } from '../db';
 import type { NetworkRow } from '../repositories/networks';
 
-// ---------------------------------------------------------------------------------------------
-// Types of the document (mirrored for the browser in src/lib/api/client.ts)
+import type { MapBackdrop, MapBounds, MapContour, MapDocument, MapPoint, MapRings, MapSensor, MapSensorType, MapZone, SensorStatus } from '../../api/client';
 
-/** [x, y] in the map's CRS (working CRS metres). */
-export type MapPoint = [number, number];
-/** Rings of one shape, drawn with the even-odd rule (holes and multi-part shapes alike). */
-export type MapRings = MapPoint[][];
-/** [minX, minY, maxX, maxY] in the map's CRS. */
-export type MapBounds = [number, number, number, number];
-
-export type SensorStatus = 'active' | 'faulty' | 'retired';
-
-export interface MapDocument {
-	network: { id: number; name: string };
-	/** The working CRS the map is drawn in; null when the network has nothing with a position yet. */
-	crs: { epsg: number; proj4: string } | null;
-	extent: MapBounds | null;
-	studyArea: MapRings;
-	exclusions: MapRings;
-	zoneSet: { id: number; name: string; kind: string } | null;
-	zones: MapZone[];
-	sensorTypes: MapSensorType[];
-	sensors: MapSensor[];
-	backdrop: MapBackdrop | null;
-	contours: MapContour[];
-}
-
-export interface MapZone {
-	id: number;
-	code: string;
-	name: string;
-	/** Share of the importance mass (0..1) as measured when the zone set was made; null if never. */
-	importanceShare: number | null;
-	/** Sensors (not retired) standing inside the zone. */
-	sensorCount: number;
-	rings: MapRings;
-	/** Where the label goes (area centroid of the largest ring). */
-	labelAt: MapPoint;
-}
-
-export interface MapSensorType {
-	id: number;
-	name: string;
-	radiusM: number;
-	mobility: 'fixed' | 'relocatable' | 'mobile';
-}
-
-export interface MapSensor {
-	id: number;
-	code: string;
-	serial: string;
-	typeId: number;
-	status: SensorStatus;
-	lon: number;
-	lat: number;
-	x: number;
-	y: number;
-	installedOn: string | null;
-}
-
-export interface MapBackdrop {
-	/** 'importance' = the network's current importance surface; 'layer' = a layer preview. */
-	kind: 'importance' | 'layer';
-	label: string;
-	url: string;
-	bounds: MapBounds;
-	min: number;
-	max: number;
-	legend: LegendStop[];
-	/** True when the bounds were converted from another CRS (the image is then approximate). */
-	approximate: boolean;
-}
-
-export interface MapContour {
-	level: number;
-	/** MultiPolygon coordinates in the map CRS: polygons → rings → points. */
-	polygons: MapPoint[][][];
-}
+export type { MapBackdrop, MapBounds, MapContour, MapDocument, MapPoint, MapRings, MapSensor, MapSensorType, MapZone, SensorStatus };
 
 /** Something the map cannot be drawn from, with a message fit for the user. */
 export class MapDataError extends Error {
