@@ -103,7 +103,7 @@ export interface MapSensor {
 	installedOn: string | null;
 }
 
-export interface LegendStop {
+export interface MapLegendStop {
 	value: number;
 	colour: string;
 }
@@ -116,7 +116,7 @@ export interface MapBackdrop {
 	bounds: MapBounds;
 	min: number;
 	max: number;
-	legend: LegendStop[];
+	legend: MapLegendStop[];
 	/** True when the bounds were converted from another CRS (the image is then approximate). */
 	approximate: boolean;
 }
@@ -128,6 +128,102 @@ export interface MapContour {
 }
 
 // (map types end)
+
+// ---- Layers and importance recipes (types) ----------------------------------------------
+export type LayerKind = 'soil_moisture' | 'vegetation_index' | 'elevation' | 'other';
+export type LayerPlatform = 'satellite' | 'aircraft' | 'drone' | 'model' | 'other';
+
+export interface Layer {
+	id: number;
+	name: string;
+	kind: LayerKind;
+	units: string;
+	acquiredOn: string | null;
+	platform: LayerPlatform;
+	status: 'uploading' | 'processing' | 'ready' | 'failed';
+	error: string | null;
+	originalName: string;
+	sizeBytes: number;
+	band: number;
+	bandCount: number | null;
+	width: number | null;
+	height: number | null;
+	epsg: number | null;
+	resolution: { x: number; y: number } | null;
+	nodata: number | null;
+	footprint: { bbox: [number, number, number, number]; polygon: { type: 'Polygon'; coordinates: [number, number][][] } } | null;
+	stats: { min: number; max: number; mean: number; std: number; validCount: number } | null;
+	histogram: { edges: number[]; counts: number[] } | null;
+	hasPreview: boolean;
+	createdAt: string;
+}
+
+export interface LayerUploadMeta {
+	name: string;
+	kind: LayerKind;
+	units?: string;
+	acquiredOn?: string;
+	platform?: LayerPlatform;
+	band?: number;
+	fileName?: string;
+}
+
+export type RecipeTransform = 'identity' | 'invert' | 'minmax' | 'band' | 'variability';
+
+export interface RecipeStepInput {
+	layerId: string;
+	transform: RecipeTransform;
+	weight: number;
+	params?: { lo?: number; hi?: number; soft?: number; distanceM?: number };
+}
+
+export interface RecipeDefinition {
+	layers: RecipeStepInput[];
+}
+
+export interface RecipeVersion {
+	id: number;
+	recipeId: number;
+	version: number;
+	definition: RecipeDefinition;
+	note: string;
+	createdBy: string | null;
+	createdAt: string;
+	hasSurface: boolean;
+}
+
+export interface Recipe {
+	id: number;
+	name: string;
+	latestVersion: number;
+	versions: RecipeVersion[];
+}
+
+export interface RecipePreview {
+	/** PNG, base64. */
+	png: string;
+	width: number;
+	height: number;
+	grid: { epsg: number; width: number; height: number; x0: number; y0: number; dx: number; dy: number; units?: 'metre' | 'degree' };
+	validCount: number;
+	min: number;
+	max: number;
+	mean: number;
+	legend: { value: number; colour: string }[];
+}
+
+/** URL of a layer's preview PNG. */
+export function layerPreviewUrl(networkId: number, layerId: number, base = '/api/v1'): string {
+	return `${base}/networks/${networkId}/layers/${layerId}/preview.png`;
+}
+
+/** Query string carrying an upload's metadata (the body is the file itself). */
+export function layerUploadQuery(meta: LayerUploadMeta): string {
+	const q = new URLSearchParams();
+	for (const [k, v] of Object.entries(meta)) if (v !== undefined && v !== '') q.set(k, String(v));
+	return q.toString();
+}
+// ---- (layers and recipes types end) -------------------------------------------------------
 
 type Fetch = typeof fetch;
 
@@ -155,6 +251,31 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		// Map
 		getNetworkMap: (id: number) => call<{ map: MapDocument }>('GET', `/networks/${id}/map`).then((r) => r.map),
 		// (map calls end)
+		// ---- Layers and importance recipes ----
+		listLayers: (networkId: number) => call<{ layers: Layer[] }>('GET', `/networks/${networkId}/layers`).then((r) => r.layers),
+		getLayer: (networkId: number, layerId: number) => call<{ layer: Layer }>('GET', `/networks/${networkId}/layers/${layerId}`).then((r) => r.layer),
+		deleteLayer: (networkId: number, layerId: number) => call<null>('DELETE', `/networks/${networkId}/layers/${layerId}`),
+		/** Whole-body upload through fetch (scripts, tests); the page uses XMLHttpRequest for progress. */
+		uploadLayer: async (networkId: number, meta: LayerUploadMeta, file: Blob | Uint8Array) => {
+			const res = await fetchFn(`${base}/networks/${networkId}/layers?${layerUploadQuery(meta)}`, { method: 'POST', headers: { accept: 'application/json', 'content-type': 'application/octet-stream' }, body: file as BodyInit });
+			const data = await res.json().catch(() => null);
+			if (!res.ok) {
+				const e = (data as ApiErrorBody | null)?.error;
+				throw new ApiClientError(res.status, e?.code ?? 'http_error', e?.message ?? res.statusText, e?.fields);
+			}
+			return (data as { layer: Layer }).layer;
+		},
+		listRecipes: (networkId: number) => call<{ recipes: Recipe[]; currentVersionId: number | null }>('GET', `/networks/${networkId}/recipes`),
+		getRecipe: (networkId: number, recipeId: number) => call<{ recipe: Recipe }>('GET', `/networks/${networkId}/recipes/${recipeId}`).then((r) => r.recipe),
+		listRecipeVersions: (networkId: number, recipeId: number) => call<{ versions: RecipeVersion[] }>('GET', `/networks/${networkId}/recipes/${recipeId}/versions`).then((r) => r.versions),
+		createRecipe: (networkId: number, input: { name: string; definition: RecipeDefinition; note?: string }) =>
+			call<{ version: RecipeVersion }>('POST', `/networks/${networkId}/recipes`, input).then((r) => r.version),
+		addRecipeVersion: (networkId: number, recipeId: number, input: { definition: RecipeDefinition; note?: string }) =>
+			call<{ version: RecipeVersion }>('POST', `/networks/${networkId}/recipes/${recipeId}/versions`, input).then((r) => r.version),
+		deleteRecipe: (networkId: number, recipeId: number) => call<null>('DELETE', `/networks/${networkId}/recipes/${recipeId}`),
+		previewRecipe: (networkId: number, definition: RecipeDefinition) => call<{ preview: RecipePreview }>('POST', `/networks/${networkId}/recipes/preview`, { definition }).then((r) => r.preview),
+		useRecipeVersion: (networkId: number, versionId: number) => call<{ versionId: number }>('POST', `/networks/${networkId}/recipes/current`, { versionId }),
+		// ---- (layers and recipes end) ----
 		call
 	};
 }

@@ -31,6 +31,14 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	// Layers and importance
 	'/(app)/networks/[id=id]/layers': 'signed-in',
 	'/(app)/networks/[id=id]/importance': 'signed-in',
+	'/api/v1/networks/[id=id]/layers': 'signed-in',
+	'/api/v1/networks/[id=id]/layers/[layerId=id]': 'signed-in',
+	'/api/v1/networks/[id=id]/layers/[layerId=id]/preview.png': 'signed-in',
+	'/api/v1/networks/[id=id]/recipes': 'signed-in',
+	'/api/v1/networks/[id=id]/recipes/preview': 'signed-in',
+	'/api/v1/networks/[id=id]/recipes/current': 'signed-in',
+	'/api/v1/networks/[id=id]/recipes/[recipeId=id]': 'signed-in',
+	'/api/v1/networks/[id=id]/recipes/[recipeId=id]/versions': 'signed-in',
 	// (layers routes end)
 
 	// Sensors, study area and zones

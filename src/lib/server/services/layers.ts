@@ -1,0 +1,255 @@
+/**
+ * Layers as a use case: upload a GeoTIFF (streamed to the object store with a byte limit),
+ * inspect it, store its preview, list, delete.
+ *
+ * An upload goes uploading → processing → ready within one request. Whatever refuses it (too
+ * large, not a TIFF, no georeferencing, unknown CRS, all nodata, band missing, too many pixels,
+ * corrupt compression) removes the stored objects and the row again: a refused upload leaves
+ * nothing behind.
+ *
+ * Limits (environment, read by layerLimits):
+ *   LAYER_MAX_BYTES   largest upload in bytes; default 524288000 (500 MiB)
+ *   LAYER_MAX_PIXELS  largest width·height of the band; default 25 000 000
+ * The body limit of the server itself (BODY_SIZE_LIMIT, 600 MiB under npm start) must be larger
+ * than LAYER_MAX_BYTES, so that our own message answers an oversized upload.
+ */
+import { Readable } from 'node:stream';
+import type { Knex } from 'knex';
+import { z } from 'zod';
+import { DEFAULT_MAX_PIXELS, LayerRejected, loadLayer, renderPreview } from '../layers';
+import { newObjectKey, type ObjectStore } from '../storage/object-store';
+import { recordAudit } from '../repositories/audit';
+import { deleteLayerRow, findLayer, insertLayer, listLayers, updateLayer, type LayerRow } from '../repositories/layers';
+import { versionsCitingLayer } from '../repositories/recipes';
+import { ServiceError } from './errors';
+
+export const LAYER_KINDS = ['soil_moisture', 'vegetation_index', 'elevation', 'other'] as const;
+export const LAYER_PLATFORMS = ['satellite', 'aircraft', 'drone', 'model', 'other'] as const;
+export const DEFAULT_LAYER_MAX_BYTES = 500 * 1024 * 1024;
+
+export interface LayerLimits {
+	maxBytes: number;
+	maxPixels: number;
+}
+
+function positiveInt(value: string | undefined, fallback: number, name: string): number {
+	if (value === undefined || value.trim() === '') return fallback;
+	const n = Number(value);
+	if (!Number.isInteger(n) || n <= 0) throw new Error(`${name} must be a positive whole number, not ${JSON.stringify(value)}`);
+	return n;
+}
+
+export function layerLimits(env: Record<string, string | undefined>): LayerLimits {
+	return { maxBytes: positiveInt(env.LAYER_MAX_BYTES, DEFAULT_LAYER_MAX_BYTES, 'LAYER_MAX_BYTES'), maxPixels: positiveInt(env.LAYER_MAX_PIXELS, DEFAULT_MAX_PIXELS, 'LAYER_MAX_PIXELS') };
+}
+
+/** The upload is larger than LAYER_MAX_BYTES (answered with 413). */
+export class UploadTooLarge extends Error {
+	readonly status = 413;
+	readonly code = 'too_large';
+	constructor(maxBytes: number) {
+		super(`The file is larger than the limit of ${formatBytes(maxBytes)}. Clip or resample the raster, or ask an administrator to raise LAYER_MAX_BYTES.`);
+		this.name = 'UploadTooLarge';
+	}
+}
+
+export function formatBytes(n: number): string {
+	if (n >= 1024 * 1024) return `${Math.round((n / (1024 * 1024)) * 10) / 10} MB`;
+	if (n >= 1024) return `${Math.round((n / 1024) * 10) / 10} kB`;
+	return `${n} bytes`;
+}
+
+const emptyToUndefined = (v: unknown) => (typeof v === 'string' && v.trim() === '' ? undefined : v);
+
+export const layerMetaInput = z.object({
+	name: z.string({ error: 'Give the layer a name.' }).trim().min(1, 'Give the layer a name.').max(200, 'Keep the name under 200 characters.'),
+	kind: z.enum(LAYER_KINDS, { error: 'Choose what the layer measures.' }),
+	units: z.string().trim().max(50, 'Keep the units under 50 characters.').default(''),
+	acquiredOn: z.preprocess(
+		emptyToUndefined,
+		z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Give the acquisition date as YYYY-MM-DD.').refine((d) => !Number.isNaN(Date.parse(d)), 'That acquisition date does not exist.').optional()
+	),
+	platform: z.preprocess(emptyToUndefined, z.enum(LAYER_PLATFORMS, { error: 'Choose the platform.' }).default('other')),
+	band: z.preprocess(emptyToUndefined, z.coerce.number({ error: 'The band is a whole number from 1.' }).int('The band is a whole number from 1.').min(1, 'The band is a whole number from 1.').max(65535).default(1)),
+	fileName: z.string().trim().max(255).default('')
+});
+
+export type LayerMetaInput = z.input<typeof layerMetaInput>;
+
+export interface LayerView {
+	id: number;
+	name: string;
+	kind: (typeof LAYER_KINDS)[number];
+	units: string;
+	acquiredOn: string | null;
+	platform: (typeof LAYER_PLATFORMS)[number];
+	status: LayerRow['status'];
+	error: string | null;
+	originalName: string;
+	sizeBytes: number;
+	band: number;
+	bandCount: number | null;
+	width: number | null;
+	height: number | null;
+	epsg: number | null;
+	resolution: { x: number; y: number } | null;
+	nodata: number | null;
+	footprint: unknown | null;
+	stats: { min: number; max: number; mean: number; std: number; validCount: number } | null;
+	histogram: { edges: number[]; counts: number[] } | null;
+	hasPreview: boolean;
+	createdAt: Date;
+}
+
+export function layerView(r: LayerRow): LayerView {
+	return {
+		id: r.id,
+		name: r.name,
+		kind: r.kind,
+		units: r.units,
+		acquiredOn: r.acquired_on,
+		platform: r.platform,
+		status: r.status,
+		error: r.error,
+		originalName: r.original_name,
+		sizeBytes: r.size_bytes,
+		band: r.band,
+		bandCount: r.band_count,
+		width: r.width,
+		height: r.height,
+		epsg: r.epsg,
+		resolution: r.resolution_x !== null && r.resolution_y !== null ? { x: r.resolution_x, y: r.resolution_y } : null,
+		nodata: r.nodata,
+		footprint: r.footprint,
+		stats:
+			r.stat_min !== null && r.stat_max !== null && r.stat_mean !== null && r.stat_std !== null
+				? { min: r.stat_min, max: r.stat_max, mean: r.stat_mean, std: r.stat_std, validCount: r.valid_count ?? 0 }
+				: null,
+		histogram: (r.histogram as LayerView['histogram']) ?? null,
+		hasPreview: r.preview_key !== null,
+		createdAt: r.created_at
+	};
+}
+
+/** Passes the bytes through, failing with UploadTooLarge once more than maxBytes went by. */
+async function* limited(body: AsyncIterable<Uint8Array | string>, maxBytes: number, counter: { bytes: number }): AsyncGenerator<Uint8Array> {
+	for await (const chunk of body) {
+		const bytes = typeof chunk === 'string' ? Buffer.from(chunk) : chunk;
+		counter.bytes += bytes.byteLength;
+		if (counter.bytes > maxBytes) throw new UploadTooLarge(maxBytes);
+		yield bytes;
+	}
+}
+
+export interface UploadContext {
+	networkId: number;
+	organisationId: number;
+	actorId: number;
+}
+
+/**
+ * Stream `body` into the store and turn it into a ready layer, or refuse it leaving nothing.
+ * The body is never held whole in memory while it arrives; inspection then reads the stored file.
+ */
+export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadContext, meta: unknown, body: Readable | AsyncIterable<Uint8Array>, limits: LayerLimits): Promise<LayerView> {
+	const parsed = layerMetaInput.safeParse(meta);
+	if (!parsed.success) {
+		if (body instanceof Readable) body.resume(); // drain, so the client sees our answer
+		const i = parsed.error.issues[0];
+		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
+	}
+	const m = parsed.data;
+	const id = await insertLayer(db, {
+		network_id: ctx.networkId,
+		name: m.name,
+		kind: m.kind,
+		units: m.units,
+		acquired_on: m.acquiredOn ?? null,
+		platform: m.platform,
+		band: m.band,
+		original_name: m.fileName,
+		created_by: ctx.actorId
+	});
+	const storageKey = newObjectKey('layers');
+	let previewKey: string | null = null;
+	try {
+		const counter = { bytes: 0 };
+		const { size } = await store.put(storageKey, Readable.from(limited(body, limits.maxBytes, counter)), { contentType: 'image/tiff' });
+		await updateLayer(db, id, { status: 'processing', storage_key: storageKey, size_bytes: size });
+
+		const bytes = await store.getBuffer(storageKey);
+		const { metadata, band } = await loadLayer(bytes, { band: m.band, name: m.fileName || m.name, maxPixels: limits.maxPixels });
+		const preview = renderPreview(band);
+		previewKey = newObjectKey('previews');
+		await store.put(previewKey, preview.png, { contentType: 'image/png' });
+		const done = await db.transaction(async (trx) => {
+			await updateLayer(trx, id, {
+				status: 'ready',
+				preview_key: previewKey,
+				width: metadata.width,
+				height: metadata.height,
+				band_count: metadata.bandCount,
+				epsg: metadata.epsg,
+				resolution_x: metadata.resolution.x,
+				resolution_y: metadata.resolution.y,
+				nodata: metadata.nodata,
+				footprint: metadata.footprint,
+				transform: [metadata.origin.x, metadata.resolution.x, 0, metadata.origin.y, 0, -metadata.resolution.y],
+				stat_min: metadata.stats.min,
+				stat_max: metadata.stats.max,
+				stat_mean: metadata.stats.mean,
+				stat_std: metadata.stats.std,
+				valid_count: metadata.stats.validCount,
+				histogram: metadata.histogram
+			});
+			const row = (await findLayer(trx, ctx.networkId, id))!;
+			await recordAudit(trx, { organisationId: ctx.organisationId, actorUserId: ctx.actorId, action: 'layer.create', objectType: 'layer', objectId: id, after: { name: row.name, kind: row.kind, epsg: row.epsg, sizeBytes: row.size_bytes } });
+			return row;
+		});
+		return layerView(done);
+	} catch (e) {
+		await store.delete(storageKey).catch(() => undefined);
+		if (previewKey) await store.delete(previewKey).catch(() => undefined);
+		await deleteLayerRow(db, id);
+		if (e instanceof LayerRejected) throw new ServiceError(422, e.code, e.message, 'file');
+		throw e;
+	}
+}
+
+export async function listLayerViews(db: Knex, networkId: number): Promise<LayerView[]> {
+	return (await listLayers(db, networkId)).map(layerView);
+}
+
+export async function getLayer(db: Knex, networkId: number, layerId: number): Promise<LayerRow> {
+	const row = await findLayer(db, networkId, layerId);
+	if (!row) throw new ServiceError(404, 'not_found', 'No such layer.');
+	return row;
+}
+
+/** The stored preview PNG of a ready layer. */
+export async function layerPreview(db: Knex, store: ObjectStore, networkId: number, layerId: number): Promise<Buffer> {
+	const row = await getLayer(db, networkId, layerId);
+	if (!row.preview_key) throw new ServiceError(404, 'not_found', 'This layer has no preview yet.');
+	return store.getBuffer(row.preview_key);
+}
+
+/**
+ * Delete a layer and its stored file and preview. Refused (409) while any recipe version cites
+ * the layer: versions are immutable and must stay reproducible.
+ */
+export async function deleteLayer(db: Knex, store: ObjectStore, ctx: UploadContext, layerId: number): Promise<void> {
+	const keys = await db.transaction(async (trx) => {
+		const row = await trx('layers').select('id').where({ id: layerId, network_id: ctx.networkId }).forUpdate().first();
+		if (!row) throw new ServiceError(404, 'not_found', 'No such layer.');
+		const layer = (await findLayer(trx, ctx.networkId, layerId))!;
+		const citing = await versionsCitingLayer(trx, ctx.networkId, layerId);
+		if (citing.length > 0) {
+			const list = citing.map((c) => `"${c.recipe}" v${c.version}`).join(', ');
+			throw new ServiceError(409, 'layer_in_use', `Layer "${layer.name}" is used by importance recipe ${list}; recipe versions never change, so the layer stays.`);
+		}
+		await deleteLayerRow(trx, layerId);
+		await recordAudit(trx, { organisationId: ctx.organisationId, actorUserId: ctx.actorId, action: 'layer.delete', objectType: 'layer', objectId: layerId, before: { name: layer.name, kind: layer.kind } });
+		return [layer.storage_key, layer.preview_key].filter((k): k is string => k !== null);
+	});
+	for (const k of keys) await store.delete(k).catch(() => undefined);
+}

@@ -1,0 +1,44 @@
+import { Readable } from 'node:stream';
+import type { ReadableStream as NodeWebStream } from 'node:stream/web';
+import { json } from '@sveltejs/kit';
+import { env } from '$env/dynamic/private';
+import type { RequestHandler } from './$types';
+import { getDb } from '$lib/server/db';
+import { apiHandler, ApiError } from '$lib/server/api/errors';
+import { networkAccess } from '$lib/server/auth/network-access';
+import { getObjectStore } from '$lib/server/storage/app-store';
+import { layerLimits, listLayerViews, uploadLayer, UploadTooLarge } from '$lib/server/services/layers';
+import { ServiceError } from '$lib/server/services/errors';
+
+/** GET /api/v1/networks/:id/layers */
+export const GET: RequestHandler = apiHandler(async (event) => {
+	const { network } = await networkAccess(event, 'layer.view');
+	return json({ layers: await listLayerViews(getDb(), network.id) });
+});
+
+/**
+ * POST /api/v1/networks/:id/layers?name=&kind=&units=&acquiredOn=&platform=&band=&fileName=
+ * The raw request body is the GeoTIFF. 201 {layer} when it is ready; 413 over LAYER_MAX_BYTES;
+ * 422 with the reason when the file cannot be a layer (nothing is kept then).
+ */
+export const POST: RequestHandler = apiHandler(async (event) => {
+	const { network, actor } = await networkAccess(event, 'layer.edit');
+	const limits = layerLimits(env);
+	const declared = Number(event.request.headers.get('content-length') ?? NaN);
+	if (Number.isFinite(declared) && declared > limits.maxBytes) {
+		const e = new UploadTooLarge(limits.maxBytes);
+		throw new ApiError(413, e.code, e.message);
+	}
+	const q = event.url.searchParams;
+	const meta = Object.fromEntries(['name', 'kind', 'units', 'acquiredOn', 'platform', 'band', 'fileName'].filter((k) => q.has(k)).map((k) => [k, q.get(k)]));
+	const webBody = event.request.body;
+	const body = webBody ? Readable.fromWeb(webBody as unknown as NodeWebStream<Uint8Array>) : Readable.from([]);
+	try {
+		const layer = await uploadLayer(getDb(), getObjectStore(), { networkId: network.id, organisationId: network.organisation_id, actorId: actor.id }, meta, body, limits);
+		return json({ layer }, { status: 201 });
+	} catch (err) {
+		if (err instanceof UploadTooLarge) throw new ApiError(413, err.code, err.message);
+		if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
+		throw err;
+	}
+});
