@@ -7,6 +7,7 @@ import type { Knex } from 'knex';
 import bcrypt from 'bcryptjs';
 import { existsSync, readFileSync } from 'node:fs';
 import path from 'node:path';
+import { seedDemoInventory } from './demo-inventory';
 
 export const DEMO_ORGANISATION = { slug: 'fellside-hydrology', name: 'Fellside Hydrology Co-operative' };
 
@@ -64,5 +65,6 @@ export async function seed(knex: Knex): Promise<void> {
 			});
 			await trx('audit_log').insert({ organisation_id: org.id, actor_user_id: ids.admin, action: 'network.create', object_type: 'network', object_id: String(id), after: JSON.stringify({ seeded: true }) });
 		}
+		await seedDemoInventory(trx, (await trx('networks').select('id').where({ organisation_id: org.id, slug: DEMO_NETWORK.slug }).first()).id);
 	});
 }

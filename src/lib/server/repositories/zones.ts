@@ -1,0 +1,75 @@
+/** Zone sets and their zones. Zone geometry is a GeoJSON MultiPolygon in WGS 84. */
+import type { Db } from '../db';
+import type { MultiPolygonGeometry } from '../../geo/polygons';
+
+export type ZoneSetKind = 'uploaded' | 'grid' | 'computed';
+
+export interface ZoneSetRow {
+	id: number;
+	network_id: number;
+	name: string;
+	kind: ZoneSetKind;
+	params: Record<string, unknown> | null;
+	recipe_version_id: number | null;
+	created_at: Date;
+}
+
+export interface ZoneRow {
+	id: number;
+	zone_set_id: number;
+	code: string;
+	name: string;
+	geometry: MultiPolygonGeometry;
+	importance_share: number | null;
+}
+
+const parse = (v: unknown) => (typeof v === 'string' ? JSON.parse(v) : (v ?? null));
+
+export async function listZoneSets(db: Db, networkId: number): Promise<ZoneSetRow[]> {
+	const rows = await db('zone_sets').select('id', 'network_id', 'name', 'kind', 'params', 'recipe_version_id', 'created_at').where({ network_id: networkId }).orderBy('id', 'desc');
+	return rows.map((r: ZoneSetRow) => ({ ...r, params: parse(r.params) }));
+}
+
+export async function findZoneSet(db: Db, networkId: number, id: number): Promise<ZoneSetRow | undefined> {
+	const r = await db('zone_sets').select('id', 'network_id', 'name', 'kind', 'params', 'recipe_version_id', 'created_at').where({ network_id: networkId, id }).first();
+	return r ? { ...r, params: parse(r.params) } : undefined;
+}
+
+export async function listZones(db: Db, zoneSetIds: number[]): Promise<ZoneRow[]> {
+	if (zoneSetIds.length === 0) return [];
+	const rows = await db('zones').select('id', 'zone_set_id', 'code', 'name', 'geometry', 'importance_share').whereIn('zone_set_id', zoneSetIds).orderBy('id');
+	return rows.map((r: ZoneRow) => ({ ...r, geometry: parse(r.geometry), importance_share: r.importance_share === null ? null : Number(r.importance_share) }));
+}
+
+export async function insertZoneSet(
+	db: Db,
+	networkId: number,
+	createdBy: number,
+	f: { name: string; kind: ZoneSetKind; params: Record<string, unknown> | null; recipe_version_id: number | null }
+): Promise<number> {
+	const [id] = await db('zone_sets').insert({ ...f, params: f.params === null ? null : JSON.stringify(f.params), network_id: networkId, created_by: createdBy });
+	return id;
+}
+
+export async function insertZones(db: Db, zoneSetId: number, zones: { code: string; name: string; geometry: MultiPolygonGeometry; importance_share: number | null }[]): Promise<void> {
+	for (let i = 0; i < zones.length; i += 200) {
+		await db('zones').insert(zones.slice(i, i + 200).map((z) => ({ ...z, zone_set_id: zoneSetId, geometry: JSON.stringify(z.geometry) })));
+	}
+}
+
+export async function setZoneShare(db: Db, zoneId: number, share: number | null): Promise<void> {
+	await db('zones').where({ id: zoneId }).update({ importance_share: share });
+}
+
+export async function deleteZoneSet(db: Db, networkId: number, id: number): Promise<boolean> {
+	return (await db('zone_sets').where({ network_id: networkId, id }).delete()) === 1;
+}
+
+export async function setNetworkZoneSet(db: Db, networkId: number, zoneSetId: number | null): Promise<void> {
+	await db('networks').where({ id: networkId }).update({ zone_set_id: zoneSetId });
+}
+
+export async function networkZoneSetId(db: Db, networkId: number): Promise<number | null> {
+	const r = await db('networks').select('zone_set_id').where({ id: networkId }).first();
+	return r?.zone_set_id ?? null;
+}
