@@ -56,7 +56,16 @@ const checks: Check[] = [
 	{ name: 'API get network', method: 'GET', path: '/api/v1/networks/1', expect: api(401, 200, 200, 200, 200) },
 	{ name: 'API get missing network', method: 'GET', path: '/api/v1/networks/999999', expect: api(401, 404, 404, 404, 404) },
 	{ name: 'API update network', method: 'POST', path: '/api/v1/networks/1', json: { version: 'x' }, expect: api(401, 400, 400, 403, 403) },
-	{ name: 'API unknown route', method: 'GET', path: '/api/v1/nothing-here', expect: api(404, 404, 404, 404, 404) }
+	{ name: 'API unknown route', method: 'GET', path: '/api/v1/nothing-here', expect: api(404, 404, 404, 404, 404) },
+
+	// Map
+	{ name: 'map page', method: 'GET', path: '/networks/1/map', expect: signedIn(200) },
+	{ name: 'map page of a missing network', method: 'GET', path: '/networks/999999/map', expect: page(303, 404, 404, 404, 404) },
+	{ name: 'API network map', method: 'GET', path: '/api/v1/networks/1/map', expect: api(401, 200, 200, 200, 200) },
+	{ name: 'API map of a missing network', method: 'GET', path: '/api/v1/networks/999999/map', expect: api(401, 404, 404, 404, 404) },
+	// The demo network has no importance recipe yet: every member gets the 404 that says so.
+	{ name: 'API map importance PNG (none yet)', method: 'GET', path: '/api/v1/networks/1/map/importance.png', expect: api(401, 404, 404, 404, 404) }
+	// (map rows end)
 ];
 
 const contexts = new Map<Who, APIRequestContext>();
