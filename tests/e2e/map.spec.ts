@@ -73,17 +73,18 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	expect(created.status()).toBe(201);
 	const networkId = (await created.json()).network.id as number;
 
-	// The importance surface through the layers API, as an analyst would make it.
-	const up = await admin.post(`/api/v1/networks/${networkId}/layers?name=Soil%20moisture&kind=soil_moisture&units=m3%2Fm3&fileName=soil-moisture.tif`, {
+	// The importance surface through the layers API, as an analyst makes it.
+	const analyst = await contextFor('analyst');
+	const up = await analyst.post(`/api/v1/networks/${networkId}/layers?name=Soil%20moisture&kind=soil_moisture&units=m3%2Fm3&fileName=soil-moisture.tif`, {
 		data: readFileSync(demo('soil-moisture.tif')),
 		headers: { 'content-type': 'application/octet-stream', accept: 'application/json' }
 	});
 	expect(up.status()).toBe(201);
 	const layerId = (await up.json()).layer.id as number;
-	const recipe = await admin.post(`/api/v1/networks/${networkId}/recipes`, { data: { name: 'Wetness', definition: { layers: [{ layerId: String(layerId), transform: 'minmax', weight: 1 }] } } });
+	const recipe = await analyst.post(`/api/v1/networks/${networkId}/recipes`, { data: { name: 'Wetness', definition: { layers: [{ layerId: String(layerId), transform: 'minmax', weight: 1 }] } } });
 	expect(recipe.status()).toBe(201);
 	const versionId = (await recipe.json()).version.id as number;
-	expect((await admin.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId } })).ok()).toBe(true);
+	expect((await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId } })).ok()).toBe(true);
 
 	const db = createDb(url, 1);
 	let sensorCount: number;
@@ -143,6 +144,7 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	// A popup on a sensor.
 	await page.locator('.cf-sensor').first().click();
 	await expect(page.locator('.leaflet-popup-content')).toContainText('Serial');
+	await expect(page.locator('.leaflet-popup')).toHaveCSS('opacity', '1');
 	await page.screenshot({ path: '/tmp/map-app-popup.png' });
 
 	// The overview's small map.

@@ -119,7 +119,7 @@ describe('networkMap (service, test database)', () => {
 		// grid coarsened to 160 cells at most (here the original 20 m cells): allow one cell.
 		for (const c of doc.contours) {
 			const want = 1000 * (1 - c.level);
-			for (const [px, py] of c.polygons[0][0]) expect(Math.abs(Math.hypot(px - cx, py - cy) - want)).toBeLessThan(20);
+			for (const [px, py] of c.lines[0]) expect(Math.abs(Math.hypot(px - cx, py - cy) - want)).toBeLessThan(20);
 		}
 		const png = await importancePng(network, t.db, async () => surface);
 		const img = PNG.sync.read(png!);

@@ -123,8 +123,8 @@ export interface MapBackdrop {
 
 export interface MapContour {
 	level: number;
-	/** MultiPolygon coordinates in the map CRS: polygons → rings → points. */
-	polygons: MapPoint[][][];
+	/** Lines (open, or closed when first = last) in the map CRS. */
+	lines: MapPoint[][];
 }
 
 // (map types end)

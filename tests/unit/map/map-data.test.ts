@@ -5,7 +5,8 @@ import {
 	boundsOf,
 	coarsen,
 	contourLevels,
-	contourPolygons,
+	contourLines,
+	fillGaps,
 	insideRings,
 	labelPoint,
 	lonLatRings,
@@ -39,49 +40,85 @@ function cone(n: number, cell: number, h: number, x0 = 500000, y0 = 5800000): Ma
 	return { x0, y0, dx: cell, dy: cell, width: n, height: n, values };
 }
 
-describe('contourPolygons', () => {
-	it('contourPolygons(cone) at level v is a circle of radius h − v about the apex', () => {
+describe('contourLines', () => {
+	it('contourLines(cone) at level v is a closed circle of radius h − v about the apex', () => {
 		// A cone h − d has its level-v set at distance exactly h − v (geometry, no source needed).
-		// Linear interpolation along cell edges is exact for a linear function of distance only on
-		// the axes; elsewhere it errs by a fraction of a cell: allow 0.1 cell.
+		// Linear interpolation between cell centres is exact along the axes only; elsewhere it
+		// errs by a fraction of a cell: allow 0.1 cell.
 		const n = 100;
 		const cell = 10;
 		const r = cone(n, cell, 500);
-		const [c300] = contourPolygons(r, [300]);
+		const [c300] = contourLines(r, [300]);
 		expect(c300.level).toBe(300);
-		expect(c300.polygons).toHaveLength(1);
-		const ring = c300.polygons[0][0];
+		expect(c300.lines).toHaveLength(1);
+		const line = c300.lines[0];
+		expect(line[0]).toEqual(line[line.length - 1]);
 		const cx = 500000 + 500;
 		const cy = 5800000 - 500;
-		for (const [x, y] of ring) expect(Math.abs(Math.hypot(x - cx, y - cy) - 200)).toBeLessThan(0.1 * cell);
-		expect(ring.length).toBeGreaterThan(50);
+		for (const [x, y] of line) expect(Math.abs(Math.hypot(x - cx, y - cy) - 200)).toBeLessThan(0.1 * cell);
+		expect(line.length).toBeGreaterThan(50);
 	});
 
 	it('several levels give nested circles with the level values kept', () => {
 		const r = cone(60, 5, 150);
-		const out = contourPolygons(r, [50, 100]);
+		const out = contourLines(r, [50, 100]);
 		expect(out.map((c) => c.level)).toEqual([50, 100]);
 		const cx = 500000 + 150;
 		const cy = 5800000 - 150;
-		const meanRadius = (ring: MapPoint[]) => ring.reduce((s, [x, y]) => s + Math.hypot(x - cx, y - cy), 0) / ring.length;
-		expect(meanRadius(out[0].polygons[0][0])).toBeCloseTo(100, 0);
-		expect(meanRadius(out[1].polygons[0][0])).toBeCloseTo(50, 0);
+		const meanRadius = (line: MapPoint[]) => line.reduce((s, [x, y]) => s + Math.hypot(x - cx, y - cy), 0) / line.length;
+		expect(meanRadius(out[0].lines[0])).toBeCloseTo(100, 0);
+		expect(meanRadius(out[1].lines[0])).toBeCloseTo(50, 0);
 	});
 
-	it('levels above the maximum give no polygon; no levels give nothing', () => {
+	it('a ramp v = column gives one straight line at the level, without the grid-edge closure', () => {
+		// Values at cell centres x0 + (c + 0.5)·dx; v = 2.5 lies halfway between columns 2 and 3,
+		// at x0 + 3·dx. Nothing is known beyond the outer cell centres: the line spans them only.
+		const w = 6;
+		const h = 4;
+		const r: MapRaster = { x0: 100, y0: 40, dx: 10, dy: 10, width: w, height: h, values: Float64Array.from({ length: w * h }, (_, i) => i % w) };
+		const [c] = contourLines(r, [2.5]);
+		expect(c.lines).toHaveLength(1);
+		for (const [x, y] of c.lines[0]) {
+			expect(x).toBeCloseTo(130, 9);
+			expect(y).toBeGreaterThanOrEqual(40 - (h - 0.5) * 10);
+			expect(y).toBeLessThanOrEqual(40 - 0.5 * 10);
+		}
+		const ys = c.lines[0].map((p) => p[1]);
+		expect(Math.max(...ys) - Math.min(...ys)).toBeCloseTo((h - 1) * 10, 9);
+	});
+
+	it('draws no false line around cells without a value, and none through them', () => {
+		// A constant surface with a hole: no contour at all (the hole is filled, not a pit).
+		const flat: MapRaster = { x0: 0, y0: 10, dx: 1, dy: 1, width: 10, height: 10, values: new Float64Array(100).fill(1) };
+		for (let j = 3; j < 6; j++) for (let i = 3; i < 6; i++) flat.values[j * 10 + i] = NaN;
+		expect(contourLines(flat, [0.5])).toEqual([]);
+		// A ramp whose level-4.5 line would cross the hole: it is cut there.
+		const ramp: MapRaster = { ...flat, values: Float64Array.from({ length: 100 }, (_, k) => k % 10) };
+		for (let j = 3; j < 6; j++) for (let i = 3; i < 7; i++) ramp.values[j * 10 + i] = NaN;
+		const [c] = contourLines(ramp, [4.5]);
+		expect(c.lines).toHaveLength(2);
+		// Hole rows 3–5 have their cell centres at y = 6.5, 5.5, 4.5; a kept piece may reach half
+		// a cell into the hole from either side, never further.
+		const ys = c.lines.flat().map(([, y]) => y);
+		expect(ys.some((y) => y > 4.5 + 1e-9 && y < 6.5 - 1e-9)).toBe(false);
+		expect(ys.some((y) => y > 7)).toBe(true);
+		expect(ys.some((y) => y < 4)).toBe(true);
+	});
+
+	it('levels above the maximum give no line; no levels or no values give nothing', () => {
 		const r = cone(20, 1, 5);
-		expect(contourPolygons(r, [99])).toEqual([]);
-		expect(contourPolygons(r, [])).toEqual([]);
+		expect(contourLines(r, [99])).toEqual([]);
+		expect(contourLines(r, [])).toEqual([]);
+		expect(contourLines({ ...r, values: new Float64Array(400).fill(NaN) }, [1])).toEqual([]);
 	});
+});
 
-	it('cells without a value count as below every level', () => {
-		const r: MapRaster = { x0: 0, y0: 4, dx: 1, dy: 1, width: 4, height: 4, values: new Float64Array(16).fill(1) };
-		r.values[0] = NaN;
-		const [c] = contourPolygons(r, [0.5]);
-		// The NaN corner cell is cut out of the square: the ring avoids the corner (0, 4).
-		const ring = c.polygons[0][0];
-		expect(ring.some(([x, y]) => x === 0 && y === 4)).toBe(false);
-		expect(ring.length).toBeGreaterThan(4);
+describe('fillGaps', () => {
+	it('fills holes from their neighbours and answers null when nothing has a value', () => {
+		const r: MapRaster = { x0: 0, y0: 3, dx: 1, dy: 1, width: 3, height: 3, values: Float64Array.from([2, 2, 2, 2, NaN, 2, 2, 2, NaN]) };
+		expect(Array.from(fillGaps(r)!)).toEqual(new Array(9).fill(2));
+		expect(Number.isNaN(r.values[4])).toBe(true);
+		expect(fillGaps({ ...r, values: new Float64Array(9).fill(NaN) })).toBeNull();
 	});
 });
 

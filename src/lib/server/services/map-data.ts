@@ -249,19 +249,96 @@ export function contourLevels(min: number, max: number, count = 4): number[] {
 }
 
 /**
- * Contour polygons (d3-contour, marching squares with linear interpolation) of a map raster at the
- * given levels, in map CRS coordinates. d3-contour puts value i at grid coordinate i + 0.5, the
- * cell centre, so grid (gx, gy) maps to (x0 + gx·dx, y0 − gy·dy). Cells without a value count as
- * below every level. Levels with no polygon are left out.
+ * The raster with every cell that has no value filled from its valued neighbours (repeated
+ * 8-neighbour means, growing inward from the data), so contouring does not draw a false line
+ * around each hole; null when no cell has a value.
  */
-export function contourPolygons(r: MapRaster, levels: readonly number[]): MapContour[] {
+export function fillGaps(r: MapRaster): Float64Array | null {
+	const { width: w, height: h } = r;
+	let cur = Float64Array.from(r.values);
+	if (!cur.some((v) => Number.isFinite(v))) return null;
+	for (let pass = 0; pass < w + h; pass++) {
+		let missing = 0;
+		const next = Float64Array.from(cur);
+		for (let j = 0; j < h; j++) {
+			for (let i = 0; i < w; i++) {
+				if (Number.isFinite(cur[j * w + i])) continue;
+				let sum = 0;
+				let n = 0;
+				for (let dj = -1; dj <= 1; dj++) {
+					for (let di = -1; di <= 1; di++) {
+						const jj = j + dj;
+						const ii = i + di;
+						if ((di || dj) && jj >= 0 && jj < h && ii >= 0 && ii < w && Number.isFinite(cur[jj * w + ii])) {
+							sum += cur[jj * w + ii];
+							n++;
+						}
+					}
+				}
+				if (n > 0) next[j * w + i] = sum / n;
+				else missing++;
+			}
+		}
+		cur = next;
+		if (missing === 0) break;
+	}
+	return cur;
+}
+
+/**
+ * Contour lines of a map raster at the given levels, in map CRS coordinates (d3-contour: marching
+ * squares with linear interpolation). d3-contour puts value i at grid coordinate i + 0.5, the cell
+ * centre, so grid (gx, gy) maps to (x0 + gx·dx, y0 − gy·dy). Only true contour is kept: d3's
+ * polygons are closed along the grid's edge (outside the cell centres, where nothing is known)
+ * and those pieces are dropped, as are pieces through cells without a value (filled only to
+ * contour across them). Levels with no line are left out.
+ */
+export function contourLines(r: MapRaster, levels: readonly number[]): MapContour[] {
 	if (levels.length === 0) return [];
-	const gen = d3Contours().size([r.width, r.height]).thresholds(levels as number[]);
-	const shapes = gen(Array.from(r.values));
+	const filled = fillGaps(r);
+	if (!filled) return [];
+	const { width: w, height: h } = r;
+	const onEdge = ([gx, gy]: number[]) => gx <= 0 || gx >= w || gy <= 0 || gy >= h;
+	const inHole = (a: number[], b: number[]) => {
+		const i = Math.min(w - 1, Math.max(0, Math.floor((a[0] + b[0]) / 2)));
+		const j = Math.min(h - 1, Math.max(0, Math.floor((a[1] + b[1]) / 2)));
+		return !Number.isFinite(r.values[j * w + i]);
+	};
+	const toMap = ([gx, gy]: number[]): MapPoint => [r.x0 + gx * r.dx, r.y0 - gy * r.dy];
+	const shapes = d3Contours().size([w, h]).thresholds(levels as number[])(Array.from(filled));
 	const out: MapContour[] = [];
 	for (const s of shapes) {
-		const polygons = s.coordinates.map((poly) => poly.map((ring) => ring.map(([gx, gy]) => [r.x0 + gx * r.dx, r.y0 - gy * r.dy] as MapPoint)));
-		if (polygons.length > 0) out.push({ level: s.value, polygons });
+		const lines: MapPoint[][] = [];
+		for (const poly of s.coordinates) {
+			for (const ring of poly) {
+				const runs: number[][][] = [];
+				let run: number[][] = [];
+				const last = ring.length - 2;
+				let firstKept = false;
+				let lastKept = false;
+				for (let k = 0; k <= last; k++) {
+					const a = ring[k];
+					const b = ring[k + 1];
+					if (onEdge(a) || onEdge(b) || inHole(a, b)) {
+						if (run.length > 1) runs.push(run);
+						run = [];
+						continue;
+					}
+					if (k === 0) firstKept = true;
+					if (k === last) lastKept = true;
+					if (run.length === 0) run.push(a);
+					run.push(b);
+				}
+				if (run.length > 1) runs.push(run);
+				// A ring cut somewhere whose first and last pieces are kept: they join where it closes.
+				if (runs.length > 1 && firstKept && lastKept) {
+					const tail = runs.pop() as number[][];
+					runs[0] = [...tail, ...runs[0].slice(1)];
+				}
+				for (const line of runs) lines.push(line.map(toMap));
+			}
+		}
+		if (lines.length > 0) out.push({ level: s.value, lines });
 	}
 	return out;
 }
@@ -465,7 +542,7 @@ export async function networkMap(db: Db, inputs: MapInputs): Promise<MapDocument
 			legend: legendStops(range.min, range.max),
 			approximate: false
 		};
-		contours = contourPolygons(coarsen(raster, 160), contourLevels(range.min, range.max, 4));
+		contours = contourLines(coarsen(raster, 160), contourLevels(range.min, range.max, 4));
 	} else if (layer && layerLL.length > 0) {
 		const fp = boundsOf([], projectMapRings(layerLL, fwd));
 		if (fp) {
