@@ -84,8 +84,45 @@ const checks: Check[] = [
 	{ name: 'API get missing recipe', method: 'GET', path: '/api/v1/networks/1/recipes/999999', expect: api(401, 404, 404, 404, 403) },
 	{ name: 'API delete missing recipe', method: 'DELETE', path: '/api/v1/networks/1/recipes/999999', expect: api(401, 403, 404, 403, 403) },
 	{ name: 'API versions of missing recipe', method: 'GET', path: '/api/v1/networks/1/recipes/999999/versions', expect: api(401, 404, 404, 404, 403) },
-	{ name: 'API add version (no definition)', method: 'POST', path: '/api/v1/networks/1/recipes/999999/versions', json: {}, expect: api(401, 403, 400, 403, 403) }
+	{ name: 'API add version (no definition)', method: 'POST', path: '/api/v1/networks/1/recipes/999999/versions', json: {}, expect: api(401, 403, 400, 403, 403) },
 	// (layers and importance rows end)
+
+	// Sensors, study area and zones (sensor.view / sensor.edit; layer.view / area.edit / zone.edit)
+	{ name: 'sensors page', method: 'GET', path: '/networks/1/sensors', expect: signedIn(200) },
+	{ name: 'sensors page, sorted, filtered, paged', method: 'GET', path: '/networks/1/sensors?sort=lon&dir=desc&status=active&q=x&page=2&perPage=10', expect: signedIn(200) },
+	{ name: 'add sensor type action', method: 'POST', path: '/networks/1/sensors?/createType', form: { name: '' }, expect: page(303, 400, 400, 403, 403) },
+	{ name: 'edit sensor type action', method: 'POST', path: '/networks/1/sensors?/updateType', form: { typeId: 'x' }, expect: page(303, 400, 400, 403, 403) },
+	{ name: 'remove sensor type action', method: 'POST', path: '/networks/1/sensors?/deleteType', form: { typeId: 'x' }, expect: page(303, 400, 400, 403, 403) },
+	{ name: 'add sensor action', method: 'POST', path: '/networks/1/sensors?/create', form: { code: '' }, expect: page(303, 400, 400, 403, 403) },
+	{ name: 'edit sensor action', method: 'POST', path: '/networks/1/sensors?/update', form: { sensorId: 'x' }, expect: page(303, 400, 400, 403, 403) },
+	{ name: 'remove sensor action', method: 'POST', path: '/networks/1/sensors?/delete', form: { sensorId: 'x' }, expect: page(303, 400, 400, 403, 403) },
+	{ name: 'import sensors action', method: 'POST', path: '/networks/1/sensors?/import', form: {}, expect: page(303, 400, 400, 403, 403) },
+	{ name: 'area & zones page', method: 'GET', path: '/networks/1/zones', expect: page(303, 200, 200, 200, 403) },
+	{ name: 'upload study area action', method: 'POST', path: '/networks/1/zones?/studyArea', form: { version: '1' }, expect: page(303, 400, 400, 403, 403) },
+	{ name: 'upload exclusions action', method: 'POST', path: '/networks/1/zones?/exclusions', form: { version: '1' }, expect: page(303, 400, 400, 403, 403) },
+	{ name: 'remove exclusions action', method: 'POST', path: '/networks/1/zones?/clearExclusions', form: { version: 'x' }, expect: page(303, 400, 400, 403, 403) },
+	{ name: 'upload zones action', method: 'POST', path: '/networks/1/zones?/uploadZones', form: {}, expect: page(303, 403, 400, 403, 403) },
+	{ name: 'grid zones action', method: 'POST', path: '/networks/1/zones?/gridZones', form: { cellSizeKm: 'x' }, expect: page(303, 403, 400, 403, 403) },
+	{ name: 'computed zones action', method: 'POST', path: '/networks/1/zones?/computedZones', form: { k: 'x' }, expect: page(303, 403, 400, 403, 403) },
+	{ name: 'use zone set action', method: 'POST', path: '/networks/1/zones?/use', form: { zoneSetId: 'x' }, expect: page(303, 403, 400, 403, 403) },
+	{ name: 'measure zone set action', method: 'POST', path: '/networks/1/zones?/measure', form: { zoneSetId: 'x' }, expect: page(303, 403, 400, 403, 403) },
+	{ name: 'remove zone set action', method: 'POST', path: '/networks/1/zones?/delete', form: { zoneSetId: 'x' }, expect: page(303, 403, 400, 403, 403) },
+	{ name: 'API list sensor types', method: 'GET', path: '/api/v1/networks/1/sensor-types', expect: api(401, 200, 200, 200, 200) },
+	{ name: 'API create sensor type', method: 'POST', path: '/api/v1/networks/1/sensor-types', json: { name: '' }, expect: api(401, 400, 400, 403, 403) },
+	{ name: 'API get missing sensor type', method: 'GET', path: '/api/v1/networks/1/sensor-types/999999', expect: api(401, 404, 404, 404, 404) },
+	{ name: 'API update sensor type', method: 'POST', path: '/api/v1/networks/1/sensor-types/999999', json: { name: '' }, expect: api(401, 400, 400, 403, 403) },
+	{ name: 'API list sensors', method: 'GET', path: '/api/v1/networks/1/sensors?sort=code&perPage=10', expect: api(401, 200, 200, 200, 200) },
+	{ name: 'API export sensors CSV', method: 'GET', path: '/api/v1/networks/1/sensors?format=csv', expect: api(401, 200, 200, 200, 200) },
+	{ name: 'API export sensors GeoJSON', method: 'GET', path: '/api/v1/networks/1/sensors?format=geojson', expect: api(401, 200, 200, 200, 200) },
+	{ name: 'API create sensor', method: 'POST', path: '/api/v1/networks/1/sensors', json: { code: '' }, expect: api(401, 400, 400, 403, 403) },
+	{ name: 'API get missing sensor', method: 'GET', path: '/api/v1/networks/1/sensors/999999', expect: api(401, 404, 404, 404, 404) },
+	{ name: 'API update sensor', method: 'POST', path: '/api/v1/networks/1/sensors/999999', json: { version: 'x' }, expect: api(401, 400, 400, 403, 403) },
+	{ name: 'API list zone sets', method: 'GET', path: '/api/v1/networks/1/zone-sets', expect: api(401, 200, 200, 200, 403) },
+	{ name: 'API create zone set', method: 'POST', path: '/api/v1/networks/1/zone-sets', json: { kind: 'nonsense' }, expect: api(401, 403, 400, 403, 403) },
+	{ name: 'API get missing zone set', method: 'GET', path: '/api/v1/networks/1/zone-sets/999999', expect: api(401, 404, 404, 404, 403) },
+	{ name: 'API use zone set', method: 'POST', path: '/api/v1/networks/1/zone-sets/999999', json: { inUse: 'x' }, expect: api(401, 403, 400, 403, 403) },
+	{ name: 'API get area', method: 'GET', path: '/api/v1/networks/1/area', expect: api(401, 200, 200, 200, 200) },
+	{ name: 'API set area', method: 'POST', path: '/api/v1/networks/1/area', json: { version: 'x' }, expect: api(401, 400, 400, 403, 403) }
 ];
 
 const contexts = new Map<Who, APIRequestContext>();

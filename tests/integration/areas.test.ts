@@ -47,3 +47,13 @@ describe('study area and exclusions', () => {
 		expect(ok.exclusions!.features[0].properties.name).toBe('no access permission');
 	});
 });
+
+describe('stored shapes from elsewhere', () => {
+	it('a bare Polygon study area (as the demo seed stores it) and bare-geometry exclusions are read as MultiPolygon features', async () => {
+		const { studyAreaMultiPolygon, exclusionList } = await import('../../src/lib/server/services/areas');
+		const ring = [[0, 0], [1, 0], [1, 1], [0, 0]];
+		expect(studyAreaMultiPolygon({ type: 'Polygon', coordinates: [ring] })).toEqual({ type: 'MultiPolygon', coordinates: [[ring]] });
+		expect(studyAreaMultiPolygon({ type: 'Point', coordinates: [0, 0] })).toBeNull();
+		expect(exclusionList({ type: 'Polygon', coordinates: [ring] })).toEqual([{ type: 'Feature', properties: { name: 'Exclusion 1' }, geometry: { type: 'MultiPolygon', coordinates: [[ring]] } }]);
+	});
+});

@@ -165,3 +165,20 @@ describe('zone sets service', () => {
 		expect(await t.db('zone_sets').count({ n: '*' })).toEqual(before);
 	});
 });
+
+describe('zones on a network whose study area is a bare Polygon', () => {
+	it('a grid is laid over it as over a MultiPolygon', async () => {
+		const t = await createTestDatabase();
+		try {
+			const m = await makeMember(t.db, 'analyst');
+			const id = await createNetwork(t.db, m.organisationId, m.userId, { name: 'Polygon area', description: '', crsEpsg: null, publicText: '' });
+			await t.db('networks').where({ id }).update({ study_area: JSON.stringify({ type: 'Polygon', coordinates: studyArea.coordinates[0] }) });
+			const net = (await findNetwork(t.db, id))!;
+			const setId = await createGridZoneSet(t.db, net, m.userId, '', 9, null);
+			const set = (await zoneSetViews(t.db, net)).find((s) => s.id === setId)!;
+			expect(set.zones.length).toBe(gridZones(studyArea, 32632, 9000).length);
+		} finally {
+			await t.drop();
+		}
+	});
+});

@@ -225,6 +225,107 @@ export function layerUploadQuery(meta: LayerUploadMeta): string {
 }
 // ---- (layers and recipes types end) -------------------------------------------------------
 
+// ---- Sensors, study area and zones (types) --------------------------------------------------
+export type Mobility = 'fixed' | 'relocatable' | 'mobile';
+export type SensorStatus = 'active' | 'faulty' | 'retired';
+
+export interface SensorType {
+	id: number;
+	name: string;
+	radiusM: number;
+	mobility: Mobility;
+	relocationMinutes: number | null;
+	notes: string;
+}
+export interface SensorTypeInput {
+	name: string;
+	radiusM: number;
+	mobility: Mobility;
+	relocationMinutes?: number | null;
+	notes?: string;
+}
+export interface Sensor {
+	id: number;
+	code: string;
+	serial: string;
+	typeId: number;
+	type: string;
+	lon: number;
+	lat: number;
+	/** In the working CRS (metres), null when it is not known. */
+	x: number | null;
+	y: number | null;
+	status: SensorStatus;
+	installedOn: string | null;
+	notes: string;
+	version: number;
+}
+/** lon/lat (positionMode 'lonlat', the default) or x/y in the working CRS (positionMode 'xy'). */
+export interface SensorInput {
+	code: string;
+	serial: string;
+	typeId: number;
+	positionMode?: 'lonlat' | 'xy';
+	lon?: number;
+	lat?: number;
+	x?: number;
+	y?: number;
+	installedOn?: string | null;
+	status?: SensorStatus;
+	notes?: string;
+}
+export interface SensorListQuery {
+	sort?: 'code' | 'serial' | 'type' | 'status' | 'installed_on' | 'lon' | 'lat';
+	dir?: 'asc' | 'desc';
+	type?: number;
+	status?: SensorStatus;
+	q?: string;
+	page?: number;
+	perPage?: 10 | 25 | 50 | 100;
+}
+export interface SensorList {
+	sensors: Sensor[];
+	total: number;
+	page: number;
+	pages: number;
+	perPage: number;
+	workingCrs: number | null;
+}
+export interface GeoMultiPolygon {
+	type: 'MultiPolygon';
+	coordinates: [number, number][][][];
+}
+export interface ExclusionFeature {
+	type: 'Feature';
+	properties: { name: string };
+	geometry: GeoMultiPolygon;
+}
+export interface NetworkArea {
+	version: number;
+	studyArea: GeoMultiPolygon | null;
+	exclusions: ExclusionFeature[];
+}
+export interface Zone {
+	id: number;
+	code: string;
+	name: string;
+	importanceShare: number | null;
+	sensorCount: number;
+	geometry?: GeoMultiPolygon;
+}
+export interface ZoneSet {
+	id: number;
+	name: string;
+	kind: 'uploaded' | 'grid' | 'computed';
+	params: Record<string, unknown> | null;
+	inUse: boolean;
+	recipeVersionId: number | null;
+	createdAt: string;
+	zones: Zone[];
+}
+export type ZoneSetInput = { kind: 'uploaded'; name?: string; geojson: unknown } | { kind: 'grid'; name?: string; cellSizeKm: number } | { kind: 'computed'; name?: string; k: number };
+// ---- (sensors and zones types end) -----------------------------------------------------------
+
 type Fetch = typeof fetch;
 
 export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
@@ -276,6 +377,29 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		previewRecipe: (networkId: number, definition: RecipeDefinition) => call<{ preview: RecipePreview }>('POST', `/networks/${networkId}/recipes/preview`, { definition }).then((r) => r.preview),
 		useRecipeVersion: (networkId: number, versionId: number) => call<{ versionId: number }>('POST', `/networks/${networkId}/recipes/current`, { versionId }),
 		// ---- (layers and recipes end) ----
+		// ---- Sensors, study area and zones ----
+		listSensorTypes: (networkId: number) => call<{ sensorTypes: SensorType[] }>('GET', `/networks/${networkId}/sensor-types`).then((r) => r.sensorTypes),
+		createSensorType: (networkId: number, input: SensorTypeInput) => call<{ sensorType: SensorType }>('POST', `/networks/${networkId}/sensor-types`, input).then((r) => r.sensorType),
+		updateSensorType: (networkId: number, typeId: number, input: SensorTypeInput) => call<{ sensorType: SensorType }>('POST', `/networks/${networkId}/sensor-types/${typeId}`, input).then((r) => r.sensorType),
+		deleteSensorType: (networkId: number, typeId: number) => call<null>('DELETE', `/networks/${networkId}/sensor-types/${typeId}`),
+		listSensors: (networkId: number, query: SensorListQuery = {}) => {
+			const p = new URLSearchParams(Object.entries(query).filter(([, v]) => v !== undefined && v !== '').map(([k, v]) => [k, String(v)]));
+			return call<SensorList>('GET', `/networks/${networkId}/sensors${p.size ? `?${p}` : ''}`);
+		},
+		getSensor: (networkId: number, sensorId: number) => call<{ sensor: Sensor }>('GET', `/networks/${networkId}/sensors/${sensorId}`).then((r) => r.sensor),
+		createSensor: (networkId: number, input: SensorInput) => call<{ sensor: Sensor }>('POST', `/networks/${networkId}/sensors`, input).then((r) => r.sensor),
+		updateSensor: (networkId: number, sensorId: number, input: SensorInput & { version: number }) => call<{ sensor: Sensor }>('POST', `/networks/${networkId}/sensors/${sensorId}`, input).then((r) => r.sensor),
+		deleteSensor: (networkId: number, sensorId: number, version: number) => call<null>('DELETE', `/networks/${networkId}/sensors/${sensorId}?version=${version}`),
+		/** URL of the inventory download (CSV or GeoJSON), for a link or a fetch. */
+		sensorExportUrl: (networkId: number, format: 'csv' | 'geojson') => `${base}/networks/${networkId}/sensors?format=${format}`,
+		getArea: (networkId: number) => call<{ area: NetworkArea }>('GET', `/networks/${networkId}/area`).then((r) => r.area),
+		setArea: (networkId: number, input: { version: number; studyArea?: unknown; exclusions?: unknown[] }) => call<{ area: NetworkArea }>('POST', `/networks/${networkId}/area`, input).then((r) => r.area),
+		listZoneSets: (networkId: number, opts: { geometry?: boolean } = {}) => call<{ zoneSets: ZoneSet[] }>('GET', `/networks/${networkId}/zone-sets${opts.geometry ? '?geometry=1' : ''}`).then((r) => r.zoneSets),
+		getZoneSet: (networkId: number, zoneSetId: number) => call<{ zoneSet: ZoneSet }>('GET', `/networks/${networkId}/zone-sets/${zoneSetId}`).then((r) => r.zoneSet),
+		createZoneSet: (networkId: number, input: ZoneSetInput) => call<{ zoneSet: ZoneSet }>('POST', `/networks/${networkId}/zone-sets`, input).then((r) => r.zoneSet),
+		useZoneSet: (networkId: number, zoneSetId: number, inUse = true) => call<{ zoneSet: ZoneSet }>('POST', `/networks/${networkId}/zone-sets/${zoneSetId}`, { inUse }).then((r) => r.zoneSet),
+		deleteZoneSet: (networkId: number, zoneSetId: number) => call<null>('DELETE', `/networks/${networkId}/zone-sets/${zoneSetId}`),
+		// ---- (sensors and zones end) ----
 		call
 	};
 }

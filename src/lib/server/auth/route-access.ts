@@ -43,6 +43,13 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 
 	// Sensors, study area and zones
 	'/(app)/networks/[id=id]/sensors': 'signed-in',
-	'/(app)/networks/[id=id]/zones': 'signed-in'
+	'/(app)/networks/[id=id]/zones': 'signed-in',
+	'/api/v1/networks/[id=id]/sensor-types': 'signed-in',
+	'/api/v1/networks/[id=id]/sensor-types/[typeId=id]': 'signed-in',
+	'/api/v1/networks/[id=id]/sensors': 'signed-in',
+	'/api/v1/networks/[id=id]/sensors/[sensorId=id]': 'signed-in',
+	'/api/v1/networks/[id=id]/zone-sets': 'signed-in',
+	'/api/v1/networks/[id=id]/zone-sets/[zoneSetId=id]': 'signed-in',
+	'/api/v1/networks/[id=id]/area': 'signed-in'
 	// (sensors routes end)
 };

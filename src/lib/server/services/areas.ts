@@ -45,12 +45,31 @@ export function toExclusions(features: readonly PolygonFeature[]): ExclusionColl
 	};
 }
 
-/** The exclusions stored on a network as a list (tolerates a bare list or a FeatureCollection). */
+/** A stored study area as a MultiPolygon (older rows, e.g. the demo seed, hold a bare Polygon). */
+export function studyAreaMultiPolygon(v: unknown): MultiPolygonGeometry | null {
+	if (!v || typeof v !== 'object') return null;
+	const g = v as { type?: unknown; coordinates?: unknown };
+	if (!Array.isArray(g.coordinates) || g.coordinates.length === 0) return null;
+	if (g.type === 'MultiPolygon') return v as MultiPolygonGeometry;
+	if (g.type === 'Polygon') return { type: 'MultiPolygon', coordinates: [g.coordinates as MultiPolygonGeometry['coordinates'][number]] };
+	return null;
+}
+
+/**
+ * The exclusions stored on a network as a list of named features (tolerates a bare list, a
+ * FeatureCollection, or a bare Polygon/MultiPolygon geometry).
+ */
 export function exclusionList(v: unknown): ExclusionFeature[] {
-	if (!v) return [];
-	if (Array.isArray(v)) return v as ExclusionFeature[];
-	if (typeof v === 'object' && Array.isArray((v as { features?: unknown }).features)) return (v as ExclusionCollection).features;
-	return [];
+	if (!v || typeof v !== 'object') return [];
+	const list: unknown[] = Array.isArray(v) ? v : Array.isArray((v as { features?: unknown }).features) ? (v as ExclusionCollection).features : [{ type: 'Feature', properties: {}, geometry: v }];
+	const out: ExclusionFeature[] = [];
+	list.forEach((f, i) => {
+		const geometry = studyAreaMultiPolygon((f as { geometry?: unknown } | null)?.geometry);
+		if (!geometry) return;
+		const name = (f as { properties?: { name?: unknown } }).properties?.name;
+		out.push({ type: 'Feature', properties: { name: typeof name === 'string' && name ? name : `Exclusion ${i + 1}` }, geometry });
+	});
+	return out;
 }
 
 function parseOrFail(field: string, fn: () => PolygonFeature[]): PolygonFeature[] {
@@ -106,5 +125,5 @@ export async function setArea(
 }
 
 export function areaView(n: NetworkRow) {
-	return { version: n.version, studyArea: (n.study_area as MultiPolygonGeometry | null) ?? null, exclusions: exclusionList(n.exclusions) };
+	return { version: n.version, studyArea: studyAreaMultiPolygon(n.study_area), exclusions: exclusionList(n.exclusions) };
 }

@@ -19,17 +19,23 @@ import {
 	listZoneSets,
 	networkZoneSetId,
 	setNetworkZoneSet,
+	setZoneShare,
 	type ZoneRow,
 	type ZoneSetKind,
 	type ZoneSetRow
 } from '../repositories/zones';
-import { parsePolygonUpload, PolygonError, ringArea2, type MultiPolygonGeometry, type Position, type Ring } from '../../geo/polygons';
+import { parsePolygonUpload, PolygonError, ringArea2, type MultiPolygonGeometry, type Position } from '../../geo/polygons';
 import { projectRings } from '../../geo/geojson';
-import { parseEpsg, transformer } from '../../geo/crs';
+import { CrsError, parseEpsg, transformer } from '../../geo/crs';
 import { computeZones } from '../../engine/zones';
 import { rasterizeZones } from '../../engine/rasterize';
 import type { WorkingGrid, ZoneMap } from '../../engine/types';
 import { EngineInputError } from '../../engine/errors';
+import { buildWorkingGrid, WorkingGridError } from '../../geo/working-grid';
+import { ImportanceError } from '../../importance/grid';
+import type { ObjectStore } from '../storage';
+import { networkImportance, surfaceRasterBand } from './importance';
+import { exclusionList, studyAreaMultiPolygon } from './areas';
 import { workingCrsOf } from './sensors';
 import { ServiceError } from './errors';
 
@@ -245,6 +251,49 @@ function sharesOfMap(grid: WorkingGrid, map: ZoneMap): (number | null)[] {
 	return total > 0 ? Array.from(sums, (s) => s / total) : map.ids.map(() => null);
 }
 
+/** Largest importance grid used for zones; coarser cells are taken beyond it (zones are coarse). */
+const MAX_ZONE_GRID_CELLS = 250_000;
+
+/**
+ * The network's importance (its chosen recipe version) on the working grid, clipped to the study
+ * area and with exclusions at zero; null when no recipe version is chosen yet.
+ */
+export async function importanceForZones(db: Knex, store: ObjectStore, network: NetworkRow): Promise<ImportanceSurface | null> {
+	try {
+		const imp = await networkImportance(db, store, network.id);
+		if (!imp) return null;
+		const area = studyAreaMultiPolygon(network.study_area);
+		const opts = {
+			crs: workingCrsOf(network),
+			studyArea: area?.coordinates?.length ? area.coordinates : undefined,
+			exclusions: exclusionList(network.exclusions).map((f) => f.geometry.coordinates).flat()
+		};
+		let { grid } = buildWorkingGrid(surfaceRasterBand(imp), opts);
+		const cells = grid.width * grid.height;
+		if (cells > MAX_ZONE_GRID_CELLS) ({ grid } = buildWorkingGrid(surfaceRasterBand(imp), { ...opts, cellSize: grid.cellSize * Math.sqrt(cells / MAX_ZONE_GRID_CELLS) }));
+		return { grid, recipeVersionId: imp.recipeVersionId };
+	} catch (e) {
+		// A recipe that cannot be computed (a layer gone, a grid outside the study area …): say so.
+		if (e instanceof ImportanceError || e instanceof WorkingGridError || e instanceof CrsError) {
+			throw new ServiceError(422, 'importance_unavailable', `The importance cannot be measured: ${e.message}`);
+		}
+		throw e;
+	}
+}
+
+/** Re-measure the shares of a zone set against the current importance (or clear them). */
+export async function measureZoneSet(db: Knex, network: NetworkRow, actorId: number, zoneSetId: number, importance: ImportanceSurface | null): Promise<void> {
+	await db.transaction(async (trx) => {
+		const set = await findZoneSet(trx, network.id, zoneSetId);
+		if (!set) throw new ServiceError(404, 'not_found', 'No such zone set.');
+		const zones = await listZones(trx, [set.id]);
+		const shares = importance ? zoneShares(importance.grid, zones.map((z) => z.geometry)) : zones.map(() => null);
+		for (let k = 0; k < zones.length; k++) await setZoneShare(trx, zones[k].id, shares[k]);
+		await trx('zone_sets').where({ id: set.id }).update({ recipe_version_id: importance?.recipeVersionId ?? null });
+		await recordAudit(trx, { organisationId: network.organisation_id, actorUserId: actorId, action: 'zone_set.measure', objectType: 'zone_set', objectId: set.id, after: { recipe_version_id: importance?.recipeVersionId ?? null } });
+	});
+}
+
 // ---------------------------------------------------------------- inputs
 
 export const gridInput = z.object({
@@ -264,9 +313,8 @@ export const zoneSetApiInput = z.discriminatedUnion('kind', [
 // ---------------------------------------------------------------- use cases
 
 function studyAreaOf(network: NetworkRow): MultiPolygonGeometry {
-	const a = network.study_area as MultiPolygonGeometry | null;
-	if (!a || !Array.isArray(a.coordinates) || a.coordinates.length === 0) throw new ServiceError(422, 'no_study_area', 'Outline the study area first.');
-	if ((a as { type: string }).type === 'Polygon') return { type: 'MultiPolygon', coordinates: [a.coordinates as unknown as Ring[]] };
+	const a = studyAreaMultiPolygon(network.study_area);
+	if (!a) throw new ServiceError(422, 'no_study_area', 'Outline the study area first.');
 	return a;
 }
 
@@ -364,6 +412,8 @@ export interface ZoneSetView {
 	kind: ZoneSetKind;
 	params: Record<string, unknown> | null;
 	inUse: boolean;
+	/** The importance recipe version the shares were measured with (null: not measured). */
+	recipeVersionId: number | null;
 	createdAt: Date;
 	zones: ZoneView[];
 }
@@ -375,6 +425,7 @@ function view(set: ZoneSetRow, zones: ZoneRow[], points: { lon: number; lat: num
 		kind: set.kind,
 		params: set.params,
 		inUse,
+		recipeVersionId: set.recipe_version_id,
 		createdAt: set.created_at,
 		zones: zones.map((z) => ({
 			id: z.id,
