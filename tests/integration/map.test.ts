@@ -126,6 +126,26 @@ describe('networkMap (service, test database)', () => {
 		expect([img.width, img.height]).toEqual([100, 100]);
 	});
 
+	it('without importance, the latest ready layer preview is the backdrop, for roles that may view layers only', async () => {
+		const network = (await findNetwork(t.db, networkId))!;
+		const footprint = square(9, 52, 0.02);
+		await t.db('layers').insert([
+			{ network_id: networkId, name: 'older', kind: 'soil_moisture', status: 'ready', preview_key: 'previews/a', epsg: 32632, footprint: JSON.stringify(footprint), stat_min: 0.1, stat_max: 0.2, created_at: new Date('2026-01-01') },
+			{ network_id: networkId, name: 'newest', kind: 'soil_moisture', status: 'ready', preview_key: 'previews/b', epsg: 32632, footprint: JSON.stringify(footprint), stat_min: 0.05, stat_max: 0.15, created_at: new Date('2026-03-01') },
+			{ network_id: networkId, name: 'failed', kind: 'other', status: 'failed', created_at: new Date('2026-05-01') }
+		]);
+		const newest = await t.db('layers').where({ network_id: networkId, name: 'newest' }).first();
+		const doc = await networkMap(t.db, { network, importance: async () => null, apiBase: '/api/v1/networks/9', mayViewLayers: true });
+		expect(doc.backdrop).toMatchObject({ kind: 'layer', label: 'newest', url: `/api/v1/networks/9/layers/${newest.id}/preview.png`, min: 0.05, max: 0.15 });
+		// The bounds hold the footprint corners projected with proj4.
+		const [xw, ys] = proj4('EPSG:4326', UTM32, [8.98, 51.98]);
+		expect(doc.backdrop!.bounds[0]).toBeLessThanOrEqual(xw + 1e-6);
+		expect(doc.backdrop!.bounds[1]).toBeCloseTo(Math.min(ys, proj4('EPSG:4326', UTM32, [9.02, 51.98])[1]), 6);
+		const forTechnician = await networkMap(t.db, { network, importance: async () => null, apiBase: '/api/v1/networks/9', mayViewLayers: false });
+		expect(forTechnician.backdrop).toBeNull();
+		await t.db('layers').where({ network_id: networkId }).delete();
+	});
+
 	it('a network with nothing positioned has no map CRS and empty lists', async () => {
 		const admin = await makeMember(t.db, 'admin');
 		const [id] = await t.db('networks').insert({ organisation_id: admin.organisationId, slug: 'empty', name: 'Empty', description: '', public_text: '' });

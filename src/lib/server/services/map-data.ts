@@ -456,6 +456,11 @@ export interface MapInputs {
 	importance: ImportanceSource;
 	/** Base of the network's API URLs, e.g. /api/v1/networks/7. */
 	apiBase: string;
+	/**
+	 * Whether the caller may see layers (layer.view): only then does a network without importance
+	 * get the latest layer's preview as its backdrop (that PNG is served under layer.view).
+	 */
+	mayViewLayers?: boolean;
 }
 
 /** Assembles the map document from the database (read-only) and the importance source. */
@@ -543,7 +548,7 @@ export async function networkMap(db: Db, inputs: MapInputs): Promise<MapDocument
 			approximate: false
 		};
 		contours = contourLines(coarsen(raster, 160), contourLevels(range.min, range.max, 4));
-	} else if (layer && layerLL.length > 0) {
+	} else if (layer && layerLL.length > 0 && inputs.mayViewLayers) {
 		const fp = boundsOf([], projectMapRings(layerLL, fwd));
 		if (fp) {
 			const min = layer.stat_min ?? 0;
