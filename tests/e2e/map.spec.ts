@@ -124,6 +124,7 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	await expect(legend).toContainText('soil moisture probe');
 	await expect(legend).toContainText('cosmic-ray neutron sensor');
 	await expect(page.getByTestId('map-summary')).toContainText(`${sensorCount} sensors`);
+	await legend.screenshot({ path: '/tmp/map-app-legend.png' });
 
 	// Toggle the sensors off and on again.
 	const toggle = page.getByTestId('map-toggles').getByLabel('Sensors', { exact: true });
