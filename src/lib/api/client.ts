@@ -53,7 +53,7 @@ export type MapRings = MapPoint[][];
 /** [minX, minY, maxX, maxY] in the map's CRS. */
 export type MapBounds = [number, number, number, number];
 
-export type SensorStatus = 'active' | 'faulty' | 'retired';
+// SensorStatus ('active' | 'faulty' | 'retired') is the sensors block's, below.
 
 export interface MapDocument {
 	network: { id: number; name: string };
