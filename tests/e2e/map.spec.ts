@@ -118,6 +118,8 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	await expect(page.locator('path.cf-contour').first()).toBeVisible();
 	await expect(page.locator('path.cf-exclusion')).toHaveCount(1);
 	await expect(page.locator('path.cf-zone')).toHaveCount(4);
+	// One sensing disk per sensor that is not retired.
+	await expect(page.locator('path.cf-disk')).toHaveCount(doc.sensors.filter((s: { status: string }) => s.status !== 'retired').length);
 	await expect(page.locator('.leaflet-control-scale-line')).toContainText(/\d+ (m|km)/);
 	const legend = page.getByTestId('map-legend');
 	await expect(legend).toContainText('Importance');
@@ -147,6 +149,17 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	await expect(page.locator('.leaflet-popup-content')).toContainText('Serial');
 	await expect(page.locator('.leaflet-popup')).toHaveCSS('opacity', '1');
 	await page.screenshot({ path: '/tmp/map-app-popup.png' });
+
+	// Zoomed in on a neutron sensor (square): its 150 m disk is a true circle; the scale bar follows.
+	await page.keyboard.press('Escape');
+	const square = page.locator('.cf-sensor rect').first();
+	const sq = (await square.boundingBox())!;
+	const scaleBefore = await page.locator('.leaflet-control-scale-line').textContent();
+	await page.mouse.move(sq.x + sq.width / 2, sq.y + sq.height / 2);
+	for (let k = 0; k < 6; k++) await page.mouse.wheel(0, -400);
+	await expect(page.locator('.leaflet-control-scale-line')).not.toHaveText(scaleBefore ?? '');
+	await expect(page.locator('.leaflet-zoom-anim')).toHaveCount(0);
+	await page.screenshot({ path: '/tmp/map-app-zoomed.png' });
 
 	// The overview's small map.
 	await page.goto(`/networks/${networkId}`);
