@@ -151,7 +151,8 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	await page.screenshot({ path: '/tmp/map-app-popup.png' });
 
 	// Zoomed in on a neutron sensor (square): its 150 m disk is a true circle; the scale bar follows.
-	await page.keyboard.press('Escape');
+	await page.locator('.leaflet-popup-close-button').click();
+	await expect(page.locator('.leaflet-popup')).toHaveCount(0);
 	const square = page.locator('.cf-sensor rect').first();
 	const sq = (await square.boundingBox())!;
 	const scaleBefore = await page.locator('.leaflet-control-scale-line').textContent();
