@@ -12,7 +12,7 @@ const WHO: Who[] = ['anon', 'admin', 'analyst', 'reviewer', 'technician'];
 
 interface Check {
 	name: string;
-	method: 'GET' | 'POST';
+	method: 'GET' | 'POST' | 'DELETE';
 	path: string;
 	form?: Record<string, string>;
 	json?: unknown;
@@ -57,6 +57,35 @@ const checks: Check[] = [
 	{ name: 'API get missing network', method: 'GET', path: '/api/v1/networks/999999', expect: api(401, 404, 404, 404, 404) },
 	{ name: 'API update network', method: 'POST', path: '/api/v1/networks/1', json: { version: 'x' }, expect: api(401, 400, 400, 403, 403) },
 	{ name: 'API unknown route', method: 'GET', path: '/api/v1/nothing-here', expect: api(404, 404, 404, 404, 404) },
+
+	// Map
+	{ name: 'map page', method: 'GET', path: '/networks/1/map', expect: signedIn(200) },
+	{ name: 'map page of a missing network', method: 'GET', path: '/networks/999999/map', expect: page(303, 404, 404, 404, 404) },
+	{ name: 'API network map', method: 'GET', path: '/api/v1/networks/1/map', expect: api(401, 200, 200, 200, 200) },
+	{ name: 'API map of a missing network', method: 'GET', path: '/api/v1/networks/999999/map', expect: api(401, 404, 404, 404, 404) },
+	// The demo network has no importance recipe yet: every member gets the 404 that says so.
+	{ name: 'API map importance PNG (none yet)', method: 'GET', path: '/api/v1/networks/1/map/importance.png', expect: api(401, 404, 404, 404, 404) },
+	// (map rows end)
+
+	// Layers and importance (layer.view: admin, analyst, reviewer; layer.edit and recipe.edit: analyst)
+	{ name: 'layers page', method: 'GET', path: '/networks/1/layers', expect: page(303, 200, 200, 200, 403) },
+	{ name: 'importance page', method: 'GET', path: '/networks/1/importance', expect: page(303, 200, 200, 200, 403) },
+	{ name: 'API list layers', method: 'GET', path: '/api/v1/networks/1/layers', expect: api(401, 200, 200, 200, 403) },
+	{ name: 'API list layers of a missing network', method: 'GET', path: '/api/v1/networks/999999/layers', expect: api(401, 404, 404, 404, 404) },
+	{ name: 'API upload layer (no metadata)', method: 'POST', path: '/api/v1/networks/1/layers', json: {}, expect: api(401, 403, 400, 403, 403) },
+	{ name: 'API get missing layer', method: 'GET', path: '/api/v1/networks/1/layers/999999', expect: api(401, 404, 404, 404, 403) },
+	{ name: 'API preview of missing layer', method: 'GET', path: '/api/v1/networks/1/layers/999999/preview.png', expect: api(401, 404, 404, 404, 403) },
+	{ name: 'API delete missing layer', method: 'DELETE', path: '/api/v1/networks/1/layers/999999', expect: api(401, 403, 404, 403, 403) },
+	{ name: 'API list recipes', method: 'GET', path: '/api/v1/networks/1/recipes', expect: api(401, 200, 200, 200, 403) },
+	{ name: 'API create recipe (no name)', method: 'POST', path: '/api/v1/networks/1/recipes', json: {}, expect: api(401, 403, 400, 403, 403) },
+	{ name: 'API preview recipe (no layers)', method: 'POST', path: '/api/v1/networks/1/recipes/preview', json: {}, expect: api(401, 403, 400, 403, 403) },
+	{ name: 'API current recipe version', method: 'GET', path: '/api/v1/networks/1/recipes/current', expect: api(401, 200, 200, 200, 403) },
+	{ name: 'API use recipe version (no id)', method: 'POST', path: '/api/v1/networks/1/recipes/current', json: {}, expect: api(401, 403, 400, 403, 403) },
+	{ name: 'API get missing recipe', method: 'GET', path: '/api/v1/networks/1/recipes/999999', expect: api(401, 404, 404, 404, 403) },
+	{ name: 'API delete missing recipe', method: 'DELETE', path: '/api/v1/networks/1/recipes/999999', expect: api(401, 403, 404, 403, 403) },
+	{ name: 'API versions of missing recipe', method: 'GET', path: '/api/v1/networks/1/recipes/999999/versions', expect: api(401, 404, 404, 404, 403) },
+	{ name: 'API add version (no definition)', method: 'POST', path: '/api/v1/networks/1/recipes/999999/versions', json: {}, expect: api(401, 403, 400, 403, 403) },
+	// (layers and importance rows end)
 
 	// Sensors, study area and zones (sensor.view / sensor.edit; layer.view / area.edit / zone.edit)
 	{ name: 'sensors page', method: 'GET', path: '/networks/1/sensors', expect: signedIn(200) },
@@ -113,6 +142,8 @@ for (const check of checks) {
 			const res =
 				check.method === 'GET'
 					? await ctx.get(check.path, { headers: { accept: check.path.startsWith('/api/') ? 'application/json' : 'text/html' } })
+					: check.method === 'DELETE'
+						? await ctx.delete(check.path, { headers: { accept: 'application/json' } })
 					: check.json !== undefined
 						? await ctx.post(check.path, { data: check.json, headers: { accept: 'application/json' } })
 						: await ctx.post(check.path, { form: check.form ?? {}, headers: { accept: 'text/html' } });

@@ -43,6 +43,92 @@ export interface NetworkPatch {
 	publication?: 'private' | 'published';
 }
 
+// ---------------------------------------------------------------------------------------------
+// Network map (GET /api/v1/networks/:id/map), assembled in src/lib/server/services/map-data.ts
+
+/** [x, y] in the map's CRS (working CRS metres). */
+export type MapPoint = [number, number];
+/** Rings of one shape, drawn with the even-odd rule (holes and multi-part shapes alike). */
+export type MapRings = MapPoint[][];
+/** [minX, minY, maxX, maxY] in the map's CRS. */
+export type MapBounds = [number, number, number, number];
+
+// SensorStatus ('active' | 'faulty' | 'retired') is the sensors block's, below.
+
+export interface MapDocument {
+	network: { id: number; name: string };
+	/** The working CRS the map is drawn in; null when the network has nothing with a position yet. */
+	crs: { epsg: number; proj4: string } | null;
+	extent: MapBounds | null;
+	studyArea: MapRings;
+	exclusions: MapRings;
+	zoneSet: { id: number; name: string; kind: string } | null;
+	zones: MapZone[];
+	sensorTypes: MapSensorType[];
+	sensors: MapSensor[];
+	backdrop: MapBackdrop | null;
+	contours: MapContour[];
+}
+
+export interface MapZone {
+	id: number;
+	code: string;
+	name: string;
+	/** Share of the importance mass (0..1) as measured when the zone set was made; null if never. */
+	importanceShare: number | null;
+	/** Sensors (not retired) standing inside the zone. */
+	sensorCount: number;
+	rings: MapRings;
+	/** Where the label goes (area centroid of the largest ring). */
+	labelAt: MapPoint;
+}
+
+export interface MapSensorType {
+	id: number;
+	name: string;
+	radiusM: number;
+	mobility: 'fixed' | 'relocatable' | 'mobile';
+}
+
+export interface MapSensor {
+	id: number;
+	code: string;
+	serial: string;
+	typeId: number;
+	status: SensorStatus;
+	lon: number;
+	lat: number;
+	x: number;
+	y: number;
+	installedOn: string | null;
+}
+
+export interface MapLegendStop {
+	value: number;
+	colour: string;
+}
+
+export interface MapBackdrop {
+	/** 'importance' = the network's current importance surface; 'layer' = a layer preview. */
+	kind: 'importance' | 'layer';
+	label: string;
+	url: string;
+	bounds: MapBounds;
+	min: number;
+	max: number;
+	legend: MapLegendStop[];
+	/** True when the bounds were converted from another CRS (the image is then approximate). */
+	approximate: boolean;
+}
+
+export interface MapContour {
+	level: number;
+	/** Lines (open, or closed when first = last) in the map CRS. */
+	lines: MapPoint[][];
+}
+
+// (map types end)
+
 // ---- Layers and importance recipes (types) ----------------------------------------------
 export type LayerKind = 'soil_moisture' | 'vegetation_index' | 'elevation' | 'other';
 export type LayerPlatform = 'satellite' | 'aircraft' | 'drone' | 'model' | 'other';
@@ -263,6 +349,9 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		createNetwork: (input: { name: string; description?: string; crsEpsg?: number | null; publicText?: string }) =>
 			call<{ network: Network }>('POST', '/networks', input).then((r) => r.network),
 		updateNetwork: (id: number, patch: NetworkPatch) => call<{ network: Network }>('POST', `/networks/${id}`, patch).then((r) => r.network),
+		// Map
+		getNetworkMap: (id: number) => call<{ map: MapDocument }>('GET', `/networks/${id}/map`).then((r) => r.map),
+		// (map calls end)
 		// ---- Layers and importance recipes ----
 		listLayers: (networkId: number) => call<{ layers: Layer[] }>('GET', `/networks/${networkId}/layers`).then((r) => r.layers),
 		getLayer: (networkId: number, layerId: number) => call<{ layer: Layer }>('GET', `/networks/${networkId}/layers/${layerId}`).then((r) => r.layer),

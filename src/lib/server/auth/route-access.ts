@@ -24,6 +24,8 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 
 	// Map
 	'/(app)/networks/[id=id]/map': 'signed-in',
+	'/api/v1/networks/[id=id]/map': 'signed-in',
+	'/api/v1/networks/[id=id]/map/importance.png': 'signed-in',
 	// (map routes end)
 
 	// Layers and importance

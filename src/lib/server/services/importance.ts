@@ -15,7 +15,9 @@ import type { Knex } from 'knex';
 import { z } from 'zod';
 import { cellSizeMetres, combineLayers, ImportanceError, legendStops, parseRecipe, type GridBand, type GridSpec, type LegendStop, type Recipe } from '../../importance';
 import type { RasterBand } from '../../geo/geotiff';
-import { loadLayer, reprojectToGrid, renderPreview, toGridBand, LayerRejected } from '../layers';
+import { LayerRejected } from '../layers/errors';
+import { renderPreview } from '../layers/preview';
+import { reprojectToGrid } from '../layers/reproject';
 import { newObjectKey, type ObjectStore } from '../storage/object-store';
 import { recordAudit } from '../repositories/audit';
 import { findLayer, type LayerRow } from '../repositories/layers';
@@ -78,10 +80,14 @@ async function readyLayer(db: Knex, networkId: number, layerId: string): Promise
 	return layer;
 }
 
+/** The GeoTIFF reader, loaded on first use (see the same note in ./layers). */
+const inspectModule = () => import('../layers/inspect');
+
 /** A stored layer's band as a grid (reads and checks the stored GeoTIFF again). */
 export async function layerGridBand(store: ObjectStore, layer: LayerRow): Promise<GridBand> {
 	if (!layer.storage_key) throw new ServiceError(422, 'layer_not_ready', `Layer "${layer.name}" has no stored file.`);
 	const bytes = await store.getBuffer(layer.storage_key);
+	const { loadLayer, toGridBand } = await inspectModule();
 	try {
 		const { band } = await loadLayer(bytes, { band: layer.band, name: layer.name, maxPixels: Number.MAX_SAFE_INTEGER });
 		return toGridBand(band);

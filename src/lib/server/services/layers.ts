@@ -16,12 +16,22 @@
 import { Readable } from 'node:stream';
 import type { Knex } from 'knex';
 import { z } from 'zod';
-import { DEFAULT_MAX_PIXELS, LayerRejected, loadLayer, renderPreview } from '../layers';
+import { LayerRejected } from '../layers/errors';
+import { renderPreview } from '../layers/preview';
 import { newObjectKey, type ObjectStore } from '../storage/object-store';
 import { recordAudit } from '../repositories/audit';
 import { deleteLayerRow, findLayer, insertLayer, listLayers, updateLayer, type LayerRow } from '../repositories/layers';
 import { versionsCitingLayer } from '../repositories/recipes';
 import { ServiceError } from './errors';
+
+/** inspect.ts's default pixel limit (25 million), repeated so that this module loads without geotiff. */
+const DEFAULT_MAX_PIXELS = 25_000_000;
+
+/**
+ * The GeoTIFF reader is loaded on first use, not with this module: the geotiff package starts a
+ * worker shim when imported inside a worker thread, which is where SvelteKit analyses the build.
+ */
+const inspectModule = () => import('../layers/inspect');
 
 export const LAYER_KINDS = ['soil_moisture', 'vegetation_index', 'elevation', 'other'] as const;
 export const LAYER_PLATFORMS = ['satellite', 'aircraft', 'drone', 'model', 'other'] as const;
@@ -178,6 +188,7 @@ export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadConte
 		await updateLayer(db, id, { status: 'processing', storage_key: storageKey, size_bytes: size });
 
 		const bytes = await store.getBuffer(storageKey);
+		const { loadLayer } = await inspectModule();
 		const { metadata, band } = await loadLayer(bytes, { band: m.band, name: m.fileName || m.name, maxPixels: limits.maxPixels });
 		const preview = renderPreview(band);
 		previewKey = newObjectKey('previews');

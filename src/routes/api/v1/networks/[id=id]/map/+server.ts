@@ -1,0 +1,20 @@
+import { json } from '@sveltejs/kit';
+import type { RequestHandler } from './$types';
+import { getDb } from '$lib/server/db';
+import { apiHandler } from '$lib/server/api/errors';
+import { networkAccess } from '$lib/server/auth/network-access';
+import { roleAllows } from '$lib/server/auth/roles';
+import { networkMap } from '$lib/server/services/map-data';
+import { importanceSource } from './importance-source';
+
+/** GET /api/v1/networks/:id/map: everything the network map draws, in the working CRS. */
+export const GET: RequestHandler = apiHandler(async (event) => {
+	const { network, role } = await networkAccess(event, 'network.view');
+	const map = await networkMap(getDb(), {
+		network,
+		importance: importanceSource(),
+		apiBase: `/api/v1/networks/${network.id}`,
+		mayViewLayers: roleAllows(role, 'layer.view')
+	});
+	return json({ map }, { headers: { 'cache-control': 'private, no-store' } });
+});

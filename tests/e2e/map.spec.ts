@@ -1,0 +1,170 @@
+/**
+ * The network map: a fresh network of its own, the demo soil-moisture layer and an importance
+ * recipe through the API, study area / exclusions / zones / sensors of the demo data inserted
+ * straight into the test database (DATABASE_URL), then the Map tab in Chromium.
+ */
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import { randomBytes } from 'node:crypto';
+import { expect, test } from '@playwright/test';
+import type { Knex } from 'knex';
+import { createDb } from '../../src/lib/server/db/knex';
+import { seedDemoInventory } from '../../seeds/demo-inventory';
+import { contextFor, demoUser, signInPage } from './support';
+
+const demo = (f: string) => path.resolve(import.meta.dirname, '../../data/demo', f);
+
+interface DemoSensorRow {
+	id: string;
+	serial: string;
+	type: string;
+	lon: number;
+	lat: number;
+	status: string;
+}
+
+function demoSensors(): DemoSensorRow[] {
+	const [header, ...lines] = readFileSync(demo('sensors.csv'), 'utf8').trim().split(/\r?\n/);
+	const cols = header.split(',');
+	return lines.map((l) => {
+		const v = l.split(',');
+		const get = (k: string) => v[cols.indexOf(k)];
+		return { id: get('id'), serial: get('serial'), type: get('type'), lon: Number(get('lon')), lat: Number(get('lat')), status: get('status') || 'active' };
+	});
+}
+
+/** Inserts the demo area, exclusions, zones and sensors of a network directly (test helper). */
+async function insertDemoMapRows(db: Knex, networkId: number): Promise<number> {
+	const area = JSON.parse(readFileSync(demo('study-area.geojson'), 'utf8'));
+	const exclusions = JSON.parse(readFileSync(demo('exclusions.geojson'), 'utf8'));
+	const zones = JSON.parse(readFileSync(demo('zones.geojson'), 'utf8')) as { features: { id?: string; properties: { id?: string; name?: string }; geometry: unknown }[] };
+	await db('networks').where({ id: networkId }).update({ study_area: JSON.stringify(area.features[0].geometry), exclusions: JSON.stringify(exclusions) });
+	await seedDemoInventory(db, networkId);
+	const types = new Map<string, number>((await db('sensor_types').select('id', 'name').where({ network_id: networkId })).map((t: { id: number; name: string }) => [t.name, t.id]));
+	const sensors = demoSensors();
+	for (const s of sensors) {
+		await db('sensors').insert({
+			network_id: networkId,
+			code: s.id,
+			serial: s.serial,
+			sensor_type_id: types.get(s.type),
+			lon: s.lon,
+			lat: s.lat,
+			position: db.raw('ST_GeomFromText(?, 4326)', [`POINT(${s.lon} ${s.lat})`]),
+			status: s.status,
+			notes: ''
+		});
+	}
+	const [setId] = await db('zone_sets').insert({ network_id: networkId, name: 'Sub-catchments', kind: 'uploaded' });
+	let k = 0;
+	for (const f of zones.features) {
+		k++;
+		await db('zones').insert({ zone_set_id: setId, code: `Z${k}`, name: f.properties.name ?? '', geometry: JSON.stringify(f.geometry), importance_share: 0.25 });
+	}
+	await db('networks').where({ id: networkId }).update({ zone_set_id: setId });
+	return sensors.length;
+}
+
+test('the Map tab draws the importance raster, sensors, legend, toggles and cursor coordinates', async ({ page }) => {
+	const url = process.env.DATABASE_URL;
+	if (!url) throw new Error('DATABASE_URL is not set: run through npm test');
+	const admin = await contextFor('admin');
+	const created = await admin.post('/api/v1/networks', { data: { name: `Map check ${randomBytes(3).toString('hex')}` } });
+	expect(created.status()).toBe(201);
+	const networkId = (await created.json()).network.id as number;
+
+	// The importance surface through the layers API, as an analyst makes it.
+	const analyst = await contextFor('analyst');
+	const up = await analyst.post(`/api/v1/networks/${networkId}/layers?name=Soil%20moisture&kind=soil_moisture&units=m3%2Fm3&fileName=soil-moisture.tif`, {
+		data: readFileSync(demo('soil-moisture.tif')),
+		headers: { 'content-type': 'application/octet-stream', accept: 'application/json' }
+	});
+	expect(up.status()).toBe(201);
+	const layerId = (await up.json()).layer.id as number;
+	const recipe = await analyst.post(`/api/v1/networks/${networkId}/recipes`, { data: { name: 'Wetness', definition: { layers: [{ layerId: String(layerId), transform: 'minmax', weight: 1 }] } } });
+	expect(recipe.status()).toBe(201);
+	const versionId = (await recipe.json()).version.id as number;
+	expect((await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId } })).ok()).toBe(true);
+
+	const db = createDb(url, 1);
+	let sensorCount: number;
+	try {
+		sensorCount = await insertDemoMapRows(db, networkId);
+	} finally {
+		await db.destroy();
+	}
+
+	// The API document, as any member sees it.
+	const tech = await contextFor('technician');
+	const doc = (await (await tech.get(`/api/v1/networks/${networkId}/map`)).json()).map;
+	expect(doc.crs.epsg).toBe(32632);
+	expect(doc.sensors).toHaveLength(sensorCount);
+	expect(doc.backdrop.kind).toBe('importance');
+	expect(doc.contours.length).toBeGreaterThan(0);
+	const png = await tech.get(`/api/v1/networks/${networkId}/map/importance.png`);
+	expect(png.status()).toBe(200);
+	expect(png.headers()['content-type']).toBe('image/png');
+
+	// The page, as a technician.
+	const t = demoUser('technician');
+	await page.setViewportSize({ width: 1400, height: 900 });
+	await signInPage(page, t.email, t.password);
+	await page.goto(`/networks/${networkId}/map`);
+	const mapEl = page.getByTestId('network-map');
+	await expect(mapEl).toHaveClass(/leaflet-container/);
+	await expect(page.locator('.cf-sensor')).toHaveCount(sensorCount);
+	await expect(page.locator('img.cf-backdrop')).toHaveCount(1);
+	await expect.poll(() => page.locator('img.cf-backdrop').evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth > 0)).toBe(true);
+	await expect(page.locator('path.cf-contour').first()).toBeVisible();
+	await expect(page.locator('path.cf-exclusion')).toHaveCount(1);
+	await expect(page.locator('path.cf-zone')).toHaveCount(4);
+	// One sensing disk per sensor that is not retired.
+	await expect(page.locator('path.cf-disk')).toHaveCount(doc.sensors.filter((s: { status: string }) => s.status !== 'retired').length);
+	await expect(page.locator('.leaflet-control-scale-line')).toContainText(/\d+ (m|km)/);
+	const legend = page.getByTestId('map-legend');
+	await expect(legend).toContainText('Importance');
+	await expect(legend).toContainText('soil moisture probe');
+	await expect(legend).toContainText('cosmic-ray neutron sensor');
+	await expect(page.getByTestId('map-summary')).toContainText(`${sensorCount} sensors`);
+	await legend.screenshot({ path: '/tmp/map-app-legend.png' });
+
+	// Toggle the sensors off and on again.
+	const toggle = page.getByTestId('map-toggles').getByLabel('Sensors', { exact: true });
+	await toggle.uncheck();
+	await expect(page.locator('.cf-sensor')).toHaveCount(0);
+	await toggle.check();
+	await expect(page.locator('.cf-sensor')).toHaveCount(sensorCount);
+
+	// Cursor coordinates: lon/lat and working-CRS metres.
+	const box = (await mapEl.boundingBox())!;
+	await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2);
+	await page.mouse.move(box.x + box.width / 2 + 10, box.y + box.height / 2 + 5);
+	const coords = page.getByTestId('cursor-coords');
+	await expect(coords).toContainText(/\d+\.\d{5}° N, \d+\.\d{5}° E/);
+	await expect(coords).toContainText(/EPSG:32632 x [\d\u2009]+ m, y [\d\u2009]+ m/);
+	await page.screenshot({ path: '/tmp/map-app-map.png' });
+
+	// A popup on a sensor.
+	await page.locator('.cf-sensor').first().click();
+	await expect(page.locator('.leaflet-popup-content')).toContainText('Serial');
+	await expect(page.locator('.leaflet-popup')).toHaveCSS('opacity', '1');
+	await page.screenshot({ path: '/tmp/map-app-popup.png' });
+
+	// Zoomed in on a neutron sensor (square): its 150 m disk is a true circle; the scale bar follows.
+	await page.locator('.leaflet-popup-close-button').click();
+	await expect(page.locator('.leaflet-popup')).toHaveCount(0);
+	const square = page.locator('.cf-sensor rect').first();
+	const sq = (await square.boundingBox())!;
+	const scaleBefore = await page.locator('.leaflet-control-scale-line').textContent();
+	await page.mouse.move(sq.x + sq.width / 2, sq.y + sq.height / 2);
+	for (let k = 0; k < 6; k++) await page.mouse.wheel(0, -400);
+	await expect(page.locator('.leaflet-control-scale-line')).not.toHaveText(scaleBefore ?? '');
+	await expect(page.locator('.leaflet-zoom-anim')).toHaveCount(0);
+	await page.screenshot({ path: '/tmp/map-app-zoomed.png' });
+
+	// The overview's small map.
+	await page.goto(`/networks/${networkId}`);
+	await expect(page.getByTestId('network-map')).toHaveClass(/leaflet-container/);
+	await expect(page.locator('.cf-sensor')).toHaveCount(sensorCount);
+	await page.screenshot({ path: '/tmp/map-app-overview.png' });
+});

@@ -1,0 +1,157 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import proj4 from 'proj4';
+import { PNG } from 'pngjs';
+import type { Knex } from 'knex';
+import { importancePng, networkMap, type SurfaceLike } from '../../src/lib/server/services/map-data';
+import { findNetwork } from '../../src/lib/server/repositories/networks';
+import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
+
+const UTM32 = '+proj=utm +zone=32 +datum=WGS84 +units=m +no_defs';
+
+/** A lon/lat square polygon around (lon, lat), half-side d degrees. */
+function square(lon: number, lat: number, d: number) {
+	return { type: 'Polygon', coordinates: [[[lon - d, lat - d], [lon + d, lat - d], [lon + d, lat + d], [lon - d, lat + d], [lon - d, lat - d]]] };
+}
+
+async function insertSensor(db: Knex, networkId: number, typeId: number, code: string, lon: number, lat: number, status: string) {
+	await db('sensors').insert({
+		network_id: networkId,
+		code,
+		serial: `SN-${code}`,
+		sensor_type_id: typeId,
+		lon,
+		lat,
+		position: db.raw('ST_GeomFromText(?, 4326)', [`POINT(${lon} ${lat})`]),
+		status,
+		notes: ''
+	});
+}
+
+/** A cone of importance over a 2 km square of UTM 32N, 100 × 100 cells of 20 m, apex 1 at the centre. */
+function coneSurface(cx: number, cy: number): SurfaceLike {
+	const n = 100;
+	const cell = 20;
+	const x0 = cx - 1000;
+	const y0 = cy + 1000;
+	const data = new Float32Array(n * n);
+	for (let r = 0; r < n; r++) for (let c = 0; c < n; c++) data[r * n + c] = Math.max(0, 1 - Math.hypot(x0 + (c + 0.5) * cell - cx, y0 - (r + 0.5) * cell - cy) / 1000);
+	return { grid: { epsg: 32632, width: n, height: n, x0, y0, dx: cell, dy: cell }, data };
+}
+
+describe('networkMap (service, test database)', () => {
+	let t: TestDb;
+	let networkId: number;
+	beforeAll(async () => {
+		t = await createTestDatabase();
+		const admin = await makeMember(t.db, 'admin');
+		[networkId] = await t.db('networks').insert({
+			organisation_id: admin.organisationId,
+			slug: 'map-test',
+			name: 'Map test',
+			description: '',
+			public_text: '',
+			crs_epsg: null,
+			study_area: JSON.stringify({ type: 'FeatureCollection', features: [{ type: 'Feature', properties: {}, geometry: square(9, 52, 0.01) }] }),
+			exclusions: JSON.stringify({ type: 'MultiPolygon', coordinates: [square(9.005, 52.005, 0.002).coordinates] })
+		});
+		const [probe] = await t.db('sensor_types').insert({ network_id: networkId, name: 'soil moisture probe', radius_m: 30, mobility: 'relocatable' });
+		const [crns] = await t.db('sensor_types').insert({ network_id: networkId, name: 'cosmic-ray neutron sensor', radius_m: 150, mobility: 'fixed' });
+		await insertSensor(t.db, networkId, probe, 'P1', 8.995, 51.995, 'active');
+		await insertSensor(t.db, networkId, probe, 'P2', 9.005, 51.995, 'faulty');
+		await insertSensor(t.db, networkId, probe, 'P3', 9.005, 51.996, 'retired');
+		await insertSensor(t.db, networkId, crns, 'C1', 9.0, 52.0, 'active');
+		// Two zone sets: the older one is the network's current one, so it must win over the newer.
+		const [current] = await t.db('zone_sets').insert({ network_id: networkId, name: 'halves', kind: 'uploaded', created_at: new Date('2026-01-01') });
+		const [newer] = await t.db('zone_sets').insert({ network_id: networkId, name: 'newer', kind: 'grid', created_at: new Date('2026-06-01') });
+		await t.db('zones').insert([
+			{ zone_set_id: current, code: 'W', name: 'West', geometry: JSON.stringify({ type: 'Polygon', coordinates: [[[8.99, 51.99], [9.0, 51.99], [9.0, 52.01], [8.99, 52.01], [8.99, 51.99]]] }), importance_share: 0.4 },
+			{ zone_set_id: current, code: 'E', name: 'East', geometry: JSON.stringify({ type: 'Polygon', coordinates: [[[9.0, 51.99], [9.01, 51.99], [9.01, 52.01], [9.0, 52.01], [9.0, 51.99]]] }), importance_share: 0.6 },
+			{ zone_set_id: newer, code: 'X', name: '', geometry: JSON.stringify(square(9, 52, 0.01)), importance_share: null }
+		]);
+		await t.db('networks').where({ id: networkId }).update({ zone_set_id: current });
+	});
+	afterAll(async () => t?.drop());
+
+	it('assembles area, exclusions, zones of the current set and sensors in the UTM zone of the centre', async () => {
+		const network = (await findNetwork(t.db, networkId))!;
+		const doc = await networkMap(t.db, { network, importance: async () => null, apiBase: `/api/v1/networks/${networkId}` });
+		// 9°E 52°N lies in UTM zone 32N (6° zones from 180°W: zone 32 spans 6°E–12°E).
+		expect(doc.crs?.epsg).toBe(32632);
+		expect(doc.studyArea).toHaveLength(1);
+		expect(doc.exclusions).toHaveLength(1);
+		expect(doc.zoneSet?.name).toBe('halves');
+		expect(doc.zones.map((z) => z.code)).toEqual(['E', 'W']);
+		const [e, w] = doc.zones;
+		// W holds P1, E holds P2 (faulty still counts); C1 stands on the shared edge at 9°E and the
+		// even-odd test puts it in exactly one of the two. P3 is retired and never counted.
+		expect(w.sensorCount + e.sensorCount).toBe(3);
+		expect(w.importanceShare).toBe(0.4);
+		expect(doc.sensors.map((s) => s.code)).toEqual(['C1', 'P1', 'P2', 'P3']);
+		const c1 = doc.sensors[0];
+		const [x, y] = proj4('EPSG:4326', UTM32, [9, 52]);
+		expect(c1.x).toBeCloseTo(x, 6);
+		expect(c1.y).toBeCloseTo(y, 6);
+		expect(doc.sensorTypes.map((s) => [s.name, s.radiusM])).toEqual([
+			['soil moisture probe', 30],
+			['cosmic-ray neutron sensor', 150]
+		]);
+		// The extent holds every sensor and the study area.
+		for (const s of doc.sensors) {
+			expect(s.x).toBeGreaterThan(doc.extent![0]);
+			expect(s.x).toBeLessThan(doc.extent![2]);
+		}
+		expect(doc.backdrop).toBeNull();
+		expect(doc.contours).toEqual([]);
+	});
+
+	it('with an importance surface: backdrop bounds, legend, contour circles and the PNG', async () => {
+		const network = (await findNetwork(t.db, networkId))!;
+		const [cx, cy] = proj4('EPSG:4326', UTM32, [9, 52]);
+		const surface = coneSurface(cx, cy);
+		const doc = await networkMap(t.db, { network, importance: async () => surface, apiBase: '/api/v1/networks/1' });
+		expect(doc.backdrop?.kind).toBe('importance');
+		expect(doc.backdrop?.url).toBe('/api/v1/networks/1/map/importance.png');
+		expect(doc.backdrop?.bounds[0]).toBeCloseTo(cx - 1000, 6);
+		expect(doc.backdrop?.bounds[3]).toBeCloseTo(cy + 1000, 6);
+		expect(doc.backdrop?.legend).toHaveLength(5);
+		expect(doc.contours.length).toBeGreaterThanOrEqual(3);
+		// The cone 1 − d/1000 has its level-v contour at d = 1000 (1 − v) m; the contours come from a
+		// grid coarsened to 160 cells at most (here the original 20 m cells): allow one cell.
+		for (const c of doc.contours) {
+			const want = 1000 * (1 - c.level);
+			for (const [px, py] of c.lines[0]) expect(Math.abs(Math.hypot(px - cx, py - cy) - want)).toBeLessThan(20);
+		}
+		const png = await importancePng(network, t.db, async () => surface);
+		const img = PNG.sync.read(png!);
+		expect([img.width, img.height]).toEqual([100, 100]);
+	});
+
+	it('without importance, the latest ready layer preview is the backdrop, for roles that may view layers only', async () => {
+		const network = (await findNetwork(t.db, networkId))!;
+		const footprint = square(9, 52, 0.02);
+		await t.db('layers').insert([
+			{ network_id: networkId, name: 'older', kind: 'soil_moisture', status: 'ready', preview_key: 'previews/a', epsg: 32632, footprint: JSON.stringify(footprint), stat_min: 0.1, stat_max: 0.2, created_at: new Date('2026-01-01') },
+			{ network_id: networkId, name: 'newest', kind: 'soil_moisture', status: 'ready', preview_key: 'previews/b', epsg: 32632, footprint: JSON.stringify(footprint), stat_min: 0.05, stat_max: 0.15, created_at: new Date('2026-03-01') },
+			{ network_id: networkId, name: 'failed', kind: 'other', status: 'failed', created_at: new Date('2026-05-01') }
+		]);
+		const newest = await t.db('layers').where({ network_id: networkId, name: 'newest' }).first();
+		const doc = await networkMap(t.db, { network, importance: async () => null, apiBase: '/api/v1/networks/9', mayViewLayers: true });
+		expect(doc.backdrop).toMatchObject({ kind: 'layer', label: 'newest', url: `/api/v1/networks/9/layers/${newest.id}/preview.png`, min: 0.05, max: 0.15 });
+		// The bounds hold the footprint corners projected with proj4.
+		const [xw, ys] = proj4('EPSG:4326', UTM32, [8.98, 51.98]);
+		expect(doc.backdrop!.bounds[0]).toBeLessThanOrEqual(xw + 1e-6);
+		expect(doc.backdrop!.bounds[1]).toBeCloseTo(Math.min(ys, proj4('EPSG:4326', UTM32, [9.02, 51.98])[1]), 6);
+		const forTechnician = await networkMap(t.db, { network, importance: async () => null, apiBase: '/api/v1/networks/9', mayViewLayers: false });
+		expect(forTechnician.backdrop).toBeNull();
+		await t.db('layers').where({ network_id: networkId }).delete();
+	});
+
+	it('a network with nothing positioned has no map CRS and empty lists', async () => {
+		const admin = await makeMember(t.db, 'admin');
+		const [id] = await t.db('networks').insert({ organisation_id: admin.organisationId, slug: 'empty', name: 'Empty', description: '', public_text: '' });
+		const doc = await networkMap(t.db, { network: (await findNetwork(t.db, id))!, importance: async () => null, apiBase: '' });
+		expect(doc.crs).toBeNull();
+		expect(doc.sensors).toEqual([]);
+		expect(await importancePng((await findNetwork(t.db, id))!, t.db, async () => null)).toBeNull();
+	});
+});
