@@ -61,8 +61,8 @@ test.describe('layers tab', () => {
 
 		// Filter by kind: only vegetation layers remain.
 		await page.getByLabel('Filter by kind').selectOption({ label: 'Vegetation index' });
-		await expect(page.getByRole('cell', { name: `Vegetation ${tag}` })).toBeVisible();
-		await expect(page.getByRole('cell', { name: `Soil moisture ${tag}` })).toHaveCount(0);
+		await expect(page.getByRole('cell', { name: `Vegetation ${tag}`, exact: true })).toBeVisible();
+		await expect(page.getByRole('cell', { name: `Soil moisture ${tag}`, exact: true })).toHaveCount(0);
 		await page.getByLabel('Filter by kind').selectOption({ label: 'All kinds' });
 		await page.getByLabel('Filter by name').fill(tag);
 		await expect(page.getByTestId('layer-row')).toHaveCount(2);
@@ -80,8 +80,8 @@ test.describe('layers tab', () => {
 		await upload(page, { name: 'scan.tif', mimeType: 'image/tiff', buffer: plain }, `No georeferencing ${tag}`, 'Other');
 		await expect(page.getByRole('alert')).toContainText('no georeferencing');
 		await page.reload();
-		await expect(page.getByRole('cell', { name: `Not a raster ${tag}` })).toHaveCount(0);
-		await expect(page.getByRole('cell', { name: `No georeferencing ${tag}` })).toHaveCount(0);
+		await expect(page.getByRole('cell', { name: `Not a raster ${tag}`, exact: true })).toHaveCount(0);
+		await expect(page.getByRole('cell', { name: `No georeferencing ${tag}`, exact: true })).toHaveCount(0);
 	});
 
 	test('a reviewer sees the layers but no upload form; a technician is refused', async ({ page }) => {
