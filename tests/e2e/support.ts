@@ -1,10 +1,12 @@
 /** Shared helpers of the end-to-end tests: demo accounts, signing in, reading caught e-mail. */
+import path from 'node:path';
 import { expect, request, type APIRequestContext, type Page } from '@playwright/test';
 import { readMailbox, type CapturedMail } from '../../src/lib/server/mail/dev-inbox';
 import { DEMO_USERS } from '../../seeds/demo';
 
 export type DemoRole = (typeof DEMO_USERS)[number]['role'];
 export const baseURL = process.env.BASE_URL ?? 'http://127.0.0.1:3000';
+export const demoDir = path.resolve(import.meta.dirname, '../../data/demo');
 
 export function demoUser(role: DemoRole) {
 	return DEMO_USERS.find((u) => u.role === role)!;
@@ -51,4 +53,20 @@ export function linkIn(mail: CapturedMail): string {
 	const m = /(https?:\/\/\S+)/.exec(mail.text);
 	if (!m) throw new Error('no link in the e-mail');
 	return m[1];
+}
+
+/** A fresh network (created by an admin through the API) with the two demo sensor types. */
+export async function freshNetwork(admin: APIRequestContext, label: string): Promise<number> {
+	const name = `${label} ${Date.now().toString(36)}${Math.floor(Math.random() * 1e6).toString(36)}`;
+	const res = await admin.post('/api/v1/networks', { data: { name }, headers: { accept: 'application/json' } });
+	expect(res.status(), await res.text()).toBe(201);
+	const { network } = await res.json();
+	for (const t of [
+		{ name: 'soil moisture probe', radiusM: 30, mobility: 'relocatable', relocationMinutes: 45 },
+		{ name: 'cosmic-ray neutron sensor', radiusM: 150, mobility: 'fixed' }
+	]) {
+		const r = await admin.post(`/api/v1/networks/${network.id}/sensor-types`, { data: t, headers: { accept: 'application/json' } });
+		expect(r.status(), await r.text()).toBe(201);
+	}
+	return network.id;
 }

@@ -4,26 +4,10 @@
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
-import { expect, test, type APIRequestContext } from '@playwright/test';
-import { contextFor, demoUser, signInPage } from './support';
+import { expect, test } from '@playwright/test';
+import { contextFor, demoDir, freshNetwork, demoUser, signInPage } from './support';
 
-const demoDir = path.resolve(import.meta.dirname, '../../data/demo');
 
-/** A fresh network with the two demo sensor types. */
-async function freshNetwork(admin: APIRequestContext, label: string): Promise<number> {
-	const name = `${label} ${Date.now().toString(36)}${Math.floor(Math.random() * 1e6).toString(36)}`;
-	const res = await admin.post('/api/v1/networks', { data: { name }, headers: { accept: 'application/json' } });
-	expect(res.status(), await res.text()).toBe(201);
-	const { network } = await res.json();
-	for (const t of [
-		{ name: 'soil moisture probe', radiusM: 30, mobility: 'relocatable', relocationMinutes: 45 },
-		{ name: 'cosmic-ray neutron sensor', radiusM: 150, mobility: 'fixed' }
-	]) {
-		const r = await admin.post(`/api/v1/networks/${network.id}/sensor-types`, { data: t, headers: { accept: 'application/json' } });
-		expect(r.status(), await r.text()).toBe(201);
-	}
-	return network.id;
-}
 
 let networkId: number;
 

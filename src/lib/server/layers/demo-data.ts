@@ -14,6 +14,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { transformer } from '../../geo/crs';
 import { exportSensorsCsv, type SensorRecord } from '../inventory';
+import { mulberry32 } from '../../engine/prng';
 
 export const DEMO_EPSG = 32632; // WGS 84 / UTM zone 32N
 export const DEMO_NODATA = -9999;
@@ -40,18 +41,6 @@ export const VEGETATION_GRID: DemoGrid = { x0: 575_000, y0: 5_868_000, cell: 30,
 
 const CENTRE: [number, number] = [580_000, 5_865_000];
 const RESERVOIR = { x: 586_500, y: 5_861_000, a: 1600, b: 750, angle: 0.45 };
-
-/** mulberry32: a small, well-mixed 32-bit PRNG [from memory]. */
-function mulberry32(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
 
 /** Smooth 2-D value noise in about −1..1: a lattice of seeded values, smoothstep-interpolated, octaves summed. */
 export function valueNoise(seed: number, octaves = 4): (x: number, y: number) => number {

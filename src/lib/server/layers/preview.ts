@@ -89,13 +89,21 @@ export function renderPreview(band: PreviewSource, opts: PreviewOptions = {}): P
 		min = NaN; // no valid cell: an all-transparent preview
 		max = NaN;
 	}
-	const lut = rampTable(opts.ramp);
-	const png = new PNG({ width: size.width, height: size.height });
+	return { png: rampPng(values, size.width, size.height, min, max, opts.ramp), width: size.width, height: size.height, min, max };
+}
+
+/**
+ * Encodes values (row-major, width × height) as an RGBA PNG through a colour ramp: min..max maps
+ * onto the ramp, a flat range onto its middle; NaN and infinite values are transparent.
+ */
+export function rampPng(values: ArrayLike<number>, width: number, height: number, min: number, max: number, ramp?: RampName): Buffer {
+	const lut = rampTable(ramp);
+	const png = new PNG({ width, height });
 	const span = max - min;
-	for (let p = 0; p < values.length; p++) {
+	for (let p = 0; p < width * height; p++) {
 		const v = values[p];
 		const o = p * 4;
-		if (Number.isNaN(v)) {
+		if (!Number.isFinite(v)) {
 			png.data[o] = png.data[o + 1] = png.data[o + 2] = png.data[o + 3] = 0;
 			continue;
 		}
@@ -106,5 +114,5 @@ export function renderPreview(band: PreviewSource, opts: PreviewOptions = {}): P
 		png.data[o + 2] = lut[k + 2];
 		png.data[o + 3] = 255;
 	}
-	return { png: PNG.sync.write(png), width: size.width, height: size.height, min, max };
+	return PNG.sync.write(png);
 }

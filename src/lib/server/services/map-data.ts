@@ -12,9 +12,9 @@
  * the database reads (read-only) and the document assembly follow.
  */
 import { contours as d3Contours } from 'd3-contour';
-import { PNG } from 'pngjs';
 import { chooseWorkingCrs, crsDefinition, isProjected, transformer, utmZoneFor, type PointTransform } from '../../geo/crs';
-import { legendStops, rampTable } from '../../importance/colour-ramp';
+import { legendStops } from '../../importance/colour-ramp';
+import { rampPng } from '../layers/preview';
 import type { GridSpec } from '../../importance/grid';
 import type { Db } from '../db';
 import type { NetworkRow } from '../repositories/networks';
@@ -372,24 +372,7 @@ export function coarsen(r: MapRaster, maxSize: number): MapRaster {
 
 /** PNG of a map raster coloured with the moorland ramp from min to max; no value = transparent. */
 export function rasterPng(r: MapRaster, min: number, max: number): Buffer {
-	const lut = rampTable('moorland');
-	const png = new PNG({ width: r.width, height: r.height });
-	const span = max - min;
-	for (let i = 0; i < r.width * r.height; i++) {
-		const v = r.values[i];
-		const o = i * 4;
-		if (!Number.isFinite(v)) {
-			png.data[o + 3] = 0;
-			continue;
-		}
-		const t = span > 0 ? Math.min(1, Math.max(0, (v - min) / span)) : 0.5;
-		const k = Math.round(t * 255) * 3;
-		png.data[o] = lut[k];
-		png.data[o + 1] = lut[k + 1];
-		png.data[o + 2] = lut[k + 2];
-		png.data[o + 3] = 255;
-	}
-	return PNG.sync.write(png);
+	return rampPng(r.values, r.width, r.height, min, max, 'moorland');
 }
 
 /**
