@@ -4,10 +4,15 @@ import { authHandle } from '$lib/server/auth';
 import { loadActor } from '$lib/server/auth/actor';
 import { ROUTE_ACCESS } from '$lib/server/auth/route-access';
 import { apiErrorBody } from '$lib/server/api/errors';
-import { getDb } from '$lib/server/db';
+import { closeDb, getDb } from '$lib/server/db';
 import { startOutboxTimer } from '$lib/server/mail/outbox';
 
 startOutboxTimer();
+
+// adapter-node emits this after it stopped accepting requests (SIGINT/SIGTERM): let the process exit.
+process.on('sveltekit:shutdown', () => {
+	void closeDb();
+});
 
 /** Re-reads the user and their roles from MariaDB on every request: a demoted user loses rights at once. */
 const actorHandle: Handle = async ({ event, resolve }) => {

@@ -30,11 +30,13 @@ if (stale) {
 	writeFileSync(stamp, lockHash + '\n');
 }
 
-const tsx = path.join(root, 'node_modules', '.bin', 'tsx');
-const child = spawn(tsx, [path.join(root, 'src', 'ops', `${entry}.ts`), ...process.argv.slice(3)], {
+// Node with tsx's loader (not the tsx command, whose second Ctrl-C kills the child at once and
+// would cut the orderly shutdown of MariaDB short).
+const child = spawn(process.execPath, ['--import', 'tsx', path.join(root, 'src', 'ops', `${entry}.ts`), ...process.argv.slice(3)], {
 	cwd: root,
 	stdio: 'inherit'
 });
-// Ctrl-C reaches the whole foreground process group; the child handles it and exits in order.
+// Ctrl-C reaches the whole foreground process group; a signal sent to this process alone is passed
+// on. The child's handlers are idempotent, so receiving one twice is harmless.
 for (const sig of ['SIGINT', 'SIGTERM']) process.on(sig, () => child.kill(sig));
 child.on('exit', (code, signal) => process.exit(code ?? (signal ? 130 : 1)));

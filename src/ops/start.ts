@@ -38,20 +38,29 @@ let smtp: { close(): Promise<void> } | null = null;
 let app: ReturnType<typeof spawn> | null = null;
 let stopping = false;
 
-async function stopAll(code: number): Promise<never> {
-	if (!stopping) {
+let stopped: Promise<never> | null = null;
+
+/** Stops the app, the mail catcher and MariaDB, in that order, then exits. Safe to call repeatedly. */
+function stopAll(code: number): Promise<never> {
+	stopped ??= (async () => {
 		stopping = true;
 		log('stopping…');
-		if (app && app.exitCode === null) {
+		if (app && app.exitCode === null && app.signalCode === null) {
+			// adapter-node shuts down gracefully within SHUTDOWN_TIMEOUT (set to 3 s below); then force it.
+			const exited = new Promise((r) => app!.once('exit', r));
 			app.kill('SIGTERM');
-			await new Promise((r) => (app!.exitCode !== null ? r(null) : app!.once('exit', r)));
+			const t = setTimeout(() => app?.kill('SIGKILL'), 5_000);
+			await exited;
+			clearTimeout(t);
 		}
 		await smtp?.close().catch(() => {});
 		await mariadb?.stop().catch(() => {});
 		log('stopped');
-	}
-	process.exit(code);
+		process.exit(code);
+	})();
+	return stopped;
 }
+
 process.on('SIGINT', () => void stopAll(0));
 process.on('SIGTERM', () => void stopAll(0));
 
@@ -88,6 +97,7 @@ try {
 		env: {
 			...process.env,
 			NODE_ENV: 'production',
+			SHUTDOWN_TIMEOUT: process.env.SHUTDOWN_TIMEOUT ?? '3',
 			PORT: String(port),
 			HOST: host,
 			ORIGIN: origin,

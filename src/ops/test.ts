@@ -46,16 +46,22 @@ function readJson(file: string): unknown {
 	return existsSync(file) ? JSON.parse(readFileSync(file, 'utf8')) : null;
 }
 
-async function cleanup(): Promise<void> {
-	for (const fn of cleanups.reverse()) {
-		try {
-			// No clean-up step may hang the run (a lingering SMTP connection, say): 15 s each at most.
-			await Promise.race([Promise.resolve().then(fn), new Promise((resolve) => setTimeout(resolve, 15_000).unref())]);
-		} catch (err) {
-			console.error(`clean-up step failed: ${err instanceof Error ? err.message : err}`);
+let cleaning: Promise<void> | null = null;
+
+/** Stops what the run started, newest first. Safe to call more than once (signals arrive twice). */
+function cleanup(): Promise<void> {
+	cleaning ??= (async () => {
+		for (const fn of [...cleanups].reverse()) {
+			try {
+				// No clean-up step may hang the run (a lingering SMTP connection, say): 15 s each at most.
+				await Promise.race([Promise.resolve().then(fn), new Promise((resolve) => setTimeout(resolve, 15_000).unref())]);
+			} catch (err) {
+				console.error(`clean-up step failed: ${err instanceof Error ? err.message : err}`);
+			}
 		}
-	}
-	cleanups.length = 0;
+		cleanups.length = 0;
+	})();
+	return cleaning;
 }
 process.on('SIGINT', () => void cleanup().then(() => process.exit(130)));
 process.on('SIGTERM', () => void cleanup().then(() => process.exit(143)));
@@ -126,13 +132,17 @@ try {
 		const app = spawn(process.execPath, [path.join(root, 'build', 'index.js')], {
 			cwd: root,
 			stdio: ['ignore', 'ignore', 'inherit'],
-			env: { ...process.env, ...env, NODE_ENV: 'production', PORT: String(appPort), HOST: '127.0.0.1', ORIGIN: origin }
+			env: { ...process.env, ...env, NODE_ENV: 'production', SHUTDOWN_TIMEOUT: '3', PORT: String(appPort), HOST: '127.0.0.1', ORIGIN: origin }
 		});
 		cleanups.push(
 			() =>
 				new Promise<void>((resolve) => {
-					if (app.exitCode !== null) return resolve();
-					app.once('exit', () => resolve());
+					if (app.exitCode !== null || app.signalCode !== null) return resolve();
+					const t = setTimeout(() => app.kill('SIGKILL'), 5_000);
+					app.once('exit', () => {
+						clearTimeout(t);
+						resolve();
+					});
 					app.kill('SIGTERM');
 				})
 		);

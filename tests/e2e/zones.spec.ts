@@ -4,7 +4,7 @@
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
-import { expect, test } from '@playwright/test';
+import { expect, test, type APIRequestContext } from '@playwright/test';
 import { contextFor, demoDir, freshNetwork, demoUser, signInPage } from './support';
 
 

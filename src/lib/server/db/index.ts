@@ -11,3 +11,10 @@ export function getDb(): Knex {
 	instance ??= createDb(env.DATABASE_URL ?? '', Number(env.DATABASE_POOL_MAX ?? 10));
 	return instance;
 }
+
+/** Closes the pool, so the process can exit after a graceful shutdown. */
+export async function closeDb(): Promise<void> {
+	const db = instance;
+	instance = undefined;
+	await db?.destroy();
+}
