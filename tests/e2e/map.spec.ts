@@ -168,3 +168,73 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	await expect(page.locator('.cf-sensor')).toHaveCount(sensorCount);
 	await page.screenshot({ path: '/tmp/map-app-overview.png' });
 });
+
+test('an analyst draws a named exclusion on the map; a technician has no Draw control', async ({ page }) => {
+	const admin = await contextFor('admin');
+	const created = await admin.post('/api/v1/networks', { data: { name: `Map draw ${randomBytes(3).toString('hex')}` } });
+	expect(created.status()).toBe(201);
+	const networkId = (await created.json()).network.id as number;
+
+	// The demo study area and its one exclusion through the area API, as an analyst would upload them.
+	const analyst = await contextFor('analyst');
+	const area = JSON.parse(readFileSync(demo('study-area.geojson'), 'utf8'));
+	const exclusions = JSON.parse(readFileSync(demo('exclusions.geojson'), 'utf8'));
+	const before = (await (await analyst.get(`/api/v1/networks/${networkId}/area`)).json()).area;
+	const set = await analyst.post(`/api/v1/networks/${networkId}/area`, { data: { version: before.version, studyArea: area, exclusions: exclusions.features } });
+	expect(set.status()).toBe(200);
+	const docBefore = (await (await analyst.get(`/api/v1/networks/${networkId}/map`)).json()).map;
+	expect(docBefore.crs).not.toBeNull();
+	const ringsBefore = docBefore.exclusions.length as number;
+
+	// A technician sees the map without the Draw control.
+	const t = demoUser('technician');
+	await page.setViewportSize({ width: 1400, height: 900 });
+	await signInPage(page, t.email, t.password);
+	await page.goto(`/networks/${networkId}/map`);
+	await expect(page.getByTestId('network-map')).toHaveClass(/leaflet-container/);
+	await expect(page.getByTestId('map-legend')).toBeVisible();
+	await expect(page.getByTestId('map-draw')).toHaveCount(0);
+	await expect(page.getByRole('button', { name: 'Draw exclusion' })).toHaveCount(0);
+	await page.context().clearCookies();
+
+	// The analyst draws a triangle named "test pit".
+	const a = demoUser('analyst');
+	await signInPage(page, a.email, a.password);
+	await page.goto(`/networks/${networkId}/map`);
+	const mapEl = page.getByTestId('network-map');
+	await expect(mapEl).toHaveClass(/leaflet-container/);
+	const draw = page.getByTestId('map-draw');
+	await draw.getByRole('button', { name: 'Draw exclusion' }).click();
+	await draw.getByLabel('Name of the exclusion').fill('test pit');
+	const finish = draw.getByRole('button', { name: 'Finish' });
+	await expect(finish).toBeDisabled();
+	const box = (await mapEl.boundingBox())!;
+	const cx = box.x + box.width / 2;
+	const cy = box.y + box.height / 2;
+	await page.mouse.click(cx - 60, cy + 40);
+	await page.mouse.click(cx + 70, cy + 50);
+	await expect(page.locator('path.cf-draft-vertex')).toHaveCount(2);
+	// Undo takes the last point back; it is clicked again.
+	await draw.getByRole('button', { name: 'Undo last point' }).click();
+	await expect(page.locator('path.cf-draft-vertex')).toHaveCount(1);
+	await page.mouse.click(cx + 70, cy + 50);
+	await page.mouse.click(cx + 10, cy - 70);
+	await expect(page.locator('path.cf-draft-vertex')).toHaveCount(3);
+	await expect(page.locator('path.cf-draft-outline')).toHaveCount(1);
+	await expect(draw).toContainText('3 points so far');
+	await page.screenshot({ path: '/tmp/map-app-draw.png' });
+	await finish.click();
+	await expect(draw.getByRole('status').filter({ hasText: 'saved' })).toContainText('Exclusion “test pit” saved (2 exclusions in all)');
+	await expect(page.locator('path.cf-draft-vertex')).toHaveCount(0);
+	await expect(page.locator('path.cf-exclusion')).toHaveCount(1);
+
+	// The server holds the old exclusion and the new one; the map document has one ring more.
+	const after = (await (await analyst.get(`/api/v1/networks/${networkId}/area`)).json()).area;
+	expect(after.exclusions.map((f: { properties: { name: string } }) => f.properties.name)).toEqual([exclusions.features[0].properties.name, 'test pit']);
+	const ring = after.exclusions[1].geometry.coordinates[0][0] as [number, number][];
+	expect(ring).toHaveLength(4);
+	expect(ring[0]).toEqual(ring[3]);
+	const docAfter = (await (await analyst.get(`/api/v1/networks/${networkId}/map`)).json()).map;
+	expect(docAfter.exclusions).toHaveLength(ringsBefore + 1);
+	await page.screenshot({ path: '/tmp/map-app-drawn.png' });
+});
