@@ -23,6 +23,7 @@ import { recordAudit } from '../repositories/audit';
 import { deleteLayerRow, findLayer, insertLayer, listLayers, updateLayer, type LayerRow } from '../repositories/layers';
 import { versionsCitingLayer } from '../repositories/recipes';
 import { ServiceError } from './errors';
+import type { Layer } from '../../api/client';
 
 /** inspect.ts's default pixel limit (25 million), repeated so that this module loads without geotiff. */
 const DEFAULT_MAX_PIXELS = 25_000_000;
@@ -86,30 +87,11 @@ export const layerMetaInput = z.object({
 
 export type LayerMetaInput = z.input<typeof layerMetaInput>;
 
-export interface LayerView {
-	id: number;
-	name: string;
-	kind: (typeof LAYER_KINDS)[number];
-	units: string;
-	acquiredOn: string | null;
-	platform: (typeof LAYER_PLATFORMS)[number];
-	status: LayerRow['status'];
-	error: string | null;
-	originalName: string;
-	sizeBytes: number;
-	band: number;
-	bandCount: number | null;
-	width: number | null;
-	height: number | null;
-	epsg: number | null;
-	resolution: { x: number; y: number } | null;
-	nodata: number | null;
-	footprint: unknown | null;
-	stats: { min: number; max: number; mean: number; std: number; validCount: number } | null;
-	histogram: { edges: number[]; counts: number[] } | null;
-	hasPreview: boolean;
-	createdAt: Date;
-}
+/**
+ * A layer as the API returns it: the wire type of the typed client (`Layer`), with the timestamp
+ * still a Date until json() writes it out. One shape, written once.
+ */
+export type LayerView = Omit<Layer, 'createdAt'> & { createdAt: Date };
 
 export function layerView(r: LayerRow): LayerView {
 	return {
@@ -130,7 +112,7 @@ export function layerView(r: LayerRow): LayerView {
 		epsg: r.epsg,
 		resolution: r.resolution_x !== null && r.resolution_y !== null ? { x: r.resolution_x, y: r.resolution_y } : null,
 		nodata: r.nodata,
-		footprint: r.footprint,
+		footprint: (r.footprint as LayerView['footprint']) ?? null,
 		stats:
 			r.stat_min !== null && r.stat_max !== null && r.stat_mean !== null && r.stat_std !== null
 				? { min: r.stat_min, max: r.stat_max, mean: r.stat_mean, std: r.stat_std, validCount: r.valid_count ?? 0 }
