@@ -134,7 +134,7 @@ export async function runPlace(args: PlaceArgs): Promise<PlaceOutput> {
 		p95_distance_m: result.p95DistanceM,
 		cell_size_m: grid.cellSize,
 		cell_size: { rule: ingest.cellSize.rule, reason: ingest.cellSize.reason, requested_m: ingest.cellSize.requested, pixel_m: ingest.cellSize.pixelSize, smallest_radius_m: ingest.cellSize.smallestRadius, budget_cells: ingest.cellSize.budget },
-		grid: { width: grid.width, height: grid.height, read: ingest.image.index === 0 ? 'full resolution' : `overview ${ingest.image.width}×${ingest.image.height}` },
+		grid: { width: grid.width, height: grid.height, x0: grid.x0, y0: grid.y0, read: ingest.image.index === 0 ? 'full resolution' : `overview ${ingest.image.width}×${ingest.image.height}` },
 		zones: result.zones.map((z) => ({ id: z.id, mass: z.mass, sensors: z.sensors, sigma: z.sigma })),
 		history: result.history.map((h) => ({ iteration: h.iteration, cost: h.cost, coverage: h.coverage }))
 	};

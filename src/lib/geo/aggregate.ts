@@ -19,7 +19,8 @@
  *   exclusions  4 × 4 sub-cells: inside the study area and outside every exclusion); a cell is
  *               feasible only if at least half of it is such ground.
  *
- * Memory: the grid (mass and valid area, 16 bytes a cell, plus 1 for feasibility), the lattice
+ * Memory: the grid (mass and valid area, 16 bytes a cell while reading, then 8 for the mass and 1
+ * for feasibility), the lattice
  * (24 bytes a node, one node per ≤ 64 pixels squared) and two block rows of the raster.
  */
 import type { WorkingGrid } from '../engine/types';
@@ -181,8 +182,8 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 	}
 
 	const n = width * height;
-	const mass = new Float64Array(n);
-	const validArea = new Float64Array(n);
+	// Mass and valid area of each cell, side by side: one cache line serves both.
+	const acc = new Float64Array(2 * n);
 	const { nx, gx: LX, gy: LY, area: LA } = lattice;
 	const rowX = new Float64Array(nx);
 	const rowY = new Float64Array(nx);
@@ -212,27 +213,39 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 					rowA[i] = LA[base + i] + (LA[base + nx + i] - LA[base + i]) * fy;
 				}
 				const off = r * W;
-				for (let c = 0; c < W; c++) {
-					const value = data[off + c];
-					// Valid: a number, finite, not negative, not the nodata value.
-					if (!(value >= 0 && value < Infinity) || value === nd) continue;
-					for (let a = 0; a < k; a++) {
-						const u = c + (a + 0.5) / k;
-						const i = Math.min((u / step) | 0, nx - 2);
-						const u0 = i * step;
-						const fx = (u - u0) / (Math.min(u0 + step, W) - u0);
-						const px = rowX[i] + (rowX[i + 1] - rowX[i]) * fx;
-						const py = rowY[i] + (rowY[i + 1] - rowY[i]) * fx;
-						if (!(px >= 0 && px < width && py >= 0 && py < height)) continue;
-						const cell = (py | 0) * width + (px | 0);
-						const areaPart = (rowA[i] + (rowA[i + 1] - rowA[i]) * fx) * inv;
-						mass[cell] += value * areaPart;
-						validArea[cell] += areaPart;
+				// Along a lattice span, positions and areas change linearly: step them by increments.
+				for (let sub = 0; sub < k; sub++) {
+					const frac = (sub + 0.5) / k;
+					for (let i = 0; i < nx - 1; i++) {
+						const c0 = i * step;
+						if (c0 >= W) break;
+						const c1 = Math.min(c0 + step, W);
+						const len = c1 - c0;
+						const dX = (rowX[i + 1] - rowX[i]) / len;
+						const dY = (rowY[i + 1] - rowY[i]) / len;
+						const dA = ((rowA[i + 1] - rowA[i]) / len) * inv;
+						let px = rowX[i] + dX * frac;
+						let py = rowY[i] + dY * frac;
+						let pa = rowA[i] * inv + dA * frac;
+						for (let c = c0; c < c1; c++) {
+							const value = data[off + c];
+							// Valid: a number, finite, not negative, not the nodata value.
+							if (value >= 0 && value < Infinity && value !== nd && px >= 0 && px < width && py >= 0 && py < height) {
+								const at = ((py | 0) * width + (px | 0)) * 2;
+								acc[at] += value * pa;
+								acc[at + 1] += pa;
+							}
+							px += dX;
+							py += dY;
+							pa += dA;
+						}
 					}
 				}
 			}
 		}
 	}
+	const mass = new Float64Array(n);
+	for (let i = 0; i < n; i++) mass[i] = acc[2 * i];
 
 	const allowed = allowedShare(geom, frame.studyPolygons, frame.exclusionPolygons);
 	const feasible = new Uint8Array(n);
@@ -241,7 +254,7 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 	for (let i = 0; i < n; i++) {
 		const share = allowed ? allowed[i] : 1;
 		if (share < 1) mass[i] *= share;
-		if (validArea[i] >= FEASIBLE_SHARE * cellArea && share >= FEASIBLE_SHARE) feasible[i] = 1;
+		if (acc[2 * i + 1] >= FEASIBLE_SHARE * cellArea && share >= FEASIBLE_SHARE) feasible[i] = 1;
 		total += mass[i];
 	}
 	if (!Number.isFinite(total)) throw new WorkingGridError('the raster values sum to infinity');
