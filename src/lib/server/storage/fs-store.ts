@@ -6,11 +6,11 @@
  */
 import { randomUUID } from 'node:crypto';
 import { createReadStream, createWriteStream } from 'node:fs';
-import { mkdir, readFile, rename, rm, stat, unlink, writeFile } from 'node:fs/promises';
+import { mkdir, open, readFile, rename, rm, stat, unlink, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { Readable } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
-import { InvalidObjectKey, ObjectNotFound, validateKey, type ObjectStore, type PutOptions, type PutResult } from './object-store';
+import { checkRange, InvalidObjectKey, ObjectNotFound, validateKey, type ObjectStore, type PutOptions, type PutResult } from './object-store';
 
 export class FsObjectStore implements ObjectStore {
 	readonly root: string;
@@ -61,6 +61,30 @@ export class FsObjectStore implements ObjectStore {
 		} catch (e) {
 			if (isMissing(e)) throw new ObjectNotFound(key);
 			throw e;
+		}
+	}
+
+	async getRange(key: string, offset: number, length: number): Promise<Uint8Array> {
+		checkRange(offset, length);
+		const file = this.pathOf(key);
+		let handle;
+		try {
+			handle = await open(file, 'r');
+		} catch (e) {
+			if (isMissing(e)) throw new ObjectNotFound(key);
+			throw e;
+		}
+		try {
+			const out = new Uint8Array(length);
+			let done = 0;
+			while (done < length) {
+				const { bytesRead } = await handle.read(out, done, length - done, offset + done);
+				if (bytesRead === 0) break;
+				done += bytesRead;
+			}
+			return done === length ? out : out.subarray(0, done);
+		} finally {
+			await handle.close();
 		}
 	}
 

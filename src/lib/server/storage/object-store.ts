@@ -22,6 +22,11 @@ export interface ObjectStore {
 	get(key: string): Promise<Readable>;
 	/** The whole object in memory; rejects with ObjectNotFound when there is none. */
 	getBuffer(key: string): Promise<Buffer>;
+	/**
+	 * `length` bytes from byte `offset` (fewer at the end, none past it); rejects with ObjectNotFound
+	 * when there is no object. Rasters are read this way, tile by tile, never whole.
+	 */
+	getRange(key: string, offset: number, length: number): Promise<Uint8Array>;
 	exists(key: string): Promise<boolean>;
 	/** Remove the object; deleting a missing key is not an error. */
 	delete(key: string): Promise<void>;
@@ -81,4 +86,11 @@ export function newObjectKey(prefix: string): string {
 
 export function isObjectNotFound(e: unknown): e is ObjectNotFound {
 	return e instanceof ObjectNotFound;
+}
+
+/** A byte range must start at a whole, non-negative offset and have a whole, non-negative length. */
+export function checkRange(offset: number, length: number): void {
+	if (!Number.isSafeInteger(offset) || offset < 0 || !Number.isSafeInteger(length) || length < 0) {
+		throw new RangeError(`invalid byte range: offset ${offset}, length ${length}`);
+	}
 }
