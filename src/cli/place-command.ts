@@ -7,7 +7,7 @@ import { readFile, stat } from 'node:fs/promises';
 import { place, zoneGrid, type PlacementResult, type SensorInput, type ZoneMap } from '../lib/engine';
 import { rasterizeZones } from '../lib/engine/rasterize';
 import { assignMoves, routeLength, routeOrder, type Point } from '../lib/engine/moves';
-import { openGeoTiff, type DecoderPool } from '../lib/geo/geotiff';
+import { decoderPoolFor, openGeoTiff, type DecoderPool } from '../lib/geo/geotiff';
 import { aggregateToWorkingGrid } from '../lib/geo/aggregate';
 import { GeoJsonError, projectRings, readPolygons, readSensors, readZones } from '../lib/geo/geojson';
 import { transformer } from '../lib/geo/crs';
@@ -69,7 +69,7 @@ export async function runPlace(args: PlaceArgs): Promise<PlaceOutput> {
 	let pool: DecoderPool | null = null;
 	let ingest;
 	try {
-		if (source.compression !== 1) pool = new (await import('geotiff')).Pool(2) as unknown as DecoderPool;
+		pool = await decoderPoolFor(source);
 		ingest = await aggregateToWorkingGrid(source, {
 			crs: args.crs,
 			cellSize: args.cellSize,

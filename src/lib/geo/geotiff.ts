@@ -526,6 +526,16 @@ async function describe(tiff: GeoTIFF, image: GeoTIFFImage, file: string, bandNo
 	};
 }
 
+/**
+ * A pool of `size` decoder threads for a compressed source (geotiff's Pool), or null when the
+ * source is not compressed (its blocks are used as read). Destroy it when done.
+ */
+export async function decoderPoolFor(source: Pick<RasterHeader, 'compression'>, size = 2): Promise<DecoderPool | null> {
+	if (source.compression === 1) return null;
+	const { Pool } = await import('geotiff');
+	return new Pool(size) as unknown as DecoderPool;
+}
+
 /** Read one band of a GeoTIFF held in memory, whole. Large rasters: use openGeoTiff's blocks. */
 export async function readGeoTiff(buffer: ArrayBuffer, opts: ReadGeoTiffOptions = {}): Promise<RasterBand> {
 	const source = await openGeoTiff(buffer, opts);

@@ -2,6 +2,14 @@
  * Summary statistics and a fixed 32-bin histogram of a band's valid cells (finite and not nodata).
  * Mean and standard deviation use Welford's one-pass update (numerically stable for large,
  * offset values); the standard deviation is the population one (divides by n).
+ *
+ * Streaming (BandSummary): blocks of a raster are added one after another, and the statistics and
+ * histogram come out at the end of the one pass. The histogram is exact while the band has at most
+ * EXACT_HISTOGRAM_VALUES valid cells (they are kept, 4 bytes each); beyond that it is built from
+ * FINE_BINS fine bins over a range that doubles when a value falls outside it, each fine bin
+ * counted in the 32-bin histogram's bin that holds its centre: a count can then be off by the
+ * cells of the one fine bin that straddles an edge (at least 64 fine bins make one bin). The
+ * counts always add up to the valid cells, and min, max and the edges are exact.
  */
 export interface BandStats {
 	min: number;
@@ -64,4 +72,109 @@ export function bandHistogram(data: ArrayLike<number>, nodata: number | null, mi
 		counts[k]++;
 	}
 	return { edges, counts };
+}
+
+/** Valid cells up to which a streamed histogram is exact. */
+export const EXACT_HISTOGRAM_VALUES = 1_000_000;
+/** Fine bins of a streamed histogram beyond that. */
+export const FINE_BINS = 4096;
+
+/** Statistics and histogram of a band added block by block (see the note at the top). */
+export class BandSummary {
+	private n = 0;
+	private mean = 0;
+	private m2 = 0;
+	private min = Infinity;
+	private max = -Infinity;
+	private kept: Float64Array | null = new Float64Array(1024);
+	private fine: Float64Array | null = null;
+	private lo = 0;
+	private hi = 0;
+
+	constructor(private readonly nodata: number | null) {}
+
+	add(data: ArrayLike<number>): void {
+		// A Float32 band stores nodata rounded to single precision.
+		const nd = this.nodata === null ? null : data instanceof Float32Array ? Math.fround(this.nodata) : this.nodata;
+		for (let i = 0; i < data.length; i++) {
+			const v = data[i];
+			if (!Number.isFinite(v) || v === nd) continue;
+			this.n++;
+			const d = v - this.mean;
+			this.mean += d / this.n;
+			this.m2 += d * (v - this.mean);
+			if (v < this.min) this.min = v;
+			if (v > this.max) this.max = v;
+			if (this.kept) {
+				if (this.n > this.kept.length) {
+					if (this.n > EXACT_HISTOGRAM_VALUES) {
+						this.startFine();
+						this.addFine(v);
+						continue;
+					}
+					const grown = new Float64Array(Math.min(EXACT_HISTOGRAM_VALUES, this.kept.length * 2));
+					grown.set(this.kept);
+					this.kept = grown;
+				}
+				this.kept[this.n - 1] = v;
+			} else this.addFine(v);
+		}
+	}
+
+	private startFine(): void {
+		const kept = this.kept!;
+		this.kept = null;
+		this.fine = new Float64Array(FINE_BINS);
+		this.lo = kept[0];
+		this.hi = kept[0];
+		for (let i = 0; i < this.n - 1; i++) {
+			if (kept[i] < this.lo) this.lo = kept[i];
+			if (kept[i] > this.hi) this.hi = kept[i];
+		}
+		if (!(this.hi > this.lo)) this.hi = this.lo + 1;
+		for (let i = 0; i < this.n - 1; i++) this.addFine(kept[i]);
+	}
+
+	private addFine(v: number): void {
+		const fine = this.fine!;
+		while (v < this.lo || v > this.hi) {
+			// Double the range away from the value's side; pairs of fine bins merge into one.
+			const span = this.hi - this.lo;
+			const half = FINE_BINS / 2;
+			if (v > this.hi) {
+				for (let k = 0; k < half; k++) fine[k] = fine[2 * k] + fine[2 * k + 1];
+				fine.fill(0, half);
+				this.hi = this.lo + 2 * span;
+			} else {
+				for (let k = FINE_BINS - 1; k >= half; k--) fine[k] = fine[2 * k - FINE_BINS] + fine[2 * k - FINE_BINS + 1];
+				fine.fill(0, 0, half);
+				this.lo = this.hi - 2 * span;
+			}
+		}
+		let k = Math.floor(((v - this.lo) / (this.hi - this.lo)) * FINE_BINS);
+		if (k >= FINE_BINS) k = FINE_BINS - 1;
+		fine[k]++;
+	}
+
+	stats(): BandStats {
+		if (this.n === 0) return { min: NaN, max: NaN, mean: NaN, std: NaN, validCount: 0 };
+		return { min: this.min, max: this.max, mean: this.mean, std: Math.sqrt(this.m2 / this.n), validCount: this.n };
+	}
+
+	histogram(bins = HISTOGRAM_BINS): Histogram {
+		if (this.kept) return bandHistogram(this.kept.subarray(0, this.n), null, this.min, this.max, bins);
+		const { min, max } = this;
+		const exact = bandHistogram([], null, min, max, bins);
+		const fine = this.fine!;
+		const lo = exact.edges[0];
+		const width = (exact.edges[bins] - lo) / bins;
+		const fineWidth = (this.hi - this.lo) / FINE_BINS;
+		for (let k = 0; k < FINE_BINS; k++) {
+			if (fine[k] === 0) continue;
+			const centre = this.lo + (k + 0.5) * fineWidth;
+			const b = Math.min(bins - 1, Math.max(0, Math.floor((centre - lo) / width)));
+			exact.counts[b] += fine[k];
+		}
+		return exact;
+	}
 }

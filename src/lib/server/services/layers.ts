@@ -2,14 +2,17 @@
  * Layers as a use case: upload a GeoTIFF (streamed to the object store with a byte limit),
  * inspect it, store its preview, list, delete.
  *
- * An upload goes uploading → processing → ready within one request. Whatever refuses it (too
- * large, not a TIFF, no georeferencing, unknown CRS, all nodata, band missing, too many pixels,
- * corrupt compression) removes the stored objects and the row again: a refused upload leaves
- * nothing behind.
+ * An upload goes uploading → processing → ready within one request. The body streams into the
+ * store; processing (processStoredLayer) then reads the stored file tile by tile and builds the
+ * statistics, histogram and preview in one pass, so memory stays at a few tiles and the preview
+ * whatever the raster's size. Whatever refuses it (too large, not a TIFF, no georeferencing,
+ * unknown CRS, all nodata, band missing, too many pixels, corrupt compression, a tile too large
+ * to decode) removes the stored objects and the row again: a refused upload leaves nothing behind.
  *
  * Limits (environment, read by layerLimits):
  *   LAYER_MAX_BYTES   largest upload in bytes; default 524288000 (500 MiB)
- *   LAYER_MAX_PIXELS  largest width·height of the band; default 25 000 000
+ *   LAYER_MAX_PIXELS  largest width·height of the band; default 250 000 000 (memory does not grow
+ *                     with it: it bounds the time one upload may take)
  * The body limit of the server itself (BODY_SIZE_LIMIT, 600 MiB under npm start) must be larger
  * than LAYER_MAX_BYTES, so that our own message answers an oversized upload.
  */
@@ -17,7 +20,6 @@ import { Readable } from 'node:stream';
 import type { Knex } from 'knex';
 import { z } from 'zod';
 import { LayerRejected } from '../layers/errors';
-import { renderPreview } from '../layers/preview';
 import { newObjectKey, type ObjectStore } from '../storage/object-store';
 import { recordAudit } from '../repositories/audit';
 import { deleteLayerRow, findLayer, insertLayer, listLayers, updateLayer, type LayerRow } from '../repositories/layers';
@@ -25,8 +27,8 @@ import { versionsCitingLayer } from '../repositories/recipes';
 import { ServiceError } from './errors';
 import type { Layer } from '../../api/client';
 
-/** inspect.ts's default pixel limit (25 million), repeated so that this module loads without geotiff. */
-const DEFAULT_MAX_PIXELS = 25_000_000;
+/** Largest band of an upload, in pixels: 250 million (a 500 MB file of Float16 samples). */
+export const DEFAULT_LAYER_MAX_PIXELS = 250_000_000;
 
 /**
  * The GeoTIFF reader is loaded on first use, not with this module: the geotiff package starts a
@@ -51,7 +53,7 @@ function positiveInt(value: string | undefined, fallback: number, name: string):
 }
 
 export function layerLimits(env: Record<string, string | undefined>): LayerLimits {
-	return { maxBytes: positiveInt(env.LAYER_MAX_BYTES, DEFAULT_LAYER_MAX_BYTES, 'LAYER_MAX_BYTES'), maxPixels: positiveInt(env.LAYER_MAX_PIXELS, DEFAULT_MAX_PIXELS, 'LAYER_MAX_PIXELS') };
+	return { maxBytes: positiveInt(env.LAYER_MAX_BYTES, DEFAULT_LAYER_MAX_BYTES, 'LAYER_MAX_BYTES'), maxPixels: positiveInt(env.LAYER_MAX_PIXELS, DEFAULT_LAYER_MAX_PIXELS, 'LAYER_MAX_PIXELS') };
 }
 
 /** The upload is larger than LAYER_MAX_BYTES (answered with 413). */
@@ -169,10 +171,8 @@ export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadConte
 		const { size } = await store.put(storageKey, Readable.from(limited(body, limits.maxBytes, counter)), { contentType: 'image/tiff' });
 		await updateLayer(db, id, { status: 'processing', storage_key: storageKey, size_bytes: size });
 
-		const bytes = await store.getBuffer(storageKey);
-		const { loadLayer } = await inspectModule();
-		const { metadata, band } = await loadLayer(bytes, { band: m.band, name: m.fileName || m.name, maxPixels: limits.maxPixels });
-		const preview = renderPreview(band);
+		const { processStoredLayer } = await inspectModule();
+		const { metadata, preview } = await processStoredLayer(store, storageKey, { band: m.band, name: m.fileName || m.name, maxPixels: limits.maxPixels });
 		previewKey = newObjectKey('previews');
 		await store.put(previewKey, preview.png, { contentType: 'image/png' });
 		const done = await db.transaction(async (trx) => {
