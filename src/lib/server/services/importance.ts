@@ -83,16 +83,26 @@ async function readyLayer(db: Knex, networkId: number, layerId: string): Promise
 /** The GeoTIFF reader, loaded on first use (see the same note in ./layers). */
 const inspectModule = () => import('../layers/inspect');
 
-/** A stored layer's band as a grid (reads and checks the stored GeoTIFF again). */
-export async function layerGridBand(store: ObjectStore, layer: LayerRow): Promise<GridBand> {
+/**
+ * A stored layer's band as a grid of at most `maxCells` cells, read from storage tile by tile:
+ * a band larger than that is averaged over f × f blocks of pixels (f = ⌈√(pixels / maxCells)⌉, the
+ * factor targetGrid coarsens the finest layer by), so no layer is ever held at full size.
+ */
+export async function layerGridBand(store: ObjectStore, layer: LayerRow, maxCells = MAX_SURFACE_CELLS): Promise<GridBand> {
 	if (!layer.storage_key) throw new ServiceError(422, 'layer_not_ready', `Layer "${layer.name}" has no stored file.`);
-	const bytes = await store.getBuffer(layer.storage_key);
-	const { loadLayer, toGridBand } = await inspectModule();
+	const [{ storedObjectReader, toGridBand }, { openGeoTiff, RasterError }, { blockAverage }] = await Promise.all([inspectModule(), import('../../geo/geotiff'), import('../../geo/aggregate')]);
 	try {
-		const { band } = await loadLayer(bytes, { band: layer.band, name: layer.name, maxPixels: Number.MAX_SAFE_INTEGER });
-		return toGridBand(band);
+		const source = await openGeoTiff(storedObjectReader(store, layer.storage_key), { band: layer.band, name: layer.name, maxPixels: Number.MAX_SAFE_INTEGER });
+		try {
+			const factor = Math.max(1, Math.ceil(Math.sqrt((source.width * source.height) / maxCells)));
+			const avg = await blockAverage(source, factor);
+			const { blocks: _b, close: _c, blockWidth: _w, blockHeight: _h, overviews: _o, ...header } = source;
+			return toGridBand({ ...header, width: avg.width, height: avg.height, transform: avg.transform, data: avg.data, nodata: null });
+		} finally {
+			await source.close();
+		}
 	} catch (e) {
-		if (e instanceof LayerRejected) throw new ServiceError(422, 'layer_unreadable', e.message);
+		if (e instanceof LayerRejected || e instanceof RasterError) throw new ServiceError(422, 'layer_unreadable', e.message);
 		throw e;
 	}
 }
