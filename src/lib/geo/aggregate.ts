@@ -54,6 +54,8 @@ export interface AggregateResult {
 	image: { index: number; width: number; height: number };
 	/** Importance integral kept in the grid (value × m²), before mass was normalised to 1. */
 	integral: number;
+	/** Area of valid data in each cell, m² (a cell's mean value is its mass × integral / this). */
+	validArea: Float32Array;
 	/** Sub-pixels per pixel side (1 = pixel centres only). */
 	subsamples: number;
 	latticeStep: number;
@@ -245,7 +247,11 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 		}
 	}
 	const mass = new Float64Array(n);
-	for (let i = 0; i < n; i++) mass[i] = acc[2 * i];
+	const validArea = new Float32Array(n);
+	for (let i = 0; i < n; i++) {
+		mass[i] = acc[2 * i];
+		validArea[i] = acc[2 * i + 1];
+	}
 
 	const allowed = allowedShare(geom, frame.studyPolygons, frame.exclusionPolygons);
 	const feasible = new Uint8Array(n);
@@ -254,7 +260,7 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 	for (let i = 0; i < n; i++) {
 		const share = allowed ? allowed[i] : 1;
 		if (share < 1) mass[i] *= share;
-		if (acc[2 * i + 1] >= FEASIBLE_SHARE * cellArea && share >= FEASIBLE_SHARE) feasible[i] = 1;
+		if (validArea[i] >= FEASIBLE_SHARE * cellArea && share >= FEASIBLE_SHARE) feasible[i] = 1;
 		total += mass[i];
 	}
 	if (!Number.isFinite(total)) throw new WorkingGridError('the raster values sum to infinity');
@@ -266,6 +272,7 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 		cellSize: cellChoice,
 		image: { index: image.index, width: W, height: H },
 		integral: total,
+		validArea,
 		subsamples: k,
 		latticeStep: step,
 		latticeError: err,
