@@ -8,7 +8,7 @@
  * that one pass; memory is the preview plus two block rows, whatever the raster's size.
  * loadLayer reads a small band whole, for code that needs its samples.
  */
-import { decoderPoolFor, openGeoTiff, readGeoTiff, RasterError, pixelToCrs, type ByteRangeReader, type DecoderPool, type GeoTiffInput, type RasterBand, type RasterHeader } from '../../geo/geotiff';
+import { decoderPoolFor, openGeoTiff, readGeoTiff, RasterError, pixelToCrs, type DecoderPool, type GeoTiffInput, type RasterBand, type RasterHeader } from '../../geo/geotiff';
 import { CrsError, isProjected, transformer } from '../../geo/crs';
 import type { ObjectStore } from '../storage/object-store';
 import type { GridBand } from '../../importance/grid';
@@ -227,14 +227,14 @@ export async function processLayer(input: GeoTiffInput, opts: ProcessOptions = {
 	}
 }
 
-/** The store's object as a range reader: processLayer reads it tile by tile, never whole. */
-export function storedObjectReader(store: Pick<ObjectStore, 'getRange'>, key: string): ByteRangeReader {
-	return { read: (offset, length) => store.getRange(key, offset, length) };
-}
-
-/** processLayer on a stored upload: the entry point of layer processing (a request or a job). */
-export function processStoredLayer(store: Pick<ObjectStore, 'getRange'>, key: string, opts: ProcessOptions = {}): Promise<ProcessedLayer> {
-	return processLayer(storedObjectReader(store, key), opts);
+/** processLayer on a stored upload, read tile by tile: the entry point of layer processing (a request or a job). */
+export async function processStoredLayer(store: Pick<ObjectStore, 'openRanges'>, key: string, opts: ProcessOptions = {}): Promise<ProcessedLayer> {
+	const reader = await store.openRanges(key);
+	try {
+		return await processLayer(reader, opts);
+	} finally {
+		await reader.close();
+	}
 }
 
 /** Metadata of an upload, or LayerRejected with a message for the user. */

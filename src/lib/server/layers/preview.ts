@@ -71,20 +71,22 @@ export class PreviewAccumulator {
 		this.colMap = blockIndex(width, outW);
 	}
 
-	add(row0: number, data: ArrayLike<number>): void {
+	add(row0: number, data: Float32Array | Float64Array | ArrayLike<number>): void {
 		const W = this.width;
 		const rows = data.length / W;
-		const nd = this.nodata === null ? null : data instanceof Float32Array ? Math.fround(this.nodata) : this.nodata;
+		const nd = this.nodata === null ? NaN : data instanceof Float32Array ? Math.fround(this.nodata) : this.nodata;
+		const { sum, count, colMap } = this;
 		for (let r = 0; r < rows; r++) {
 			const j = this.rowMap[row0 + r];
 			if (j < 0) continue;
 			const base = j * this.outW;
+			const off = r * W;
 			for (let c = 0; c < W; c++) {
-				const v = data[r * W + c];
-				if (!Number.isFinite(v) || v === nd) continue;
-				const k = base + this.colMap[c];
-				this.sum[k] += v;
-				this.count[k]++;
+				const v = data[off + c];
+				if (!(v > -Infinity && v < Infinity) || v === nd) continue;
+				const k = base + colMap[c];
+				sum[k] += v;
+				count[k]++;
 			}
 		}
 	}

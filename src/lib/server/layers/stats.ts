@@ -90,35 +90,66 @@ export class BandSummary {
 	private fine: Float64Array | null = null;
 	private lo = 0;
 	private hi = 0;
+	/** Fine bins per unit of value. */
+	private scale = 1;
 
 	constructor(private readonly nodata: number | null) {}
 
-	add(data: ArrayLike<number>): void {
+	/** Values kept for the exact histogram (while `kept` is not null). */
+	private keptCount = 0;
+
+	/**
+	 * Add a block: its own count, mean and squared deviations (two passes over the block in
+	 * memory), merged into the running ones by Chan, Golub and LeVeque's pairwise update.
+	 */
+	add(data: Float32Array | Float64Array | ArrayLike<number>): void {
 		// A Float32 band stores nodata rounded to single precision.
-		const nd = this.nodata === null ? null : data instanceof Float32Array ? Math.fround(this.nodata) : this.nodata;
+		const nd = this.nodata === null ? NaN : data instanceof Float32Array ? Math.fround(this.nodata) : this.nodata;
+		let n = 0;
+		let sum = 0;
+		let min = this.min;
+		let max = this.max;
 		for (let i = 0; i < data.length; i++) {
 			const v = data[i];
-			if (!Number.isFinite(v) || v === nd) continue;
-			this.n++;
-			const d = v - this.mean;
-			this.mean += d / this.n;
-			this.m2 += d * (v - this.mean);
-			if (v < this.min) this.min = v;
-			if (v > this.max) this.max = v;
-			if (this.kept) {
-				if (this.n > this.kept.length) {
-					if (this.n > EXACT_HISTOGRAM_VALUES) {
-						this.startFine();
-						this.addFine(v);
-						continue;
-					}
-					const grown = new Float64Array(Math.min(EXACT_HISTOGRAM_VALUES, this.kept.length * 2));
-					grown.set(this.kept);
-					this.kept = grown;
-				}
-				this.kept[this.n - 1] = v;
-			} else this.addFine(v);
+			if (!(v > -Infinity && v < Infinity) || v === nd) continue;
+			n++;
+			sum += v;
+			if (v < min) min = v;
+			if (v > max) max = v;
+			if (this.kept) this.keep(v);
+			else this.addFine(v);
 		}
+		if (n === 0) return;
+		this.min = min;
+		this.max = max;
+		const mean = sum / n;
+		let m2 = 0;
+		for (let i = 0; i < data.length; i++) {
+			const v = data[i];
+			if (!(v > -Infinity && v < Infinity) || v === nd) continue;
+			const d = v - mean;
+			m2 += d * d;
+		}
+		const total = this.n + n;
+		const delta = mean - this.mean;
+		this.mean += (delta * n) / total;
+		this.m2 += m2 + (delta * delta * this.n * n) / total;
+		this.n = total;
+	}
+
+	private keep(v: number): void {
+		let kept = this.kept!;
+		if (this.keptCount === kept.length) {
+			if (kept.length >= EXACT_HISTOGRAM_VALUES) {
+				this.startFine();
+				this.addFine(v);
+				return;
+			}
+			const grown = new Float64Array(Math.min(EXACT_HISTOGRAM_VALUES, kept.length * 2));
+			grown.set(kept);
+			this.kept = kept = grown;
+		}
+		kept[this.keptCount++] = v;
 	}
 
 	private startFine(): void {
@@ -127,12 +158,13 @@ export class BandSummary {
 		this.fine = new Float64Array(FINE_BINS);
 		this.lo = kept[0];
 		this.hi = kept[0];
-		for (let i = 0; i < this.n - 1; i++) {
+		for (let i = 0; i < this.keptCount; i++) {
 			if (kept[i] < this.lo) this.lo = kept[i];
 			if (kept[i] > this.hi) this.hi = kept[i];
 		}
 		if (!(this.hi > this.lo)) this.hi = this.lo + 1;
-		for (let i = 0; i < this.n - 1; i++) this.addFine(kept[i]);
+		this.scale = FINE_BINS / (this.hi - this.lo);
+		for (let i = 0; i < this.keptCount; i++) this.addFine(kept[i]);
 	}
 
 	private addFine(v: number): void {
@@ -145,13 +177,15 @@ export class BandSummary {
 				for (let k = 0; k < half; k++) fine[k] = fine[2 * k] + fine[2 * k + 1];
 				fine.fill(0, half);
 				this.hi = this.lo + 2 * span;
+				this.scale = FINE_BINS / (this.hi - this.lo);
 			} else {
 				for (let k = FINE_BINS - 1; k >= half; k--) fine[k] = fine[2 * k - FINE_BINS] + fine[2 * k - FINE_BINS + 1];
 				fine.fill(0, 0, half);
 				this.lo = this.hi - 2 * span;
+				this.scale = FINE_BINS / (this.hi - this.lo);
 			}
 		}
-		let k = Math.floor(((v - this.lo) / (this.hi - this.lo)) * FINE_BINS);
+		let k = ((v - this.lo) * this.scale) | 0;
 		if (k >= FINE_BINS) k = FINE_BINS - 1;
 		fine[k]++;
 	}
@@ -162,7 +196,7 @@ export class BandSummary {
 	}
 
 	histogram(bins = HISTOGRAM_BINS): Histogram {
-		if (this.kept) return bandHistogram(this.kept.subarray(0, this.n), null, this.min, this.max, bins);
+		if (this.kept) return bandHistogram(this.kept.subarray(0, this.keptCount), null, this.min, this.max, bins);
 		const { min, max } = this;
 		const exact = bandHistogram([], null, min, max, bins);
 		const fine = this.fine!;

@@ -90,9 +90,10 @@ const inspectModule = () => import('../layers/inspect');
  */
 export async function layerGridBand(store: ObjectStore, layer: LayerRow, maxCells = MAX_SURFACE_CELLS): Promise<GridBand> {
 	if (!layer.storage_key) throw new ServiceError(422, 'layer_not_ready', `Layer "${layer.name}" has no stored file.`);
-	const [{ storedObjectReader, toGridBand }, { openGeoTiff, RasterError }, { blockAverage }] = await Promise.all([inspectModule(), import('../../geo/geotiff'), import('../../geo/aggregate')]);
+	const [{ toGridBand }, { openGeoTiff, RasterError }, { blockAverage }] = await Promise.all([inspectModule(), import('../../geo/geotiff'), import('../../geo/aggregate')]);
+	const reader = await store.openRanges(layer.storage_key);
 	try {
-		const source = await openGeoTiff(storedObjectReader(store, layer.storage_key), { band: layer.band, name: layer.name, maxPixels: Number.MAX_SAFE_INTEGER });
+		const source = await openGeoTiff(reader, { band: layer.band, name: layer.name, maxPixels: Number.MAX_SAFE_INTEGER });
 		try {
 			const factor = Math.max(1, Math.ceil(Math.sqrt((source.width * source.height) / maxCells)));
 			const avg = await blockAverage(source, factor);
@@ -104,6 +105,8 @@ export async function layerGridBand(store: ObjectStore, layer: LayerRow, maxCell
 	} catch (e) {
 		if (e instanceof LayerRejected || e instanceof RasterError) throw new ServiceError(422, 'layer_unreadable', e.message);
 		throw e;
+	} finally {
+		await reader.close();
 	}
 }
 

@@ -15,6 +15,12 @@ export interface PutResult {
 	size: number;
 }
 
+export interface RangeReader {
+	/** `length` bytes from byte `offset`: fewer at the end of the object, none past it. */
+	read(offset: number, length: number): Promise<Uint8Array>;
+	close(): Promise<void>;
+}
+
 export interface ObjectStore {
 	/** Store `body` under `key`, replacing any object already there. */
 	put(key: string, body: Readable | Uint8Array, opts?: PutOptions): Promise<PutResult>;
@@ -23,10 +29,10 @@ export interface ObjectStore {
 	/** The whole object in memory; rejects with ObjectNotFound when there is none. */
 	getBuffer(key: string): Promise<Buffer>;
 	/**
-	 * `length` bytes from byte `offset` (fewer at the end, none past it); rejects with ObjectNotFound
-	 * when there is no object. Rasters are read this way, tile by tile, never whole.
+	 * The object opened for reads of byte ranges (rasters are read this way, tile by tile, never
+	 * whole); rejects with ObjectNotFound when there is none. Close the reader when done.
 	 */
-	getRange(key: string, offset: number, length: number): Promise<Uint8Array>;
+	openRanges(key: string): Promise<RangeReader>;
 	exists(key: string): Promise<boolean>;
 	/** Remove the object; deleting a missing key is not an error. */
 	delete(key: string): Promise<void>;

@@ -20,7 +20,7 @@ import {
 	type CompletedPart
 } from '@aws-sdk/client-s3';
 import { Readable } from 'node:stream';
-import { checkRange, ObjectNotFound, validateKey, type ObjectStore, type PutOptions, type PutResult } from './object-store';
+import { checkRange, ObjectNotFound, validateKey, type ObjectStore, type RangeReader, type PutOptions, type PutResult } from './object-store';
 
 export interface S3StoreConfig {
 	bucket: string;
@@ -155,24 +155,27 @@ export class S3ObjectStore implements ObjectStore {
 		return Buffer.concat(chunks);
 	}
 
-	async getRange(key: string, offset: number, length: number): Promise<Uint8Array> {
-		checkRange(offset, length);
+	async openRanges(key: string): Promise<RangeReader> {
 		validateKey(key);
-		if (length === 0) {
-			if (!(await this.exists(key))) throw new ObjectNotFound(key);
-			return new Uint8Array(0);
-		}
-		try {
-			const res = await this.client.send(new GetObjectCommand({ Bucket: this.bucket, Key: key, Range: `bytes=${offset}-${offset + length - 1}` }));
-			const body = res.Body as { transformToByteArray?: () => Promise<Uint8Array> } | undefined;
-			if (!body?.transformToByteArray) throw new Error(`S3 returned no body for ${key}`);
-			return await body.transformToByteArray();
-		} catch (e) {
-			if (isNotFound(e)) throw new ObjectNotFound(key);
-			// A range that starts past the end is not satisfiable: there are no bytes there.
-			if ((e as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode === 416) return new Uint8Array(0);
-			throw e;
-		}
+		if (!(await this.exists(key))) throw new ObjectNotFound(key);
+		return {
+			read: async (offset, length) => {
+				checkRange(offset, length);
+				if (length === 0) return new Uint8Array(0);
+				try {
+					const res = await this.client.send(new GetObjectCommand({ Bucket: this.bucket, Key: key, Range: `bytes=${offset}-${offset + length - 1}` }));
+					const body = res.Body as { transformToByteArray?: () => Promise<Uint8Array> } | undefined;
+					if (!body?.transformToByteArray) throw new Error(`S3 returned no body for ${key}`);
+					return await body.transformToByteArray();
+				} catch (e) {
+					if (isNotFound(e)) throw new ObjectNotFound(key);
+					// A range that starts past the end is not satisfiable: there are no bytes there.
+					if ((e as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode === 416) return new Uint8Array(0);
+					throw e;
+				}
+			},
+			close: async () => undefined
+		};
 	}
 
 	async exists(key: string): Promise<boolean> {
