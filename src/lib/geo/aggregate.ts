@@ -63,6 +63,12 @@ export interface AggregateResult {
 	pixelsRead: number;
 }
 
+/**
+ * Largest working grid built by default (a requested cell size can ask for more than the budget):
+ * 16 million cells, 256 MB while reading. Placement itself wants far fewer (see CELL_BUDGET).
+ */
+export const MAX_AGGREGATE_CELLS = 16_000_000;
+
 /** Sub-cells per cell side when measuring the study area and exclusions. */
 export const COVER_SUBCELLS = 4;
 /** A cell is feasible with valid data, and inside the allowed ground, on at least this share of it. */
@@ -140,7 +146,7 @@ function pixelSides(t: GeoTransform, toWork: PointTransform, u: number, v: numbe
 /** Ingest one band into a working grid: the single pass over the raster described above. */
 export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: AggregateOptions = {}): Promise<AggregateResult> {
 	let choice: CellSizeChoice | null = null;
-	const frame = planFrame(source, opts, (pixelM, w, h) => {
+	const frame = planFrame(source, { ...opts, maxCells: opts.maxCells ?? MAX_AGGREGATE_CELLS }, (pixelM, w, h) => {
 		choice = chooseCellSize({ pixelSize: pixelM, extentWidth: w, extentHeight: h, smallestRadius: opts.smallestRadius, budget: opts.cellBudget, requested: opts.cellSize });
 		return choice.cellSize;
 	});
