@@ -18,7 +18,7 @@ function fresh() {
 	if (!existsSync(out) || !existsSync(inputsFile)) return false;
 	const built = statSync(out).mtimeMs;
 	try {
-		return JSON.parse(readFileSync(inputsFile, 'utf8')).every((f) => statSync(join(root, f)).mtimeMs <= built);
+		return JSON.parse(readFileSync(inputsFile, 'utf8')).every((/** @type {string} */ f) => statSync(join(root, f)).mtimeMs <= built);
 	} catch {
 		return false; // a source was removed or renamed
 	}
