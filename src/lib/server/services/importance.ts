@@ -5,7 +5,9 @@
  *
  * Grid of a surface: every layer of the recipe is brought onto ONE grid, the grid of its finest
  * layer (smallest cell area in metres; ties: the first listed), coarsened by an integer factor
- * when it would exceed MAX_SURFACE_CELLS. Layers in another CRS are reprojected (nearest
+ * when it would exceed MAX_SURFACE_CELLS. Each layer is read from storage tile by tile and
+ * averaged over blocks of pixels to at most MAX_SURFACE_CELLS first (layerGridBand), so no layer
+ * is ever held at full size. Layers in another CRS are reprojected (nearest
  * neighbour, reprojectToGrid), layers in the same CRS are aligned (alignToGrid). Cells outside a
  * layer's footprint are nodata, and nodata in any layer is nodata in the surface (combineLayers).
  *
