@@ -125,11 +125,11 @@ try {
 	}
 
 	if (only !== 'unit') {
-		await seedDemo(databaseUrl);
-		buildIfChanged();
 		const appPort = await freePort();
 		const origin = `http://127.0.0.1:${appPort}`;
-		const app = spawn(process.execPath, [path.join(root, 'build', 'index.js')], {
+		await seedDemo(databaseUrl, origin);
+		buildIfChanged();
+		const app = spawn(process.execPath, [path.join(root, 'src', 'ops', 'serve.mjs')], {
 			cwd: root,
 			stdio: ['ignore', 'ignore', 'inherit'],
 			env: { ...process.env, ...env, NODE_ENV: 'production', SHUTDOWN_TIMEOUT: '3', PORT: String(appPort), HOST: '127.0.0.1', ORIGIN: origin }
