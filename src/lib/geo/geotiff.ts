@@ -10,6 +10,7 @@ import { isKnownCrs } from './crs';
 import { blockGeometry, tiffBlockProblem } from './tiff-blocks';
 
 type GeotiffModule = typeof import('geotiff');
+const INFLATES_PAST = 'inflates past the bytes its block holds';
 let geotiffModule: Promise<GeotiffModule> | undefined;
 
 /**
@@ -30,7 +31,7 @@ function loadGeotiff(): Promise<GeotiffModule> {
 					out = inflateSync(new Uint8Array(buffer as ArrayBuffer), { maxOutputLength: Math.max(1, limit) });
 				} catch (e) {
 					if ((e as { code?: string }).code === 'ERR_BUFFER_TOO_LARGE' || e instanceof RangeError) {
-						throw new Error(`decoder: a Deflate block inflates past the ${limit} bytes it must hold`);
+						throw new Error(`decoder: a Deflate block ${INFLATES_PAST} (${limit})`);
 					}
 					throw e;
 				}
@@ -297,6 +298,9 @@ export async function readGeoTiff(buffer: ArrayBuffer, opts: ReadGeoTiffOptions 
 		raw = (rasters as unknown as ArrayLike<number>[])[0];
 	} catch (e) {
 		const msg = errorText(e);
+		if (msg.includes(INFLATES_PAST)) {
+			throw new RasterError(file, 'unsafe-blocks', `a compressed block inflates to more than the block can hold: the file is corrupt or built to exhaust memory`);
+		}
 		if (/compression|decoder/i.test(msg)) {
 			throw new RasterError(file, 'unsupported', `unsupported or corrupt compression (Compression ${compression}: ${msg})`);
 		}
