@@ -103,3 +103,21 @@ export function lzwZeroBomb(tables: number): Uint8Array {
 	b.write(EOI, width);
 	return b.finish();
 }
+
+/** Rewrites the value of a SHORT or LONG tag in the first IFD of a little-endian classic TIFF (TIFF 6.0, section 2). */
+export function patchTiffTag(tiff: ArrayBuffer, tag: number, value: number): ArrayBuffer {
+	const copy = tiff.slice(0);
+	const v = new DataView(copy);
+	const ifd = v.getUint32(4, true);
+	const n = v.getUint16(ifd, true);
+	for (let i = 0; i < n; i++) {
+		const at = ifd + 2 + i * 12;
+		if (v.getUint16(at, true) !== tag) continue;
+		const type = v.getUint16(at + 2, true);
+		if (type === 3) v.setUint16(at + 8, value, true);
+		else if (type === 4) v.setUint32(at + 8, value, true);
+		else throw new Error(`tag ${tag} has type ${type}, not SHORT or LONG`);
+		return copy;
+	}
+	throw new Error(`tag ${tag} not found`);
+}

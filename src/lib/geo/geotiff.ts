@@ -3,41 +3,34 @@
  * nodata value, through the `geotiff` package. Everything that can go wrong with a user's file
  * becomes a RasterError whose message names the file and the reason.
  */
-import { inflateSync } from 'node:zlib';
 import type GeoTIFF from 'geotiff';
 import type { GeoTIFFImage } from 'geotiff';
 import { isKnownCrs } from './crs';
-import { blockGeometry, tiffBlockProblem } from './tiff-blocks';
+import { tiffBlockProblem } from './tiff-blocks';
+import { BLOCK_OVERFLOW, inflateBounded, lzwDecodeBounded, packBitsDecodeBounded } from './bounded-decoders';
 
 type GeotiffModule = typeof import('geotiff');
-const INFLATES_PAST = 'inflates past the bytes its block holds';
 let geotiffModule: Promise<GeotiffModule> | undefined;
 
 /**
  * The geotiff package, loaded on first use (it pulls in web-worker, which breaks when imported
- * inside SvelteKit's build-time analysis worker), with its Deflate decoder replaced by one that
- * stops at the size the block must decode to: a small strip that inflates to gigabytes fails at
- * its block's size instead of exhausting memory.
+ * inside SvelteKit's build-time analysis worker), with its Deflate, LZW and PackBits decoders
+ * replaced by ones that stop at the size the block must decode to (./bounded-decoders): a small
+ * strip that inflates to gigabytes fails at its block's size instead of exhausting memory.
  */
 function loadGeotiff(): Promise<GeotiffModule> {
 	geotiffModule ??= import('geotiff').then((m) => {
-		class BoundedDeflateDecoder extends m.BaseDecoder {
-			decodeBlock(buffer: ArrayBufferLike): ArrayBufferLike {
-				const p = this.parameters;
-				const bits = Array.isArray(p.bitsPerSample) || ArrayBuffer.isView(p.bitsPerSample) ? Array.from(p.bitsPerSample as ArrayLike<number>) : [Number(p.bitsPerSample)];
-				const limit = blockGeometry({ width: p.tileWidth, height: p.tileHeight, tile: { width: p.tileWidth, height: p.tileHeight }, rowsPerStrip: p.tileHeight, bitsPerSample: bits, planarConfiguration: 1, compression: 8, byteCounts: [] }).blockBytes;
-				let out: Buffer;
-				try {
-					out = inflateSync(new Uint8Array(buffer as ArrayBuffer), { maxOutputLength: Math.max(1, limit) });
-				} catch (e) {
-					if ((e as { code?: string }).code === 'ERR_BUFFER_TOO_LARGE' || e instanceof RangeError) {
-						throw new Error(`decoder: a Deflate block ${INFLATES_PAST} (${limit})`);
-					}
-					throw e;
+		const bounded = (codec: (input: Uint8Array, limit: number) => Uint8Array) =>
+			class extends m.BaseDecoder {
+				decodeBlock(buffer: ArrayBufferLike): ArrayBufferLike {
+					const p = this.parameters;
+					const bits = Array.isArray(p.bitsPerSample) || ArrayBuffer.isView(p.bitsPerSample) ? Array.from(p.bitsPerSample as ArrayLike<number>) : [Number(p.bitsPerSample)];
+					// A chunky block holds every sample of its pixels; a planar one fewer: the sum bounds both.
+					const limit = Math.ceil((p.tileWidth * bits.reduce((a, b) => a + b, 0)) / 8) * p.tileHeight;
+					const out = codec(new Uint8Array(buffer as ArrayBuffer), limit);
+					return out.buffer.slice(out.byteOffset, out.byteOffset + out.byteLength);
 				}
-				return out.buffer.slice(out.byteOffset, out.byteOffset + out.byteLength);
-			}
-		}
+			};
 		const parameters = async (fd: InstanceType<GeotiffModule['ImageFileDirectory']>) => {
 			const tiled = !fd.hasTag('StripOffsets');
 			return {
@@ -48,7 +41,12 @@ function loadGeotiff(): Promise<GeotiffModule> {
 				predictor: Number((await fd.loadValue('Predictor')) || 1)
 			};
 		};
-		m.addDecoder([8, 32946], () => Promise.resolve(BoundedDeflateDecoder), parameters, false);
+		const deflate = bounded(inflateBounded);
+		const lzw = bounded(lzwDecodeBounded);
+		const packBits = bounded(packBitsDecodeBounded);
+		m.addDecoder([8, 32946], () => Promise.resolve(deflate), parameters, false);
+		m.addDecoder(5, () => Promise.resolve(lzw), parameters, false);
+		m.addDecoder(32773, () => Promise.resolve(packBits), parameters, false);
 		return m;
 	});
 	return geotiffModule;
@@ -298,7 +296,7 @@ export async function readGeoTiff(buffer: ArrayBuffer, opts: ReadGeoTiffOptions 
 		raw = (rasters as unknown as ArrayLike<number>[])[0];
 	} catch (e) {
 		const msg = errorText(e);
-		if (msg.includes(INFLATES_PAST)) {
+		if (msg.includes(BLOCK_OVERFLOW)) {
 			throw new RasterError(file, 'unsafe-blocks', `a compressed block inflates to more than the block can hold: the file is corrupt or built to exhaust memory`);
 		}
 		if (/compression|decoder/i.test(msg)) {

@@ -25,3 +25,28 @@ describe('test bombs', () => {
 		expect(stream.byteLength).toBeLessThan(6000);
 	});
 });
+
+describe('bounded decoders', () => {
+	it("lzwDecodeBounded agrees with geotiff's own LZW decoder, and stops at its limit", async () => {
+		const { lzwDecodeBounded, BlockOverflow } = await import('../../../src/lib/geo/bounded-decoders');
+		const stream = lzwZeroBomb(2);
+		const ours = lzwDecodeBounded(stream, 20_000_000);
+		expect(ours.byteLength).toBe(3743 * 3744); // two tables of 7 006 896 bytes
+		expect(() => lzwDecodeBounded(stream, 1_000_000)).toThrow(BlockOverflow);
+	});
+
+	it('packBitsDecodeBounded unpacks the PackBits example of Apple TN1023, and stops at its limit', async () => {
+		const { packBitsDecodeBounded, BlockOverflow } = await import('../../../src/lib/geo/bounded-decoders');
+		// Apple Technical Note TN1023 (the scheme TIFF 6.0, section 9 adopts) [from memory].
+		const packed = Uint8Array.from([0xfe, 0xaa, 0x02, 0x80, 0x00, 0x2a, 0xfd, 0xaa, 0x03, 0x80, 0x00, 0x2a, 0x22, 0xf7, 0xaa]);
+		const unpacked = [0xaa, 0xaa, 0xaa, 0x80, 0x00, 0x2a, 0xaa, 0xaa, 0xaa, 0xaa, 0x80, 0x00, 0x2a, 0x22, ...new Array(10).fill(0xaa)];
+		expect(Array.from(packBitsDecodeBounded(packed, 100))).toEqual(unpacked);
+		expect(() => packBitsDecodeBounded(packed, 20)).toThrow(BlockOverflow);
+	});
+
+	it('inflateBounded stops a zlib bomb at its limit', async () => {
+		const { inflateBounded, BlockOverflow } = await import('../../../src/lib/geo/bounded-decoders');
+		expect(inflateBounded(zlibZeroBomb(10), 3000).byteLength).toBe(2581);
+		expect(() => inflateBounded(zlibZeroBomb(100_000), 1_000_000)).toThrow(BlockOverflow);
+	});
+});
