@@ -123,7 +123,10 @@ const checks: Check[] = [
 	{ name: 'API get missing zone set', method: 'GET', path: '/api/v1/networks/1/zone-sets/999999', expect: api(401, 404, 404, 404, 403) },
 	{ name: 'API use zone set', method: 'POST', path: '/api/v1/networks/1/zone-sets/999999', json: { inUse: 'x' }, expect: api(401, 403, 400, 403, 403) },
 	{ name: 'API get area', method: 'GET', path: '/api/v1/networks/1/area', expect: api(401, 200, 200, 200, 200) },
-	{ name: 'API set area', method: 'POST', path: '/api/v1/networks/1/area', json: { version: 'x' }, expect: api(401, 400, 400, 403, 403) }
+	{ name: 'API set area', method: 'POST', path: '/api/v1/networks/1/area', json: { version: 'x' }, expect: api(401, 400, 400, 403, 403) },
+
+	// Last: it ends every session of each role (the contexts above are done with by then).
+	{ name: 'sign out everywhere action', method: 'POST', path: '/profile?/signOutEverywhere', form: {}, expect: signedIn(303) }
 ];
 
 const contexts = new Map<Who, APIRequestContext>();
