@@ -27,8 +27,19 @@ function raw(method: string, path: string, headers: Record<string, string>, body
 		req.on('error', (e) => {
 			if (!answered) reject(e);
 		});
-		if (Array.isArray(body)) for (const part of body) req.write(part);
-		else if (body !== undefined) req.write(body);
+		if (Array.isArray(body)) {
+			// A chunked body, one part at a time, stopping once the server has answered.
+			void (async () => {
+				for (const part of body) {
+					if (answered || req.destroyed) return;
+					await new Promise((r) => req.write(part, r));
+					await new Promise((r) => setTimeout(r, 10));
+				}
+				req.end();
+			})();
+			return;
+		}
+		if (body !== undefined) req.write(body);
 		req.end();
 	});
 }

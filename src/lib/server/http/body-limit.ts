@@ -29,7 +29,7 @@ export type BoundedBody = { ok: true; request: Request } | { ok: false };
 /**
  * The request with its body bounded by `limit` bytes, or `{ ok: false }` when it is larger. A
  * declared length is judged without reading; a body without one is read up to `limit` + 1 bytes at
- * most (which is small, since STREAMED routes are not read here) and then cancelled.
+ * most (which is small, since STREAMED routes are not read here); the rest is never read.
  */
 export async function boundBody(request: Request, limit: number): Promise<BoundedBody> {
 	if (!request.body || limit === Infinity) return { ok: true, request };
@@ -46,7 +46,9 @@ export async function boundBody(request: Request, limit: number): Promise<Bounde
 		if (done) break;
 		total += value.byteLength;
 		if (total > limit) {
-			await reader.cancel().catch(() => undefined);
+			// Stop reading; no cancel(): adapter-node would destroy the socket before the 413 goes out.
+			// The answer closes the connection instead (see hooks.server.ts).
+			reader.releaseLock();
 			return { ok: false };
 		}
 		chunks.push(value);
