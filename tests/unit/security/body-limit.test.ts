@@ -36,7 +36,8 @@ describe('per-route body limits', () => {
 	it('stop reading a chunked body just past the limit', async () => {
 		const { request, pulled } = chunked(600 * 1024 * 1024);
 		expect((await boundBody(request, SMALL_BODY_BYTES)).ok).toBe(false);
-		expect(pulled()).toBeLessThanOrEqual(SMALL_BODY_BYTES + 64 * 1024);
+		// What was read, plus the one chunk the stream's own queue fetches ahead: nowhere near 600 MB.
+		expect(pulled()).toBeLessThanOrEqual(SMALL_BODY_BYTES + 2 * 64 * 1024);
 	});
 
 	it('pass a body within the limit on, intact', async () => {
