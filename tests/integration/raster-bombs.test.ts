@@ -32,6 +32,13 @@ async function longestPause<T>(fn: () => Promise<T>): Promise<{ result: T | Erro
 	}
 }
 
+/** A georeferenced TIFF of one strip whose stored bytes are `stream`, whatever the pixels. */
+function oneStrip(width: number, height: number, sample: { format: 1 | 3; bits: 8 | 32; code: number }, stream: Uint8Array): Uint8Array {
+	const bands = [sample.bits === 8 ? new Uint8Array(width * height) : new Float32Array(width * height)];
+	const layout = { kind: 'strips' as const, rowsPerStrip: height };
+	return new Uint8Array(encodeTiff({ width, height, bands, sampleFormat: sample.format, bitsPerSample: sample.bits, layout, compression: { code: sample.code, encode: () => stream }, geo }));
+}
+
 describe('raster decompression bombs', () => {
 	let t: TestDb;
 	let s: TestStore;
@@ -71,17 +78,8 @@ describe('raster decompression bombs', () => {
 		// 2048 × 2048 Float32 in one strip: it must inflate to 16 MiB; the stream inflates to 1 + 258 · 4 162 000 bytes ≈ 1.07 GB.
 		const stream = zlibZeroBomb(4_162_000);
 		expect(stream.byteLength).toBeLessThan(7 * 1024 * 1024);
-		const tiff = encodeTiff({
-			width: 2048,
-			height: 2048,
-			bands: [new Float32Array(2048 * 2048)],
-			sampleFormat: 3,
-			bitsPerSample: 32,
-			layout: { kind: 'strips', rowsPerStrip: 2048 },
-			compression: { code: 8, encode: () => stream },
-			geo
-		});
-		const pauseMs = await refused(new Uint8Array(tiff), /compressed block inflates to more than the block can hold/);
+		const tiff = oneStrip(2048, 2048, { format: 3, bits: 32, code: 8 }, stream);
+		const pauseMs = await refused(tiff, /compressed block inflates to more than the block can hold/);
 		// Decoding runs in a worker: the main thread never stalls for long (a 1 GB inflate on it takes seconds).
 		expect(pauseMs).toBeLessThan(1500);
 	});
@@ -89,17 +87,8 @@ describe('raster decompression bombs', () => {
 	it('refuses an LZW strip that decodes to far more than its block', async () => {
 		// 1024 × 1024 bytes in one strip (1 MiB); 60 string tables of LZW (about 330 kB) decode to about 420 MB.
 		const stream = lzwZeroBomb(60);
-		const tiff = encodeTiff({
-			width: 1024,
-			height: 1024,
-			bands: [new Uint8Array(1024 * 1024)],
-			sampleFormat: 1,
-			bitsPerSample: 8,
-			layout: { kind: 'strips', rowsPerStrip: 1024 },
-			compression: { code: 5, encode: () => stream },
-			geo
-		});
-		await refused(new Uint8Array(tiff), /compressed block inflates to more than the block can hold/);
+		const tiff = oneStrip(1024, 1024, { format: 1, bits: 8, code: 5 }, stream);
+		await refused(tiff, /compressed block inflates to more than the block can hold/);
 	});
 
 	it('ends the decoding worker, not the server, when decoding runs out of memory', async () => {

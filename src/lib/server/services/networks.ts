@@ -56,7 +56,8 @@ export async function createNetwork(db: Knex, organisationId: number, actorId: n
 	});
 }
 
-export function publicView(n: NetworkRow) {
+/** The fields a network shows everywhere, lists included. */
+function commonView(n: Omit<NetworkRow, 'study_area' | 'exclusions'>) {
 	return {
 		id: n.id,
 		organisationId: n.organisation_id,
@@ -64,8 +65,6 @@ export function publicView(n: NetworkRow) {
 		name: n.name,
 		description: n.description,
 		crsEpsg: n.crs_epsg,
-		studyArea: n.study_area,
-		exclusions: n.exclusions,
 		publication: n.publication,
 		publicText: n.public_text,
 		version: n.version,
@@ -74,24 +73,15 @@ export function publicView(n: NetworkRow) {
 	};
 }
 
+export function publicView(n: NetworkRow) {
+	return { ...commonView(n), studyArea: n.study_area, exclusions: n.exclusions };
+}
+
 export type NetworkView = ReturnType<typeof publicView>;
 
 /** A network as lists show it: the same fields as publicView without the geometry. */
 export function summaryView(n: NetworkSummaryRow) {
-	return {
-		id: n.id,
-		organisationId: n.organisation_id,
-		slug: n.slug,
-		name: n.name,
-		description: n.description,
-		crsEpsg: n.crs_epsg,
-		hasStudyArea: n.has_study_area,
-		publication: n.publication,
-		publicText: n.public_text,
-		version: n.version,
-		createdAt: n.created_at,
-		updatedAt: n.updated_at
-	};
+	return { ...commonView(n), hasStudyArea: n.has_study_area };
 }
 
 export const NETWORKS_PER_PAGE = [10, 25, 50, 100] as const;
