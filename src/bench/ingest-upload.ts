@@ -2,8 +2,9 @@
  * The web part of `npm run bench ingest`, run in a process of its own (so its peak memory is its
  * own): what the upload route does with a file, minus the database rows. The file is streamed
  * into a file-system object store through the same byte-limited stream (no whole copy in
- * memory), then processStoredLayer reads it back from the store tile by tile and builds the
- * statistics, histogram and preview in one pass. Prints one line of figures.
+ * memory), then processStoredLayer reads it back from the store tile by tile, in a worker thread
+ * with the upload's heap limit (512 MB), and builds the statistics, histogram and preview in one
+ * pass. Peak memory is the process's, worker included. Prints one line of figures.
  *
  *   node --import tsx src/bench/ingest-upload.ts FILE
  */
@@ -12,7 +13,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { FsObjectStore } from '../lib/server/storage/fs-store';
 import { newObjectKey } from '../lib/server/storage/object-store';
-import { processStoredLayer } from '../lib/server/layers/inspect';
+import { processStoredLayer } from '../lib/server/layers/decode';
 
 const file = process.argv[2];
 if (!file) {

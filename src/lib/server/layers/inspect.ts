@@ -10,7 +10,6 @@
  */
 import { decoderPoolFor, openGeoTiff, readGeoTiff, RasterError, pixelToCrs, type DecoderPool, type GeoTiffInput, type RasterBand, type RasterHeader } from '../../geo/geotiff';
 import { CrsError, isProjected, transformer } from '../../geo/crs';
-import type { ObjectStore } from '../storage/object-store';
 import type { GridBand } from '../../importance/grid';
 import { LayerRejected, type LayerRejectedCode } from './errors';
 import { BandSummary, type BandStats, type Histogram } from './stats';
@@ -68,7 +67,8 @@ const REASON_CODE: Record<string, LayerRejectedCode> = {
 	'unknown-crs': 'unknown-crs',
 	'band-missing': 'band-missing',
 	unsupported: 'unsupported',
-	'too-large': 'too-large'
+	'too-large': 'too-large',
+	'unsafe-blocks': 'unsafe-blocks'
 };
 
 function toArrayBuffer(input: ArrayBuffer | Uint8Array): ArrayBuffer {
@@ -224,16 +224,6 @@ export async function processLayer(input: GeoTiffInput, opts: ProcessOptions = {
 		}
 	} catch (e) {
 		throw rejected(e, name);
-	}
-}
-
-/** processLayer on a stored upload, read tile by tile: the entry point of layer processing (a request or a job). */
-export async function processStoredLayer(store: Pick<ObjectStore, 'openRanges'>, key: string, opts: ProcessOptions = {}): Promise<ProcessedLayer> {
-	const reader = await store.openRanges(key);
-	try {
-		return await processLayer(reader, opts);
-	} finally {
-		await reader.close();
 	}
 }
 

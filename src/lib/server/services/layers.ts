@@ -20,6 +20,7 @@ import { Readable } from 'node:stream';
 import type { Knex } from 'knex';
 import { z } from 'zod';
 import { LayerRejected } from '../layers/errors';
+import { processStoredLayer } from '../layers/decode';
 import { newObjectKey, type ObjectStore } from '../storage/object-store';
 import { recordAudit } from '../repositories/audit';
 import { deleteLayerRow, findLayer, insertLayer, listLayers, updateLayer, type LayerRow } from '../repositories/layers';
@@ -30,12 +31,6 @@ import type { Layer } from '../../api/client';
 /** Largest band of an upload, in pixels: 250 million (a 500 MB file of Float16 samples). */
 export const DEFAULT_LAYER_MAX_PIXELS = 250_000_000;
 
-/**
- * The GeoTIFF reader is loaded on first use, not with this module: the geotiff package starts a
- * worker shim when imported inside a worker thread, which is where SvelteKit analyses the build.
- */
-const inspectModule = () => import('../layers/inspect');
-
 export const LAYER_KINDS = ['soil_moisture', 'vegetation_index', 'elevation', 'other'] as const;
 export const LAYER_PLATFORMS = ['satellite', 'aircraft', 'drone', 'model', 'other'] as const;
 export const DEFAULT_LAYER_MAX_BYTES = 500 * 1024 * 1024;
@@ -43,6 +38,8 @@ export const DEFAULT_LAYER_MAX_BYTES = 500 * 1024 * 1024;
 export interface LayerLimits {
 	maxBytes: number;
 	maxPixels: number;
+	/** Heap limit of the worker that decodes an upload (MB); default 512. */
+	decodeHeapMb?: number;
 }
 
 function positiveInt(value: string | undefined, fallback: number, name: string): number {
@@ -53,7 +50,11 @@ function positiveInt(value: string | undefined, fallback: number, name: string):
 }
 
 export function layerLimits(env: Record<string, string | undefined>): LayerLimits {
-	return { maxBytes: positiveInt(env.LAYER_MAX_BYTES, DEFAULT_LAYER_MAX_BYTES, 'LAYER_MAX_BYTES'), maxPixels: positiveInt(env.LAYER_MAX_PIXELS, DEFAULT_LAYER_MAX_PIXELS, 'LAYER_MAX_PIXELS') };
+	return {
+		maxBytes: positiveInt(env.LAYER_MAX_BYTES, DEFAULT_LAYER_MAX_BYTES, 'LAYER_MAX_BYTES'),
+		maxPixels: positiveInt(env.LAYER_MAX_PIXELS, DEFAULT_LAYER_MAX_PIXELS, 'LAYER_MAX_PIXELS'),
+		decodeHeapMb: positiveInt(env.LAYER_DECODE_HEAP_MB, 512, 'LAYER_DECODE_HEAP_MB')
+	};
 }
 
 /** The upload is larger than LAYER_MAX_BYTES (answered with 413). */
@@ -153,6 +154,7 @@ export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadConte
 		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
 	}
 	const m = parsed.data;
+	const storageKey = newObjectKey('layers');
 	const id = await insertLayer(db, {
 		network_id: ctx.networkId,
 		name: m.name,
@@ -162,17 +164,18 @@ export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadConte
 		platform: m.platform,
 		band: m.band,
 		original_name: m.fileName,
-		created_by: ctx.actorId
+		created_by: ctx.actorId,
+		storage_key: storageKey
 	});
-	const storageKey = newObjectKey('layers');
 	let previewKey: string | null = null;
 	try {
 		const counter = { bytes: 0 };
 		const { size } = await store.put(storageKey, Readable.from(limited(body, limits.maxBytes, counter)), { contentType: 'image/tiff' });
 		await updateLayer(db, id, { status: 'processing', storage_key: storageKey, size_bytes: size });
 
-		const { processStoredLayer } = await inspectModule();
-		const { metadata, preview } = await processStoredLayer(store, storageKey, { band: m.band, name: m.fileName || m.name, maxPixels: limits.maxPixels });
+		// Read from storage tile by tile in a worker thread with memory limits: a decompression bomb
+		// ends that worker, not the server.
+		const { metadata, preview } = await processStoredLayer(store, storageKey, { band: m.band, name: m.fileName || m.name, maxPixels: limits.maxPixels }, { heapMb: limits.decodeHeapMb });
 		previewKey = newObjectKey('previews');
 		await store.put(previewKey, preview.png, { contentType: 'image/png' });
 		const done = await db.transaction(async (trx) => {
