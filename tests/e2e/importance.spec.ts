@@ -52,7 +52,7 @@ test.describe('importance tab', () => {
 		await expect(preview).toBeVisible();
 		await expect.poll(() => preview.evaluate((el) => (el as HTMLImageElement).naturalWidth)).toBeGreaterThan(0);
 		// The finest layer sets the grid: the 30 m vegetation raster, 200 × 150 cells (data/demo/README.md).
-		await expect(page.getByTestId('recipe-preview')).toContainText('200 × 150 cells of 30 m, EPSG:32632');
+		await expect(page.getByTestId('recipe-preview')).toContainText('200 × 150 cells of 30 m, EPSG:32754');
 		await page.screenshot({ path: '/tmp/layers-app-importance.png', fullPage: true });
 
 		await page.getByLabel('Recipe name').fill(recipeName);

@@ -55,7 +55,7 @@ test.describe('layers tab', () => {
 		}
 		const details = page.getByTestId('layer-details');
 		await expect(details).toContainText('200 × 150 cells');
-		await expect(details).toContainText('EPSG:32632');
+		await expect(details).toContainText('EPSG:32754');
 		await expect(details).toContainText('30 m');
 		await page.screenshot({ path: '/tmp/layers-app-layers.png', fullPage: true });
 

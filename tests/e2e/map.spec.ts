@@ -97,7 +97,7 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	// The API document, as any member sees it.
 	const tech = await contextFor('technician');
 	const doc = (await (await tech.get(`/api/v1/networks/${networkId}/map`)).json()).map;
-	expect(doc.crs.epsg).toBe(32632);
+	expect(doc.crs.epsg).toBe(32754);
 	expect(doc.sensors).toHaveLength(sensorCount);
 	expect(doc.backdrop.kind).toBe('importance');
 	expect(doc.contours.length).toBeGreaterThan(0);
@@ -141,7 +141,7 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	await page.mouse.move(box.x + box.width / 2 + 10, box.y + box.height / 2 + 5);
 	const coords = page.getByTestId('cursor-coords');
 	await expect(coords).toContainText(/\d+\.\d{5}° N, \d+\.\d{5}° E/);
-	await expect(coords).toContainText(/EPSG:32632 x [\d\u2009]+ m, y [\d\u2009]+ m/);
+	await expect(coords).toContainText(/EPSG:32754 x [\d\u2009]+ m, y [\d\u2009]+ m/);
 	await page.screenshot({ path: '/tmp/map-app-map.png' });
 
 	// A popup on a sensor.

@@ -34,7 +34,7 @@ test('the analyst imports, sorts, filters, pages, edits and exports sensors', as
 	await expect(rows).toHaveCount(14);
 	await page.screenshot({ path: '/tmp/inventory-sensors.png', fullPage: true });
 
-	// Sort by longitude, westernmost first (VV-P09 at 10.066561°E in data/demo/sensors.csv), then the other way.
+	// Sort by longitude, westernmost first (VV-P09 at 143.454455°E in data/demo/sensors.csv), then the other way.
 	await page.getByRole('link', { name: 'Lon / lat' }).click();
 	await expect(page).toHaveURL(/sort=lon&dir=asc/);
 	await expect(rows.first().locator('td').first()).toHaveText('VV-P09');

@@ -32,7 +32,7 @@ test('the analyst uploads the study area, exclusions and zones, lays a 3 km grid
 	await page.getByRole('button', { name: 'Upload study area' }).click();
 	await expect(page.getByText('Study area taken from study-area.geojson.')).toBeVisible();
 	await expect(page.getByTestId('study-area-state')).toHaveText('Outlined (1 polygon)');
-	await expect(page.getByText('EPSG:32632')).toBeVisible();
+	await expect(page.getByText('EPSG:32754')).toBeVisible();
 
 	await page.getByLabel(/Exclusions file/).setInputFiles(path.join(demoDir, 'exclusions.geojson'));
 	await page.getByRole('button', { name: 'Upload exclusions' }).click();

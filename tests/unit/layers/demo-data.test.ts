@@ -48,9 +48,9 @@ describe('demo data (data/demo)', () => {
 		expect(total).toBeLessThan(300 * 1024);
 	});
 
-	it('soil moisture: 1 km cells, 40×30, EPSG:32632, within the sand range of FAO-56 Table 19 (0.02–0.17 m³/m³)', async () => {
+	it('soil moisture: 1 km cells, 40×30, EPSG:32754, within the sand range of FAO-56 Table 19 (0.02–0.17 m³/m³)', async () => {
 		const { metadata } = await loadLayer(await read('soil-moisture.tif'), { name: 'soil-moisture.tif' });
-		expect(metadata).toMatchObject({ width: 40, height: 30, epsg: 32632, resolution: { x: 1000, y: 1000 }, nodata: -9999 });
+		expect(metadata).toMatchObject({ width: 40, height: 30, epsg: 32754, resolution: { x: 1000, y: 1000 }, nodata: -9999 });
 		expect(metadata.stats.min).toBeGreaterThanOrEqual(SAND_MOISTURE_BOUNDS.min);
 		expect(metadata.stats.max).toBeLessThanOrEqual(SAND_MOISTURE_BOUNDS.max);
 		expect(metadata.stats.validCount).toBeLessThan(1200); // reservoir cells are nodata
@@ -126,7 +126,7 @@ describe('demo data through the engine side readers', () => {
 		expect(zones.map((z) => z.id)).toEqual(['north-fell', 'west-moss', 'south-heath', 'eastern-reach']);
 		const { band } = await loadLayer(await read('soil-moisture.tif'));
 		const { grid, epsg } = buildWorkingGrid(band, { studyArea: study, exclusions: lake, cellSize: 250 });
-		expect(epsg).toBe(32632);
+		expect(epsg).toBe(32754);
 		let mass = 0;
 		let feasible = 0;
 		for (let i = 0; i < grid.mass.length; i++) {
