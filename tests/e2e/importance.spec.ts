@@ -7,7 +7,7 @@ import { randomBytes } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test } from '@playwright/test';
-import { contextFor, demoUser, signInPage } from './support';
+import { contextFor, demoUser, signInPage, gotoHydrated } from './support';
 
 const demo = (f: string) => path.resolve(import.meta.dirname, '../../data/demo', f);
 const tag = randomBytes(3).toString('hex');
@@ -39,7 +39,7 @@ test.describe('importance tab', () => {
 	test('an analyst previews a two-layer recipe, saves v1, changes a weight, saves v2 and uses it', async ({ page }) => {
 		const u = demoUser('analyst');
 		await signInPage(page, u.email, u.password);
-		await page.goto(`/networks/${networkId}/importance`);
+		await gotoHydrated(page, `/networks/${networkId}/importance`);
 		await expect(page.getByRole('heading', { name: 'Importance', exact: true })).toBeVisible();
 
 		await page.getByLabel(`Use ${soilName}`).check();
@@ -80,7 +80,7 @@ test.describe('importance tab', () => {
 	test('a reviewer sees the versions but cannot change them; a technician is refused', async ({ page }) => {
 		const r = demoUser('reviewer');
 		await signInPage(page, r.email, r.password);
-		await page.goto(`/networks/${networkId}/importance`);
+		await gotoHydrated(page, `/networks/${networkId}/importance`);
 		await expect(page.getByRole('table', { name: `Versions of ${recipeName}` }).getByTestId('recipe-version')).toHaveCount(2);
 		await expect(page.getByText('You can look at the recipes and their versions; analysts change them.')).toBeVisible();
 		await expect(page.getByRole('button', { name: 'Preview' })).toHaveCount(0);

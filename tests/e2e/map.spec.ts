@@ -10,7 +10,7 @@ import { expect, test } from '@playwright/test';
 import type { Knex } from 'knex';
 import { createDb } from '../../src/lib/server/db/knex';
 import { seedDemoInventory } from '../../seeds/demo-inventory';
-import { contextFor, demoUser, signInPage } from './support';
+import { contextFor, demoUser, signInPage, gotoHydrated } from './support';
 
 const demo = (f: string) => path.resolve(import.meta.dirname, '../../data/demo', f);
 
@@ -109,7 +109,7 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	const t = demoUser('technician');
 	await page.setViewportSize({ width: 1400, height: 900 });
 	await signInPage(page, t.email, t.password);
-	await page.goto(`/networks/${networkId}/map`);
+	await gotoHydrated(page, `/networks/${networkId}/map`);
 	const mapEl = page.getByTestId('network-map');
 	await expect(mapEl).toHaveClass(/leaflet-container/);
 	await expect(page.locator('.cf-sensor')).toHaveCount(sensorCount);
@@ -163,7 +163,7 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	await page.screenshot({ path: '/tmp/map-app-zoomed.png' });
 
 	// The overview's small map.
-	await page.goto(`/networks/${networkId}`);
+	await gotoHydrated(page, `/networks/${networkId}`);
 	await expect(page.getByTestId('network-map')).toHaveClass(/leaflet-container/);
 	await expect(page.locator('.cf-sensor')).toHaveCount(sensorCount);
 	await page.screenshot({ path: '/tmp/map-app-overview.png' });
@@ -190,7 +190,7 @@ test('an analyst draws a named exclusion on the map; a technician has no Draw co
 	const t = demoUser('technician');
 	await page.setViewportSize({ width: 1400, height: 900 });
 	await signInPage(page, t.email, t.password);
-	await page.goto(`/networks/${networkId}/map`);
+	await gotoHydrated(page, `/networks/${networkId}/map`);
 	await expect(page.getByTestId('network-map')).toHaveClass(/leaflet-container/);
 	await expect(page.getByTestId('map-legend')).toBeVisible();
 	await expect(page.getByTestId('map-draw')).toHaveCount(0);
@@ -200,7 +200,7 @@ test('an analyst draws a named exclusion on the map; a technician has no Draw co
 	// The analyst draws a triangle named "test pit".
 	const a = demoUser('analyst');
 	await signInPage(page, a.email, a.password);
-	await page.goto(`/networks/${networkId}/map`);
+	await gotoHydrated(page, `/networks/${networkId}/map`);
 	const mapEl = page.getByTestId('network-map');
 	await expect(mapEl).toHaveClass(/leaflet-container/);
 	const draw = page.getByTestId('map-draw');
