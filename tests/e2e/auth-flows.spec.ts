@@ -73,7 +73,7 @@ test.describe.serial('invitation, role change and password reset', () => {
 		await signInPage(p2, email, firstPassword);
 		await expect(p2.getByText('Wren Hollis')).toBeVisible();
 		await p2.goto('/admin/users');
-		await expect(p2.getByRole('heading', { name: 'Not for you' })).toBeVisible();
+		await expect(p2.getByRole('heading', { name: 'No access' })).toBeVisible();
 
 		// A role change takes effect on the very next request, without signing in again.
 		await page.reload();

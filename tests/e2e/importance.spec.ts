@@ -67,8 +67,8 @@ test.describe('importance tab', () => {
 
 		const versions = page.getByRole('table', { name: `Versions of ${recipeName}` });
 		await expect(versions.getByTestId('recipe-version')).toHaveCount(2);
-		await expect(versions.getByTestId('recipe-version').nth(0)).toContainText(`${vegName}: as is, weight 3`);
-		await expect(versions.getByTestId('recipe-version').nth(1)).toContainText(`${vegName}: as is, weight 1`);
+		await expect(versions.getByTestId('recipe-version').nth(0)).toContainText(`${vegName}: scaled 0–1, weight 3`);
+		await expect(versions.getByTestId('recipe-version').nth(1)).toContainText(`${vegName}: scaled 0–1, weight 1`);
 		await expect(versions.getByTestId('recipe-version').nth(1)).toContainText('first try');
 
 		await versions.getByTestId('recipe-version').nth(0).getByRole('button', { name: 'Use this version for the network' }).click();

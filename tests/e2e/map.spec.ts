@@ -65,7 +65,7 @@ async function insertDemoMapRows(db: Knex, networkId: number): Promise<number> {
 	return sensors.length;
 }
 
-test('the Map tab draws the importance raster, sensors, legend, toggles and cursor coordinates', async ({ page }) => {
+test('the Map tab draws the importance map, sensors, legend, toggles and cursor coordinates', async ({ page }) => {
 	const url = process.env.DATABASE_URL;
 	if (!url) throw new Error('DATABASE_URL is not set: run through npm test');
 	const admin = await contextFor('admin');
@@ -140,7 +140,7 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2);
 	await page.mouse.move(box.x + box.width / 2 + 10, box.y + box.height / 2 + 5);
 	const coords = page.getByTestId('cursor-coords');
-	await expect(coords).toContainText(/\d+\.\d{5}° N, \d+\.\d{5}° E/);
+	await expect(coords).toContainText(/lon \d+\.\d{5}° E, lat \d+\.\d{5}° S/);
 	await expect(coords).toContainText(/EPSG:32754 x [\d\u2009]+ m, y [\d\u2009]+ m/);
 	await page.screenshot({ path: '/tmp/map-app-map.png' });
 
@@ -206,7 +206,7 @@ test('an analyst draws a named exclusion on the map; a technician has no Draw co
 	const draw = page.getByTestId('map-draw');
 	await draw.getByRole('button', { name: 'Draw exclusion' }).click();
 	await draw.getByLabel('Name of the exclusion').fill('test pit');
-	const finish = draw.getByRole('button', { name: 'Finish' });
+	const finish = draw.getByRole('button', { name: 'Close the outline' });
 	await expect(finish).toBeDisabled();
 	const box = (await mapEl.boundingBox())!;
 	const cx = box.x + box.width / 2;
@@ -214,14 +214,14 @@ test('an analyst draws a named exclusion on the map; a technician has no Draw co
 	await page.mouse.click(cx - 60, cy + 40);
 	await page.mouse.click(cx + 70, cy + 50);
 	await expect(page.locator('path.cf-draft-vertex')).toHaveCount(2);
-	// Undo takes the last point back; it is clicked again.
-	await draw.getByRole('button', { name: 'Undo last point' }).click();
+	// Removing the last corner takes it back; it is clicked again.
+	await draw.getByRole('button', { name: 'Remove the last corner' }).click();
 	await expect(page.locator('path.cf-draft-vertex')).toHaveCount(1);
 	await page.mouse.click(cx + 70, cy + 50);
 	await page.mouse.click(cx + 10, cy - 70);
 	await expect(page.locator('path.cf-draft-vertex')).toHaveCount(3);
 	await expect(page.locator('path.cf-draft-outline')).toHaveCount(1);
-	await expect(draw).toContainText('3 points so far');
+	await expect(draw).toContainText('3 corners so far');
 	await page.screenshot({ path: '/tmp/map-app-draw.png' });
 	await finish.click();
 	await expect(draw.getByRole('status').filter({ hasText: 'saved' })).toContainText('Exclusion “test pit” saved (2 exclusions in all)');

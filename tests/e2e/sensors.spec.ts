@@ -35,10 +35,10 @@ test('the analyst imports, sorts, filters, pages, edits and exports sensors', as
 	await page.screenshot({ path: '/tmp/inventory-sensors.png', fullPage: true });
 
 	// Sort by longitude, westernmost first (VV-P09 at 143.454455°E in data/demo/sensors.csv), then the other way.
-	await page.getByRole('link', { name: 'Lon / lat' }).click();
+	await page.getByRole('link', { name: 'Lon, lat (WGS 84)' }).click();
 	await expect(page).toHaveURL(/sort=lon&dir=asc/);
 	await expect(rows.first().locator('td').first()).toHaveText('VV-P09');
-	await page.getByRole('link', { name: /Lon \/ lat/ }).click();
+	await page.getByRole('link', { name: /Lon, lat \(WGS 84\)/ }).click();
 	await expect(page).toHaveURL(/dir=desc/);
 	await expect(rows.first().locator('td').first()).toHaveText('VV-P06');
 
@@ -75,8 +75,8 @@ test('the analyst imports, sorts, filters, pages, edits and exports sensors', as
 	const form = page.locator('#sensor-form');
 	await form.getByLabel('Id').fill('VV-X1');
 	await form.getByLabel('Serial number').fill('S-1');
-	await form.getByLabel('Longitude (°E)').fill('200');
-	await form.getByLabel('Latitude (°N)').fill('52.9');
+	await form.getByLabel('Longitude (° east, negative west)').fill('200');
+	await form.getByLabel('Latitude (° north, negative south)').fill('-32.1');
 	await page.getByRole('button', { name: 'Add sensor' }).click();
 	await expect(form.getByText('Lon 200 is outside −180…180.')).toBeVisible();
 
