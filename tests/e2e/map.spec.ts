@@ -238,3 +238,28 @@ test('an analyst draws a named exclusion on the map; a technician has no Draw co
 	expect(docAfter.exclusions).toHaveLength(ringsBefore + 1);
 	await page.screenshot({ path: '/tmp/map-app-drawn.png' });
 });
+
+test('the demo network opens on a living map: importance, the four sub-catchments, the water storage and the 14 sensors', async ({ page }) => {
+	const t = demoUser('technician');
+	const tech = await contextFor('technician');
+	const { networks } = (await (await tech.get('/api/v1/networks')).json()) as { networks: { id: number; slug: string }[] };
+	const networkId = networks.find((n) => n.slug === 'vennarrow-vale')!.id;
+	const doc = (await (await tech.get(`/api/v1/networks/${networkId}/map`)).json()).map;
+	await tech.dispose();
+	// data/demo/README.md: 14 sensors, four sub-catchments, one exclusion; the seed puts a recipe in use.
+	expect(doc.crs.epsg).toBe(32754);
+	expect(doc.backdrop.kind).toBe('importance');
+	expect(doc.sensors).toHaveLength(14);
+	expect(doc.zones).toHaveLength(4);
+	for (const z of doc.zones) expect(z.importanceShare).toBeGreaterThan(0);
+
+	await page.setViewportSize({ width: 1400, height: 900 });
+	await signInPage(page, t.email, t.password);
+	await gotoHydrated(page, `/networks/${networkId}/map`);
+	await expect(page.getByTestId('network-map')).toHaveClass(/leaflet-container/);
+	await expect(page.locator('.cf-sensor')).toHaveCount(14);
+	await expect(page.locator('path.cf-zone')).toHaveCount(4);
+	await expect(page.locator('path.cf-exclusion')).toHaveCount(1);
+	await expect.poll(() => page.locator('img.cf-backdrop').evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth > 0)).toBe(true);
+	await page.screenshot({ path: '/tmp/map-demo-network.png' });
+});
