@@ -7,6 +7,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { main } from '../../../src/cli/main';
+import { insideRing } from '../../helpers/even-odd';
 
 const root = join(import.meta.dirname, '..', '..', '..');
 const dir = mkdtempSync(join(tmpdir(), 'cairnfield-readme-'));
@@ -20,19 +21,10 @@ function readmeExample(): string[] {
 	return m[1].replace(/\\\n/g, ' ').trim().split(/\s+/);
 }
 
-/** Even-odd rule on the exterior rings (the crossing-number test; Shimrat 1962, CACM Algorithm 112) [from memory]. */
+/** Inside the exterior ring of one of the file's polygons. */
 function inside(lon: number, lat: number, file: string): boolean {
 	const fc = JSON.parse(readFileSync(join(root, file), 'utf8'));
-	return fc.features.some((f: { geometry: { coordinates: [number, number][][] } }) => {
-		const ring = f.geometry.coordinates[0];
-		let c = false;
-		for (let i = 0, j = ring.length - 1; i < ring.length; j = i++) {
-			const [xi, yi] = ring[i];
-			const [xj, yj] = ring[j];
-			if (yi > lat !== yj > lat && lon < ((xj - xi) * (lat - yi)) / (yj - yi) + xi) c = !c;
-		}
-		return c;
-	});
+	return fc.features.some((f: { geometry: { coordinates: [number, number][][] } }) => insideRing(lon, lat, f.geometry.coordinates[0]));
 }
 
 describe('the README example of cairnfield place', () => {

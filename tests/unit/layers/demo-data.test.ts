@@ -7,6 +7,7 @@ import { alignToGrid, combineLayers } from '../../../src/lib/importance';
 import { importSensorsCsv } from '../../../src/lib/server/inventory';
 import { DEMO_SENSOR_TYPES, demoFiles, SAND_MOISTURE_BOUNDS } from '../../../src/lib/server/layers/demo-data';
 import { loadLayer, toGridBand } from '../../../src/lib/server/layers';
+import { insideRing } from '../../helpers/even-odd';
 
 const DIR = path.resolve('data/demo');
 const read = (name: string) => readFile(path.join(DIR, name));
@@ -24,17 +25,9 @@ function area(f: PolygonFeature): number {
 	return total;
 }
 
-/** Even-odd ray casting on the exterior rings: enough for a sanity check of invented positions. */
+/** Inside one of the exterior rings: enough for a sanity check of invented positions. */
 function inside(lon: number, lat: number, f: PolygonFeature): boolean {
-	return f.geometry.coordinates.some(([ring]) => {
-		let c = false;
-		for (let i = 0, j = ring.length - 1; i < ring.length; j = i++) {
-			const [xi, yi] = ring[i];
-			const [xj, yj] = ring[j];
-			if (yi > lat !== yj > lat && lon < ((xj - xi) * (lat - yi)) / (yj - yi) + xi) c = !c;
-		}
-		return c;
-	});
+	return f.geometry.coordinates.some(([ring]) => insideRing(lon, lat, ring));
 }
 
 describe('demo data (data/demo)', () => {
