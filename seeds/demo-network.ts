@@ -59,10 +59,17 @@ async function network(db: Knex, id: number): Promise<NetworkRow> {
 	return n;
 }
 
+/**
+ * The study area and exclusions from data/demo/ when the network has none. A demo network seeded
+ * before it had any content (no layer yet) may still carry the catchment's earlier outline in
+ * another place: it is replaced too, so that the rasters fall inside it.
+ */
 export async function seedDemoArea(db: Knex, a: DemoActors): Promise<void> {
 	let n = await network(db, a.networkId);
-	if (!n.study_area) {
-		n = await setArea(db, n.id, a.analystId, n.version, parseAreaUpload('studyArea', demoFile('study-area.geojson').toString('utf8'), 'study-area.geojson'));
+	const studyArea = parseAreaUpload('studyArea', demoFile('study-area.geojson').toString('utf8'), 'study-area.geojson');
+	const neverFilled = !(await db('layers').select('id').where({ network_id: n.id }).first());
+	if (!n.study_area || (neverFilled && JSON.stringify(n.study_area) !== JSON.stringify(studyArea.study_area))) {
+		n = await setArea(db, n.id, a.analystId, n.version, studyArea);
 	}
 	if (!n.exclusions) {
 		await setArea(db, n.id, a.analystId, n.version, parseAreaUpload('exclusions', demoFile('exclusions.geojson').toString('utf8'), 'exclusions.geojson'));

@@ -2,7 +2,7 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { seed, DEMO_USERS, DEMO_NETWORK } from '../../seeds/demo';
+import { seed, DEMO_USERS, DEMO_NETWORK, DEMO_ORGANISATION } from '../../seeds/demo';
 import { DEMO_LAYERS, DEMO_ZONE_SET_NAME } from '../../seeds/demo-network';
 import { FsObjectStore } from '../../src/lib/server/storage/fs-store';
 import { createTestDatabase, type TestDb } from '../helpers/db';
@@ -66,5 +66,32 @@ describe('demo seed', () => {
 		// Written through the services, each with its audit entry.
 		const actions = new Set((await t.db('audit_log').select('action')).map((a: { action: string }) => a.action));
 		for (const a of ['network.area', 'layer.create', 'recipe.version.create', 'network.recipe_version', 'network.zone_set', 'sensor.import']) expect(actions, a).toContain(a);
+	});
+});
+
+describe('demo seed over a demo network from before it had content', () => {
+	let t: TestDb;
+	let dir: string;
+	beforeAll(async () => {
+		t = await createTestDatabase();
+		dir = mkdtempSync(path.join(tmpdir(), 'cf-seed-old-'));
+	});
+	afterAll(async () => {
+		await t?.drop();
+		rmSync(dir, { recursive: true, force: true });
+	});
+
+	it('replaces the earlier outline elsewhere, so that the rasters fall inside, and fills the network', async () => {
+		const [orgId] = await t.db('organisations').insert(DEMO_ORGANISATION);
+		const elsewhere = { type: 'MultiPolygon', coordinates: [[[[10.1, 52.9], [10.3, 52.9], [10.3, 53.0], [10.1, 53.0], [10.1, 52.9]]]] };
+		await t.db('networks').insert({ ...DEMO_NETWORK, organisation_id: orgId, study_area: JSON.stringify(elsewhere), publication: 'published' });
+		await seed(t.db, new FsObjectStore(dir));
+		const net = await t.db('networks').where({ slug: DEMO_NETWORK.slug }).first();
+		const area = typeof net.study_area === 'string' ? JSON.parse(net.study_area) : net.study_area;
+		// data/demo/README.md: the catchment lies near 143.55° E, 32.15° S.
+		expect(area.coordinates[0][0][0][0]).toBeGreaterThan(143);
+		expect(area.coordinates[0][0][0][1]).toBeLessThan(-32);
+		expect(net.zone_set_id).not.toBeNull();
+		expect(Number((await t.db('sensors').where({ network_id: net.id }).count({ n: '*' }).first())!.n)).toBe(14);
 	});
 });
