@@ -49,9 +49,15 @@ export const DEMO_ZONE_SET_NAME = 'Sub-catchments';
 export interface DemoActors {
 	organisationId: number;
 	networkId: number;
-	/** Who the audit entries name: the demo analyst, who would have done these uploads. */
-	analystId: number;
+	/** Who the audit entries name: the demo analyst, who would have done these uploads; null when the demo users are not created. */
+	analystId: number | null;
 }
+
+/**
+ * The actor the services record. They type it as a user id; the columns it lands in (created_by,
+ * audit_log.actor_user_id) take null, which is what a seed without demo users has to give.
+ */
+const actor = (a: DemoActors) => a.analystId as number;
 
 async function network(db: Knex, id: number): Promise<NetworkRow> {
 	const n = await findNetwork(db, id);
@@ -69,10 +75,10 @@ export async function seedDemoArea(db: Knex, a: DemoActors): Promise<void> {
 	const studyArea = parseAreaUpload('studyArea', demoFile('study-area.geojson').toString('utf8'), 'study-area.geojson');
 	const neverFilled = !(await db('layers').select('id').where({ network_id: n.id }).first());
 	if (!n.study_area || (neverFilled && JSON.stringify(n.study_area) !== JSON.stringify(studyArea.study_area))) {
-		n = await setArea(db, n.id, a.analystId, n.version, studyArea);
+		n = await setArea(db, n.id, actor(a), n.version, studyArea);
 	}
 	if (!n.exclusions) {
-		await setArea(db, n.id, a.analystId, n.version, parseAreaUpload('exclusions', demoFile('exclusions.geojson').toString('utf8'), 'exclusions.geojson'));
+		await setArea(db, n.id, actor(a), n.version, parseAreaUpload('exclusions', demoFile('exclusions.geojson').toString('utf8'), 'exclusions.geojson'));
 	}
 }
 
@@ -85,7 +91,7 @@ export async function seedDemoLayers(db: Knex, store: ObjectStore, a: DemoActors
 			ids.push(found.id);
 			continue;
 		}
-		const view = await uploadLayer(db, store, { networkId: a.networkId, organisationId: a.organisationId, actorId: a.analystId }, { ...l }, Readable.from([demoFile(l.fileName)]), layerLimits(process.env));
+		const view = await uploadLayer(db, store, { networkId: a.networkId, organisationId: a.organisationId, actorId: actor(a) }, { ...l }, Readable.from([demoFile(l.fileName)]), layerLimits(process.env));
 		ids.push(view.id);
 	}
 	return ids;
@@ -101,10 +107,10 @@ export async function seedDemoRecipe(db: Knex, store: ObjectStore, a: DemoActors
 		.first();
 	if (!version) {
 		const definition = { layers: DEMO_RECIPE.steps.map(({ layer, ...step }) => ({ ...step, layerId: String(layerIds[layer]) })) };
-		version = await saveRecipeVersion(db, store, a.networkId, a.organisationId, a.analystId, { name: DEMO_RECIPE.name, note: DEMO_RECIPE.note, definition });
+		version = await saveRecipeVersion(db, store, a.networkId, a.organisationId, actor(a), { name: DEMO_RECIPE.name, note: DEMO_RECIPE.note, definition });
 	}
 	const inUse = await db('networks').select('recipe_version_id').where({ id: a.networkId }).first();
-	if (inUse?.recipe_version_id == null) await useRecipeVersion(db, a.networkId, a.organisationId, a.analystId, version.id);
+	if (inUse?.recipe_version_id == null) await useRecipeVersion(db, a.networkId, a.organisationId, actor(a), version.id);
 }
 
 /** Uploads the four sub-catchments with shares measured on the importance in use, and uses them when the network uses no zone set. */
@@ -113,17 +119,17 @@ export async function seedDemoZones(db: Knex, store: ObjectStore, a: DemoActors)
 	let set = await db('zone_sets').select('id').where({ network_id: n.id, name: DEMO_ZONE_SET_NAME }).first();
 	if (!set) {
 		const importance = await importanceForZones(db, store, n);
-		set = { id: await createUploadedZoneSet(db, n, a.analystId, DEMO_ZONE_SET_NAME, demoFile('zones.geojson').toString('utf8'), 'zones.geojson', importance) };
+		set = { id: await createUploadedZoneSet(db, n, actor(a), DEMO_ZONE_SET_NAME, demoFile('zones.geojson').toString('utf8'), 'zones.geojson', importance) };
 	}
 	const inUse = await db('networks').select('zone_set_id').where({ id: n.id }).first();
-	if (inUse?.zone_set_id == null) await useZoneSet(db, n, a.analystId, set.id);
+	if (inUse?.zone_set_id == null) await useZoneSet(db, n, actor(a), set.id);
 }
 
 /** Imports data/demo/sensors.csv when the network holds no sensors yet (the import is all or nothing). */
 export async function seedDemoSensors(db: Knex, a: DemoActors): Promise<void> {
 	const any = await db('sensors').select('id').where({ network_id: a.networkId }).first();
 	if (any) return;
-	const outcome = await importSensors(db, await network(db, a.networkId), a.analystId, demoFile('sensors.csv').toString('utf8'), 'csv', 'sensors.csv');
+	const outcome = await importSensors(db, await network(db, a.networkId), actor(a), demoFile('sensors.csv').toString('utf8'), 'csv', 'sensors.csv');
 	if (!outcome.ok) throw new Error(`the demo sensors.csv does not import: ${outcome.errors.map((e) => `row ${e.row} ${e.field}: ${e.message}`).join('; ')}`);
 }
 

@@ -30,9 +30,9 @@ describe('demo seed', () => {
 	};
 
 	it('is idempotent: a second run adds nothing', async () => {
-		await seed(t.db, store);
+		await seed(t.db, { store });
 		const before = await counts();
-		await seed(t.db, store);
+		await seed(t.db, { store });
 		expect(await counts()).toEqual(before);
 		expect(before.users).toBe(DEMO_USERS.length);
 	});
@@ -85,7 +85,7 @@ describe('demo seed over a demo network from before it had content', () => {
 		const [orgId] = await t.db('organisations').insert(DEMO_ORGANISATION);
 		const elsewhere = { type: 'MultiPolygon', coordinates: [[[[10.1, 52.9], [10.3, 52.9], [10.3, 53.0], [10.1, 53.0], [10.1, 52.9]]]] };
 		await t.db('networks').insert({ ...DEMO_NETWORK, organisation_id: orgId, study_area: JSON.stringify(elsewhere), publication: 'published' });
-		await seed(t.db, new FsObjectStore(dir));
+		await seed(t.db, { store: new FsObjectStore(dir) });
 		const net = await t.db('networks').where({ slug: DEMO_NETWORK.slug }).first();
 		const area = typeof net.study_area === 'string' ? JSON.parse(net.study_area) : net.study_area;
 		// data/demo/README.md: the catchment lies near 143.55° E, 32.15° S.
