@@ -28,7 +28,7 @@ import { rasterizeRings, type GridGeometry, type Ring } from '../engine/rasteriz
 import { crsLabel, type PointTransform } from './crs';
 import { chooseCellSize, type CellSizeChoice } from './cell-size';
 import { pixelToCrs, type BlockReadOptions, type DecoderPool, type GeoTiffSource, type GeoTransform, type RasterBlock } from './geotiff';
-import { planFrame, WorkingGridError, type WorkingGridOptions } from './working-grid';
+import { noValidCells, planFrame, WorkingGridError, type WorkingGridOptions } from './working-grid';
 
 export interface AggregateOptions extends Pick<WorkingGridOptions, 'crs' | 'studyArea' | 'exclusions' | 'maxCells'> {
 	/** A cell size asked for (metres); otherwise chooseCellSize's rule decides. */
@@ -199,6 +199,7 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 	const nodata = source.nodata;
 	const inv = 1 / (k * k);
 	let pixelsRead = 0;
+	let validPixels = 0;
 
 	const readOpts: BlockReadOptions = { image: image.index, pool: opts.pool ?? null };
 	for await (const block of source.blocks(readOpts)) {
@@ -242,6 +243,7 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 								const at = ((py | 0) * width + (px | 0)) * 2;
 								acc[at] += value * pa;
 								acc[at + 1] += pa;
+								validPixels++;
 							}
 							px += dX;
 							py += dY;
@@ -259,6 +261,7 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 		validArea[i] = acc[2 * i + 1];
 	}
 
+	if (validPixels === 0) throw noValidCells();
 	const allowed = allowedShare(geom, frame.studyPolygons, frame.exclusionPolygons);
 	const feasible = new Uint8Array(n);
 	const cellArea = cellSize * cellSize;

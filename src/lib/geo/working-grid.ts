@@ -135,6 +135,17 @@ function isValid(v: number, nodata: number | null): boolean {
 	return v === v && v >= 0 && v !== nodata && Number.isFinite(v);
 }
 
+function hasValidCell(raster: RasterBand): boolean {
+	const nodata = storedNodata(raster);
+	for (let i = 0; i < raster.data.length; i++) if (isValid(raster.data[i], nodata)) return true;
+	return false;
+}
+
+/** The error for a raster with nothing to place on (the same words for every way of reading it). */
+export function noValidCells(): WorkingGridError {
+	return new WorkingGridError('the raster has no valid cells: every cell is nodata, NaN or negative');
+}
+
 /** What planning a grid needs of a raster: its size, georeferencing and CRS, no samples. */
 export type RasterGeometry = Pick<RasterBand, 'width' | 'height' | 'transform' | 'epsg'>;
 
@@ -263,6 +274,7 @@ export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = 
 
 	// Sample the raster.
 	const n = width * height;
+	if (!hasValidCell(raster)) throw noValidCells();
 	const mass = new Float64Array(n);
 	const feasible = new Uint8Array(n);
 	const { data } = raster;

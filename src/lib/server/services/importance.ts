@@ -9,7 +9,7 @@
  * averaged over blocks of pixels to at most MAX_SURFACE_CELLS first (layerGridBand), so no layer
  * is ever held at full size. Layers in another CRS are reprojected (nearest
  * neighbour, reprojectToGrid), layers in the same CRS are aligned (alignToGrid). Cells outside a
- * layer's footprint are nodata, and nodata in any layer is nodata in the surface (combineLayers).
+ * layer's extent are nodata, and nodata in any layer is nodata in the surface (combineLayers).
  *
  * Stored surface ("surface_key" of a version): a compact binary, see encodeSurface.
  */
