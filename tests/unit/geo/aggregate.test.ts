@@ -11,6 +11,7 @@ import { place, zoneGrid } from '../../../src/lib/engine';
 import { rasterizeZones } from '../../../src/lib/engine/rasterize';
 import { projectRings } from '../../../src/lib/geo/geojson';
 import { transformer } from '../../../src/lib/geo/crs';
+import { insideRing } from '../../helpers/even-odd';
 
 const UTM33 = '+proj=utm +zone=33 +datum=WGS84 +units=m +no_defs';
 const UTM_KEYS: Array<[number, number]> = [[1024, 1], [1025, 1], [3072, 32633]];
@@ -165,15 +166,7 @@ describe('aggregateToWorkingGrid from a geographic raster into UTM', () => {
 		}
 		return { mass, centres };
 	}
-	const inside = (p: [number, number], ring: number[][]) => {
-		let odd = false;
-		for (let i = 0, j = ring.length - 1; i < ring.length; j = i++) {
-			const [xi, yi] = ring[i];
-			const [xj, yj] = ring[j];
-			if (yi > p[1] !== yj > p[1] && p[0] < ((xj - xi) * (p[1] - yi)) / (yj - yi) + xi) odd = !odd;
-		}
-		return odd;
-	};
+	const inside = (p: readonly number[], ring: readonly (readonly number[])[]) => insideRing(p[0], p[1], ring);
 
 	it('keeps the whole integral, and each of four slanted zones within 0.1 % (reference: proj4 pixel areas)', async () => {
 		// Zones of about 75 000 cells each: their edge cells are what the 0.1 % allows for.
