@@ -2,10 +2,11 @@
  * Layers as a use case: upload a GeoTIFF (streamed to the object store with a byte limit),
  * inspect it, store its preview, list, delete.
  *
- * An upload goes uploading → processing → ready within one request. Whatever refuses it (too
- * large, not a TIFF, no georeferencing, unknown CRS, all nodata, band missing, too many pixels,
- * corrupt compression) removes the stored objects and the row again: a refused upload leaves
- * nothing behind.
+ * An upload goes uploading → processing → ready. The request stores the file (storeLayerUpload)
+ * and queues a layer-processing job, which calls processLayer. Whatever refuses it (too large, not
+ * a TIFF, no georeferencing, unknown CRS, all nodata, band missing, too many pixels, corrupt
+ * compression) removes the stored objects and the row again: a refused upload leaves nothing
+ * behind.
  *
  * Limits (environment, read by layerLimits):
  *   LAYER_MAX_BYTES   largest upload in bytes; default 524288000 (500 MiB)
@@ -139,11 +140,33 @@ export interface UploadContext {
 	actorId: number;
 }
 
+/** What processing learns from a stored raster: its metadata and its preview PNG. */
+export interface LayerAnalysis {
+	metadata: import('../layers/inspect').LayerMetadata;
+	png: Uint8Array;
+}
+
 /**
- * Stream `body` into the store and turn it into a ready layer, or refuse it leaving nothing.
- * The body is never held whole in memory while it arrives; inspection then reads the stored file.
+ * The CPU part of processing a layer: decode the band, check it, describe it, render its preview.
+ * Throws LayerRejected for a raster we refuse. Pure (no I/O): the layer-processing job runs it in a
+ * worker thread.
  */
-export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadContext, meta: unknown, body: Readable | AsyncIterable<Uint8Array>, limits: LayerLimits): Promise<LayerView> {
+export async function analyseLayerBytes(bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }): Promise<LayerAnalysis> {
+	const { loadLayer } = await inspectModule();
+	const { metadata, band } = await loadLayer(bytes, { band: opts.band, name: opts.name, maxPixels: opts.maxPixels });
+	const preview = renderPreview(band);
+	return { metadata, png: preview.png };
+}
+
+/** Runs analyseLayerBytes somewhere (in this thread by default; the job passes a worker thread). */
+export type LayerAnalyser = (bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }) => Promise<LayerAnalysis>;
+
+/**
+ * Stream `body` into the store and leave the layer `processing`, for processLayer to finish.
+ * Refuses bad metadata and oversized files, leaving nothing behind. The body is never held whole
+ * in memory while it arrives.
+ */
+export async function storeLayerUpload(db: Knex, store: ObjectStore, ctx: UploadContext, meta: unknown, body: Readable | AsyncIterable<Uint8Array>, limits: LayerLimits): Promise<LayerRow> {
 	const parsed = layerMetaInput.safeParse(meta);
 	if (!parsed.success) {
 		if (body instanceof Readable) body.resume(); // drain, so the client sees our answer
@@ -163,20 +186,36 @@ export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadConte
 		created_by: ctx.actorId
 	});
 	const storageKey = newObjectKey('layers');
-	let previewKey: string | null = null;
 	try {
 		const counter = { bytes: 0 };
 		const { size } = await store.put(storageKey, Readable.from(limited(body, limits.maxBytes, counter)), { contentType: 'image/tiff' });
 		await updateLayer(db, id, { status: 'processing', storage_key: storageKey, size_bytes: size });
+		return (await findLayer(db, ctx.networkId, id))!;
+	} catch (e) {
+		await store.delete(storageKey).catch(() => undefined);
+		await deleteLayerRow(db, id);
+		throw e;
+	}
+}
 
-		const bytes = await store.getBuffer(storageKey);
-		const { loadLayer } = await inspectModule();
-		const { metadata, band } = await loadLayer(bytes, { band: m.band, name: m.fileName || m.name, maxPixels: limits.maxPixels });
-		const preview = renderPreview(band);
+/**
+ * Turns a stored `processing` layer into a ready one: inspection, statistics, preview; the audit
+ * entry is written with it. A refused raster removes the row and the stored objects (a refused
+ * upload leaves nothing behind) and throws ServiceError 422 with the reason.
+ */
+export async function processLayer(db: Knex, store: ObjectStore, ctx: UploadContext, layerId: number, limits: LayerLimits, analyse: LayerAnalyser = analyseLayerBytes): Promise<LayerView> {
+	const row = await findLayer(db, ctx.networkId, layerId);
+	if (!row) throw new ServiceError(404, 'not_found', 'No such layer.');
+	if (row.status === 'ready') return layerView(row);
+	if (!row.storage_key) throw new ServiceError(409, 'not_stored', 'The layer has no stored file.');
+	let previewKey: string | null = null;
+	try {
+		const bytes = await store.getBuffer(row.storage_key);
+		const { metadata, png } = await analyse(bytes, { band: row.band, name: row.original_name || row.name, maxPixels: limits.maxPixels });
 		previewKey = newObjectKey('previews');
-		await store.put(previewKey, preview.png, { contentType: 'image/png' });
+		await store.put(previewKey, Buffer.from(png.buffer, png.byteOffset, png.byteLength), { contentType: 'image/png' });
 		const done = await db.transaction(async (trx) => {
-			await updateLayer(trx, id, {
+			await updateLayer(trx, layerId, {
 				status: 'ready',
 				preview_key: previewKey,
 				width: metadata.width,
@@ -195,16 +234,48 @@ export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadConte
 				valid_count: metadata.stats.validCount,
 				histogram: metadata.histogram
 			});
-			const row = (await findLayer(trx, ctx.networkId, id))!;
-			await recordAudit(trx, { organisationId: ctx.organisationId, actorUserId: ctx.actorId, action: 'layer.create', objectType: 'layer', objectId: id, after: { name: row.name, kind: row.kind, epsg: row.epsg, sizeBytes: row.size_bytes } });
-			return row;
+			const r = (await findLayer(trx, ctx.networkId, layerId))!;
+			await recordAudit(trx, { organisationId: ctx.organisationId, actorUserId: ctx.actorId, action: 'layer.create', objectType: 'layer', objectId: layerId, after: { name: r.name, kind: r.kind, epsg: r.epsg, sizeBytes: r.size_bytes } });
+			return r;
 		});
 		return layerView(done);
 	} catch (e) {
-		await store.delete(storageKey).catch(() => undefined);
 		if (previewKey) await store.delete(previewKey).catch(() => undefined);
-		await deleteLayerRow(db, id);
-		if (e instanceof LayerRejected) throw new ServiceError(422, e.code, e.message, 'file');
+		const rejected = rejection(e);
+		if (rejected) {
+			await discardLayer(db, store, ctx.networkId, layerId);
+			throw rejected;
+		}
+		throw e;
+	}
+}
+
+/** LayerRejected (also as it arrives from a worker thread: a plain error named LayerRejected) as a 422. */
+function rejection(e: unknown): ServiceError | null {
+	if (e instanceof LayerRejected) return new ServiceError(422, e.code, e.message, 'file');
+	const err = e as { name?: string; code?: string; message?: string } | null;
+	if (err?.name === 'LayerRejected') return new ServiceError(422, err.code ?? 'rejected', err.message ?? 'The raster was refused.', 'file');
+	return null;
+}
+
+/** Removes a layer that never became ready, with its stored objects. */
+export async function discardLayer(db: Knex, store: ObjectStore, networkId: number, layerId: number): Promise<void> {
+	const row = await findLayer(db, networkId, layerId);
+	if (!row || row.status === 'ready') return;
+	for (const k of [row.storage_key, row.preview_key]) if (k) await store.delete(k).catch(() => undefined);
+	await deleteLayerRow(db, layerId);
+}
+
+/**
+ * Stream `body` into the store and turn it into a ready layer in this request, or refuse it
+ * leaving nothing. Scripts and tests use it; the app queues processLayer as a job instead.
+ */
+export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadContext, meta: unknown, body: Readable | AsyncIterable<Uint8Array>, limits: LayerLimits, analyse?: LayerAnalyser): Promise<LayerView> {
+	const row = await storeLayerUpload(db, store, ctx, meta, body, limits);
+	try {
+		return await processLayer(db, store, ctx, row.id, limits, analyse);
+	} catch (e) {
+		await discardLayer(db, store, ctx.networkId, row.id);
 		throw e;
 	}
 }

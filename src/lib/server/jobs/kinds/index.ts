@@ -1,0 +1,15 @@
+/**
+ * The job kinds Cairnfield runs. A worker process calls registerBuiltInJobKinds() before it starts;
+ * the app calls it too, so that cancelling a queued job runs its kind's failed hooks.
+ */
+import { registerJobKind } from '../registry';
+import { layerProcessingKind } from './layer-processing';
+import { placementKind } from './placement';
+
+export { LAYER_PROCESSING, type LayerProcessingPayload } from './layer-processing';
+export { PLACEMENT, type PlacementPayload } from './placement';
+
+export function registerBuiltInJobKinds(): void {
+	registerJobKind(layerProcessingKind);
+	registerJobKind(placementKind);
+}
