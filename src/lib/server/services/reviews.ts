@@ -215,10 +215,11 @@ const ACTION_WORDS: Record<string, string> = {
 /** The network's plans (current first) and every proposal, run and decision, newest first. */
 export async function networkHistory(db: Db, network: { id: number; organisation_id: number }, limit = 200): Promise<{ plans: PlanView[]; events: HistoryEvent[] }> {
 	const plans = (await planHistory(db, network.id)).map(planView);
-	const revisions = await db('revisions as r').join('proposals as p', 'p.id', 'r.proposal_id').select('r.id', 'r.number', 'r.strategy', 'p.id as proposal_id', 'p.title').where('r.network_id', network.id);
-	const proposals = await db('proposals').select('id', 'title').where({ network_id: network.id });
-	const revById = new Map(revisions.map((r: { id: number }) => [String(r.id), r]));
-	const propById = new Map(proposals.map((p: { id: number }) => [String(p.id), p]));
+	type Rev = { id: number; number: number; strategy: string; proposal_id: number; title: string };
+	const revisions: Rev[] = await db('revisions as r').join('proposals as p', 'p.id', 'r.proposal_id').select('r.id', 'r.number', 'r.strategy', 'p.id as proposal_id', 'p.title').where('r.network_id', network.id);
+	const proposals: { id: number; title: string }[] = await db('proposals').select('id', 'title').where({ network_id: network.id });
+	const revById = new Map(revisions.map((r) => [String(r.id), r]));
+	const propById = new Map(proposals.map((p) => [String(p.id), p]));
 	const planById = new Map(plans.map((p) => [String(p.id), p]));
 	const rows = await db('audit_log as a')
 		.leftJoin('users as u', 'u.id', 'a.actor_user_id')
@@ -230,7 +231,7 @@ export async function networkHistory(db: Db, network: { id: number; organisation
 	const events: HistoryEvent[] = [];
 	for (const a of rows) {
 		const after = typeof a.after === 'string' ? JSON.parse(a.after) : a.after;
-		let rev: { id: number; number: number; strategy: string; proposal_id: number; title: string } | undefined;
+		let rev: Rev | undefined;
 		let proposal: { id: number; title: string } | undefined;
 		if (a.object_type === 'revision') rev = revById.get(a.object_id);
 		else if (a.object_type === 'proposal') proposal = propById.get(a.object_id);

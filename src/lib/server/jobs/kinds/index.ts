@@ -5,6 +5,7 @@
 import { registerJobKind } from '../registry';
 import { layerProcessingKind } from './layer-processing';
 import { placementKind } from './placement';
+import { proposalRunKind } from './proposal-run';
 
 export { LAYER_PROCESSING, type LayerProcessingPayload } from './layer-processing';
 export { PLACEMENT, type PlacementPayload } from './placement';
@@ -12,4 +13,5 @@ export { PLACEMENT, type PlacementPayload } from './placement';
 export function registerBuiltInJobKinds(): void {
 	registerJobKind(layerProcessingKind);
 	registerJobKind(placementKind);
+	registerJobKind(proposalRunKind);
 }
