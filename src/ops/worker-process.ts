@@ -1,0 +1,31 @@
+/**
+ * Starts `npm run worker`'s entry (src/ops/worker.ts) as a child process, for `npm start`, `npm test`
+ * and the fault tests, and stops it with SIGTERM (the worker hands back its jobs), then SIGKILL.
+ */
+import { spawn, type ChildProcess, type StdioOptions } from 'node:child_process';
+import path from 'node:path';
+
+const root = path.resolve(import.meta.dirname, '../..');
+
+export interface WorkerProcess {
+	child: ChildProcess;
+	stop(timeoutMs?: number): Promise<void>;
+}
+
+export function startWorkerProcess(env: NodeJS.ProcessEnv, stdio: StdioOptions = 'inherit'): WorkerProcess {
+	const child = spawn(process.execPath, ['--import', 'tsx', path.join(root, 'src', 'ops', 'worker.ts')], { cwd: root, stdio, env: { ...process.env, ...env } });
+	return {
+		child,
+		stop(timeoutMs = 25_000) {
+			return new Promise<void>((resolve) => {
+				if (child.exitCode !== null || child.signalCode !== null) return resolve();
+				const t = setTimeout(() => child.kill('SIGKILL'), timeoutMs);
+				child.once('exit', () => {
+					clearTimeout(t);
+					resolve();
+				});
+				child.kill('SIGTERM');
+			});
+		}
+	};
+}
