@@ -12,8 +12,9 @@ export interface WorkerProcess {
 	stop(timeoutMs?: number): Promise<void>;
 }
 
-export function startWorkerProcess(env: NodeJS.ProcessEnv, stdio: StdioOptions = 'inherit'): WorkerProcess {
-	const child = spawn(process.execPath, ['--import', 'tsx', path.join(root, 'src', 'ops', 'worker.ts')], { cwd: root, stdio, env: { ...process.env, ...env } });
+/** `entry` defaults to src/ops/worker.ts (the fault tests pass an entry with their own job kinds). */
+export function startWorkerProcess(env: NodeJS.ProcessEnv, stdio: StdioOptions = 'inherit', entry = path.join(root, 'src', 'ops', 'worker.ts')): WorkerProcess {
+	const child = spawn(process.execPath, ['--import', 'tsx', entry], { cwd: root, stdio, env: { ...process.env, ...env } });
 	return {
 		child,
 		stop(timeoutMs = 25_000) {
