@@ -86,6 +86,10 @@ const checks: Check[] = [
 	{ name: 'API versions of missing recipe', method: 'GET', path: '/api/v1/networks/1/recipes/999999/versions', expect: api(401, 404, 404, 404, 403) },
 	{ name: 'API add version (no definition)', method: 'POST', path: '/api/v1/networks/1/recipes/999999/versions', json: {}, expect: api(401, 403, 400, 403, 403) },
 	// (layers and importance rows end)
+	{ name: 'API get missing job', method: 'GET', path: '/api/v1/networks/1/jobs/999999', expect: api(401, 404, 404, 404, 403) },
+	{ name: 'API cancel missing job', method: 'DELETE', path: '/api/v1/networks/1/jobs/999999', expect: api(401, 404, 404, 404, 403) },
+	{ name: 'API get job of a missing network', method: 'GET', path: '/api/v1/networks/999999/jobs/1', expect: api(401, 404, 404, 404, 404) },
+	// (jobs rows end)
 
 	// Sensors, study area and zones (sensor.view / sensor.edit; layer.view / area.edit / zone.edit)
 	{ name: 'sensors page', method: 'GET', path: '/networks/1/sensors', expect: signedIn(200) },

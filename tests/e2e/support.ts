@@ -70,3 +70,21 @@ export async function freshNetwork(admin: APIRequestContext, label: string): Pro
 	}
 	return network.id;
 }
+
+/**
+ * Uploads a GeoTIFF through the API (202 with the processing job), follows the job until it ends
+ * and returns the ready layer. The query holds name, kind and the other metadata.
+ */
+export async function uploadLayerViaApi(ctx: APIRequestContext, networkId: number, query: Record<string, string>, data: Buffer): Promise<{ id: number; name: string; status: string }> {
+	const up = await ctx.post(`/api/v1/networks/${networkId}/layers?${new URLSearchParams(query)}`, { data, headers: { 'content-type': 'application/octet-stream', accept: 'application/json' } });
+	expect(up.status(), await up.text()).toBe(202);
+	const { layer, job } = (await up.json()) as { layer: { id: number }; job: { id: number } };
+	await expect
+		.poll(async () => ((await (await ctx.get(`/api/v1/networks/${networkId}/jobs/${job.id}`, { headers: { accept: 'application/json' } })).json()) as { job: { state: string } }).job.state, { timeout: 60_000, intervals: [200, 500] })
+		.toBe('finished');
+	const res = await ctx.get(`/api/v1/networks/${networkId}/layers/${layer.id}`, { headers: { accept: 'application/json' } });
+	expect(res.status()).toBe(200);
+	const ready = (await res.json()).layer;
+	expect(ready.status).toBe('ready');
+	return ready;
+}

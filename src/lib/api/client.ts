@@ -129,6 +129,42 @@ export interface MapContour {
 
 // (map types end)
 
+// ---- Background jobs (types) ------------------------------------------------------------
+export type JobState = 'queued' | 'running' | 'finished' | 'failed' | 'cancelled';
+
+/** A job of the durable queue, as GET /api/v1/networks/:id/jobs/:jobId returns it. */
+export interface Job {
+	id: number;
+	kind: string;
+	networkId: number | null;
+	state: JobState;
+	/** What the job last reported: e.g. {iteration, maxIterations, cost, coverage} for a placement. */
+	progress: Record<string, unknown> | null;
+	/** Set once the job finished. */
+	result: unknown;
+	/** Why it failed or was cancelled (or the last error before a retry). */
+	error: string | null;
+	attempts: number;
+	maxAttempts: number;
+	cancelRequested: boolean;
+	createdAt: string;
+	startedAt: string | null;
+	finishedAt: string | null;
+}
+
+/** A fraction 0..1 of the work done, when the progress says so. */
+export function jobFraction(job: Pick<Job, 'state' | 'progress'>): number | null {
+	if (job.state === 'finished') return 1;
+	const p = job.progress;
+	if (!p) return null;
+	if (typeof p.iteration === 'number' && typeof p.maxIterations === 'number' && p.maxIterations > 0) return Math.min(1, p.iteration / p.maxIterations);
+	if (typeof p.fraction === 'number') return Math.max(0, Math.min(1, p.fraction));
+	return null;
+}
+
+export const JOB_ENDED: readonly JobState[] = ['finished', 'failed', 'cancelled'];
+// (jobs types end)
+
 // ---- Layers and importance recipes (types) ----------------------------------------------
 export type LayerKind = 'soil_moisture' | 'vegetation_index' | 'elevation' | 'other';
 export type LayerPlatform = 'satellite' | 'aircraft' | 'drone' | 'model' | 'other';
@@ -343,7 +379,24 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		}
 		return data as T;
 	}
+	const getJob = (networkId: number, jobId: number) => call<{ job: Job }>('GET', `/networks/${networkId}/jobs/${jobId}`).then((r) => r.job);
+	/** Polls a job until it finished, failed or was cancelled; `onProgress` sees every poll. */
+	async function waitForJob(networkId: number, jobId: number, opts: { intervalMs?: number; timeoutMs?: number; onProgress?: (job: Job) => void } = {}): Promise<Job> {
+		const end = Date.now() + (opts.timeoutMs ?? 10 * 60_000);
+		for (;;) {
+			const job = await getJob(networkId, jobId);
+			opts.onProgress?.(job);
+			if (JOB_ENDED.includes(job.state)) return job;
+			if (Date.now() > end) throw new ApiClientError(504, 'timeout', `Job ${jobId} did not end in time.`);
+			await new Promise((r) => setTimeout(r, opts.intervalMs ?? 500));
+		}
+	}
 	return {
+		// Jobs
+		getJob,
+		waitForJob,
+		cancelJob: (networkId: number, jobId: number) => call<{ job: Job }>('DELETE', `/networks/${networkId}/jobs/${jobId}`).then((r) => r.job),
+		// (jobs calls end)
 		listNetworks: () => call<{ networks: Network[] }>('GET', '/networks').then((r) => r.networks),
 		getNetwork: (id: number) => call<{ network: Network }>('GET', `/networks/${id}`).then((r) => r.network),
 		createNetwork: (input: { name: string; description?: string; crsEpsg?: number | null; publicText?: string }) =>
@@ -356,7 +409,11 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		listLayers: (networkId: number) => call<{ layers: Layer[] }>('GET', `/networks/${networkId}/layers`).then((r) => r.layers),
 		getLayer: (networkId: number, layerId: number) => call<{ layer: Layer }>('GET', `/networks/${networkId}/layers/${layerId}`).then((r) => r.layer),
 		deleteLayer: (networkId: number, layerId: number) => call<null>('DELETE', `/networks/${networkId}/layers/${layerId}`),
-		/** Whole-body upload through fetch (scripts, tests); the page uses XMLHttpRequest for progress. */
+		/**
+		 * Whole-body upload through fetch (scripts, tests), then follows the processing job: resolves
+		 * with the ready layer, or throws 422 with the reason the raster was refused. The page uses
+		 * XMLHttpRequest for upload progress and follows the job itself.
+		 */
 		uploadLayer: async (networkId: number, meta: LayerUploadMeta, file: Blob | Uint8Array) => {
 			const res = await fetchFn(`${base}/networks/${networkId}/layers?${layerUploadQuery(meta)}`, { method: 'POST', headers: { accept: 'application/json', 'content-type': 'application/octet-stream' }, body: file as BodyInit });
 			const data = await res.json().catch(() => null);
@@ -364,7 +421,10 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 				const e = (data as ApiErrorBody | null)?.error;
 				throw new ApiClientError(res.status, e?.code ?? 'http_error', e?.message ?? res.statusText, e?.fields);
 			}
-			return (data as { layer: Layer }).layer;
+			const { layer, job } = data as { layer: Layer; job: Job };
+			const done = await waitForJob(networkId, job.id);
+			if (done.state !== 'finished') throw new ApiClientError(422, done.state === 'cancelled' ? 'cancelled' : 'rejected', done.error ?? 'The layer could not be processed.', { file: done.error ?? '' });
+			return call<{ layer: Layer }>('GET', `/networks/${networkId}/layers/${layer.id}`).then((r) => r.layer);
 		},
 		listRecipes: (networkId: number) => call<{ recipes: Recipe[]; currentVersionId: number | null }>('GET', `/networks/${networkId}/recipes`),
 		getRecipe: (networkId: number, recipeId: number) => call<{ recipe: Recipe }>('GET', `/networks/${networkId}/recipes/${recipeId}`).then((r) => r.recipe),

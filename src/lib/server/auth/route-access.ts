@@ -41,6 +41,10 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/networks/[id=id]/recipes/[recipeId=id]/versions': 'signed-in',
 	// (layers routes end)
 
+	// Background jobs
+	'/api/v1/networks/[id=id]/jobs/[jobId=id]': 'signed-in',
+	// (jobs routes end)
+
 	// Sensors, study area and zones
 	'/(app)/networks/[id=id]/sensors': 'signed-in',
 	'/(app)/networks/[id=id]/zones': 'signed-in',

@@ -12,8 +12,10 @@ import type { Knex } from 'knex';
 import type { Db } from '../db/knex';
 import { jobKind, runFailedHooks, runFinishedHooks, type JobOutcome } from './registry';
 
-export const JOB_STATES = ['queued', 'running', 'finished', 'failed', 'cancelled'] as const;
-export type JobState = (typeof JOB_STATES)[number];
+import type { Job, JobState } from '../../api/client';
+
+export type { JobState };
+export const JOB_STATES: readonly JobState[] = ['queued', 'running', 'finished', 'failed', 'cancelled'];
 
 export interface JobRow {
 	id: number;
@@ -39,22 +41,8 @@ export interface JobRow {
 	updated_at: Date;
 }
 
-/** A job as the API returns it (`{job: {...}}`). */
-export interface JobView {
-	id: number;
-	kind: string;
-	networkId: number | null;
-	state: JobState;
-	progress: Record<string, unknown> | null;
-	result: unknown;
-	error: string | null;
-	attempts: number;
-	maxAttempts: number;
-	cancelRequested: boolean;
-	createdAt: Date;
-	startedAt: Date | null;
-	finishedAt: Date | null;
-}
+/** A job as the API returns it (`{job: {...}}`): the typed client's Job, with Dates until json() writes them. */
+export type JobView = Omit<Job, 'createdAt' | 'startedAt' | 'finishedAt'> & { createdAt: Date; startedAt: Date | null; finishedAt: Date | null };
 
 const COLUMNS = ['id', 'kind', 'network_id', 'payload', 'state', 'priority', 'attempts', 'max_attempts', 'run_after', 'lease_owner', 'lease_until', 'cancel_requested', 'progress', 'result', 'error', 'idempotency_key', 'created_by', 'created_at', 'started_at', 'finished_at', 'updated_at'];
 

@@ -25,6 +25,10 @@ import { deleteLayerRow, findLayer, insertLayer, listLayers, updateLayer, type L
 import { versionsCitingLayer } from '../repositories/recipes';
 import { ServiceError } from './errors';
 import type { Layer } from '../../api/client';
+import { enqueueJob, jobView, type JobView } from '../jobs/queue';
+
+/** The job kind that processes a stored upload (see ../jobs/kinds/layer-processing.ts). */
+const LAYER_PROCESSING = 'layer-processing';
 
 /** inspect.ts's default pixel limit (25 million), repeated so that this module loads without geotiff. */
 const DEFAULT_MAX_PIXELS = 25_000_000;
@@ -264,6 +268,22 @@ export async function discardLayer(db: Knex, store: ObjectStore, networkId: numb
 	if (!row || row.status === 'ready') return;
 	for (const k of [row.storage_key, row.preview_key]) if (k) await store.delete(k).catch(() => undefined);
 	await deleteLayerRow(db, layerId);
+}
+
+/**
+ * The app's upload: store the file, queue its processing as a job and answer at once with the
+ * `processing` layer and the job to follow. A refusal found while storing (bad metadata, too large)
+ * leaves nothing; one found by the job removes the layer again and fails the job with the reason.
+ */
+export async function acceptLayerUpload(db: Knex, store: ObjectStore, ctx: UploadContext, meta: unknown, body: Readable | AsyncIterable<Uint8Array>, limits: LayerLimits): Promise<{ layer: LayerView; job: JobView }> {
+	const row = await storeLayerUpload(db, store, ctx, meta, body, limits);
+	try {
+		const job = await enqueueJob(db, { kind: LAYER_PROCESSING, payload: { ...ctx, layerId: row.id }, networkId: ctx.networkId, createdBy: ctx.actorId, idempotencyKey: `layer-processing:${row.id}` });
+		return { layer: layerView(row), job: jobView(job) };
+	} catch (e) {
+		await discardLayer(db, store, ctx.networkId, row.id);
+		throw e;
+	}
 }
 
 /**

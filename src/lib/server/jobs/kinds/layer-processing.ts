@@ -16,6 +16,7 @@ export interface LayerProcessingPayload {
 	layerId: number;
 }
 
+/** Also named in services/layers.ts, which queues it. */
 export const LAYER_PROCESSING = 'layer-processing';
 
 type AnalyseReply = ({ ok: true } & LayerAnalysis) | { ok: false; code: string; message: string };

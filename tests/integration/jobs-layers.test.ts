@@ -1,0 +1,72 @@
+/**
+ * Layer processing as a job: the upload request stores the file and queues the job; the job
+ * (in a pool thread) makes the layer ready, or removes a refused one and fails with the reason.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { encodeTiff } from '../../src/lib/geo/tiff-writer';
+import { closeThreadPools, getJob, runQueuedJobs } from '../../src/lib/server/jobs';
+import { registerBuiltInJobKinds } from '../../src/lib/server/jobs/kinds';
+import { acceptLayerUpload, layerPreview } from '../../src/lib/server/services/layers';
+import { createNetwork } from '../../src/lib/server/services/networks';
+import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
+import { demoFile, fsTestStore, streamOf, type TestStore } from './layers-support';
+
+const limits = { maxBytes: 10 * 1024 * 1024, maxPixels: 25_000_000 };
+
+describe('layer processing job', () => {
+	let t: TestDb;
+	let s: TestStore;
+	let ctx: { networkId: number; organisationId: number; actorId: number };
+	beforeAll(async () => {
+		registerBuiltInJobKinds();
+		t = await createTestDatabase();
+		s = await fsTestStore();
+		const analyst = await makeMember(t.db, 'analyst');
+		const networkId = await createNetwork(t.db, analyst.organisationId, analyst.userId, { name: 'Jobs layers', description: '', crsEpsg: 32632, publicText: '' });
+		ctx = { networkId, organisationId: analyst.organisationId, actorId: analyst.userId };
+	});
+	afterAll(async () => {
+		await closeThreadPools();
+		await s?.close();
+		await t?.drop();
+	});
+
+	it('acceptLayerUpload answers with a processing layer and a queued job; the job makes it ready', async () => {
+		const bytes = await demoFile('soil-moisture.tif');
+		const { layer, job } = await acceptLayerUpload(t.db, s.store, ctx, { name: 'Soil', kind: 'soil_moisture', fileName: 'soil-moisture.tif' }, streamOf(bytes), limits);
+		expect(layer.status).toBe('processing');
+		expect(layer.width).toBeNull(); // nothing decoded in the request
+		expect(job.state).toBe('queued');
+		expect(job.kind).toBe('layer-processing');
+		await runQueuedJobs(t.db, s.store, { timeoutMs: 60_000 });
+		const done = (await getJob(t.db, job.id))!;
+		expect(done.state).toBe('finished');
+		const row = await t.db('layers').where({ id: layer.id }).first();
+		expect(row.status).toBe('ready');
+		// data/demo/README.md: 40 × 30 cells of 1 km, EPSG:32632, nodata −9999.
+		expect([row.width, row.height, row.epsg, row.nodata]).toEqual([40, 30, 32632, -9999]);
+		const png = await layerPreview(t.db, s.store, ctx.networkId, layer.id);
+		expect([...png.subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]); // PNG signature (PNG spec §5.2)
+		expect(await t.db('audit_log').where({ action: 'layer.create', object_id: String(layer.id) }).first()).toBeTruthy();
+	});
+
+	it('a raster the job refuses leaves no row and no object, and the job fails with the reason', async () => {
+		const keysBefore = (await s.keys()).length;
+		const rowsBefore = (await t.db('layers').count({ n: '*' }))[0].n;
+		const plain = encodeTiff({ width: 4, height: 3, bands: [Array.from({ length: 12 }, (_, i) => i)], sampleFormat: 3, bitsPerSample: 32 });
+		const { job } = await acceptLayerUpload(t.db, s.store, ctx, { name: 'Scan', kind: 'other', fileName: 'scan.tif' }, streamOf(new Uint8Array(plain)), limits);
+		await runQueuedJobs(t.db, s.store, { timeoutMs: 60_000 });
+		const done = (await getJob(t.db, job.id))!;
+		expect(done.state).toBe('failed');
+		expect(done.attempts).toBe(1); // a refusal is not retried
+		expect(done.error).toMatch(/no georeferencing/);
+		expect((await t.db('layers').count({ n: '*' }))[0].n).toBe(rowsBefore);
+		expect((await s.keys()).length).toBe(keysBefore);
+	});
+
+	it('bad metadata is refused in the request: no row, no object, no job', async () => {
+		const jobsBefore = (await t.db('jobs').count({ n: '*' }))[0].n;
+		await expect(acceptLayerUpload(t.db, s.store, ctx, { name: '', kind: 'other' }, streamOf(new Uint8Array(10)), limits)).rejects.toMatchObject({ status: 400, field: 'name' });
+		expect((await t.db('jobs').count({ n: '*' }))[0].n).toBe(jobsBefore);
+	});
+});
