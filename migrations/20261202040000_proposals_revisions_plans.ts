@@ -41,7 +41,7 @@ export async function up(knex: Knex): Promise<void> {
 		t.json('parameters').notNullable();
 		t.json('outputs').notNullable();
 		t.json('metrics').notNullable();
-		t.char('content_hash', 64).notNullable();
+		t.specificType('content_hash', 'CHAR(64)').notNullable();
 		// Workflow.
 		t.enu('state', ['draft', 'submitted', 'approved', 'rejected', 'superseded']).notNullable().defaultTo('draft');
 		t.integer('submitted_by').unsigned().nullable().references('users.id').onDelete('SET NULL');

@@ -8,6 +8,9 @@ import bcrypt from 'bcryptjs';
 import { existsSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { seedDemoInventory } from './demo-inventory';
+import { seedDemoProposals } from './demo-proposals';
+import { createObjectStore } from '../src/lib/server/storage/create-object-store';
+import type { ObjectStore } from '../src/lib/server/storage/object-store';
 
 export const DEMO_ORGANISATION = { slug: 'fellside-hydrology', name: 'Fellside Hydrology Co-operative' };
 
@@ -34,7 +37,11 @@ function demoStudyArea(): unknown | null {
 	return g ?? null;
 }
 
-export async function seed(knex: Knex): Promise<void> {
+/**
+ * `store` is where the demo rasters go: the app's object store (STORAGE_* of the environment unless
+ * given), so that the app finds them.
+ */
+export async function seed(knex: Knex, store: ObjectStore = createObjectStore(process.env)): Promise<void> {
 	await knex.transaction(async (trx) => {
 		let org = await trx('organisations').select('id').where({ slug: DEMO_ORGANISATION.slug }).first();
 		if (!org) {
@@ -67,4 +74,14 @@ export async function seed(knex: Knex): Promise<void> {
 		}
 		await seedDemoInventory(trx, (await trx('networks').select('id').where({ organisation_id: org.id, slug: DEMO_NETWORK.slug }).first()).id);
 	});
+	await seedDemoProposalStage(knex, store);
+}
+
+/** The proposals stage (./demo-proposals), after everything the network holds. */
+async function seedDemoProposalStage(knex: Knex, store: ObjectStore): Promise<void> {
+	const org = await knex('organisations').select('id').where({ slug: DEMO_ORGANISATION.slug }).first();
+	const net = await knex('networks').select('id').where({ organisation_id: org.id, slug: DEMO_NETWORK.slug }).first();
+	const user = (role: string) => knex('users').select('id', 'name').where({ email: DEMO_USERS.find((u) => u.role === role)!.email }).first();
+	const origin = (process.env.ORIGIN ?? `http://127.0.0.1:${process.env.PORT ?? 3000}`).replace(/\/$/, '');
+	await seedDemoProposals(knex, store, { networkId: net.id, analyst: await user('analyst'), reviewer: await user('reviewer') }, origin);
 }

@@ -14,11 +14,12 @@ export async function migrateLatest(url: string): Promise<string[]> {
 	}
 }
 
-export async function seedDemo(url: string): Promise<void> {
+/** `storageEnv` names the app's object store (STORAGE_BACKEND, STORAGE_DIR, S3_*): the demo rasters go there. */
+export async function seedDemo(url: string, storageEnv: Record<string, string | undefined>): Promise<void> {
 	const db = createDb(url, 2);
 	try {
-		const { seed } = await import('../../seeds/demo');
-		await seed(db);
+		const [{ seed }, { createObjectStore }] = await Promise.all([import('../../seeds/demo'), import('../lib/server/storage/create-object-store')]);
+		await seed(db, createObjectStore(storageEnv));
 	} finally {
 		await db.destroy();
 	}

@@ -81,8 +81,9 @@ try {
 	}
 	const done = await migrateLatest(databaseUrl);
 	log(done.length ? `migrated: ${done.join(', ')}` : 'database schema is up to date');
+	const storageDir = process.env.STORAGE_DIR ?? path.join(dataDir, 'objects');
 	if (process.env.SEED_DEMO !== 'false') {
-		await seedDemo(databaseUrl);
+		await seedDemo(databaseUrl, { ...process.env, STORAGE_DIR: storageDir });
 		log('demo data in place');
 	}
 
@@ -106,7 +107,7 @@ try {
 			SMTP_HOST: process.env.SMTP_HOST ?? '127.0.0.1',
 			SMTP_PORT: String(smtpPort),
 			DEV_MAIL_DIR: process.env.SMTP_HOST ? '' : mailDir,
-			STORAGE_DIR: process.env.STORAGE_DIR ?? path.join(dataDir, 'objects'),
+			STORAGE_DIR: storageDir,
 			BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? String(600 * 1024 * 1024)
 	};
 	app = spawn(process.execPath, [path.join(root, 'build', 'index.js')], { cwd: root, stdio: 'inherit', env: appEnv });

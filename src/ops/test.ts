@@ -126,7 +126,7 @@ try {
 	}
 
 	if (only !== 'unit') {
-		await seedDemo(databaseUrl);
+		await seedDemo(databaseUrl, { ...process.env, ...env });
 		buildIfChanged();
 		const appPort = await freePort();
 		const origin = `http://127.0.0.1:${appPort}`;

@@ -14,7 +14,7 @@
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import { z } from 'zod';
-import { addedSites, STRATEGIES, type HistoryEntry, type PlacementOptions, type PlacementResult, type SensorInput, type Strategy, type WorkingGrid, type ZoneMap, type ZoneSummary } from '../../engine';
+import { addedSites, place, STRATEGIES, type HistoryEntry, type PlacementOptions, type PlacementResult, type SensorInput, type Strategy, type WorkingGrid, type ZoneMap, type ZoneSummary } from '../../engine';
 import { EngineInputError } from '../../engine/errors';
 import { rasterizeZones } from '../../engine/rasterize';
 import { CrsError, crsLabel, transformer } from '../../geo/crs';
@@ -22,7 +22,6 @@ import { projectRings } from '../../geo/geojson';
 import { planMoves, type MovePlan } from '../../geo/move-plan';
 import { buildWorkingGrid, WorkingGridError } from '../../geo/working-grid';
 import { ImportanceError } from '../../importance/grid';
-import { runPlacement } from '../engine/run-placement';
 import { findLayer } from '../repositories/layers';
 import { findVersion, networkRecipeVersionId } from '../repositories/recipes';
 import { listSensors } from '../repositories/sensors';
@@ -248,10 +247,11 @@ export interface PlacementOutcome {
 /** Runs the engine off the event loop (a worker thread) on the prepared grid and zones. */
 export type PlaceRunner = (prep: PreparedPlacement, sensors: SensorInput[], options: Omit<PlacementOptions, 'onIteration'>, onIteration?: (e: HistoryEntry) => void) => Promise<PlacementResult>;
 
-/** The engine worker of ../engine/run-placement (for scripts and tests; jobs use their thread pool). */
-export function workerRunner(signal?: AbortSignal): PlaceRunner {
-	return (prep, sensors, options, onIteration) => runPlacement(prep.grid, prep.zones, sensors, options, { signal, onIteration });
-}
+/**
+ * The engine on the calling thread, for the seed and tests only: requests never place by
+ * themselves, they queue a job (./runs), whose handler runs the engine in the worker's thread pool.
+ */
+export const directRunner: PlaceRunner = async (prep, sensors, options, onIteration) => place(prep.grid, prep.zones, sensors, { ...options, onIteration });
 
 /** Runs the engine twice: the sensors where they stand (0 iterations, cheap), then the strategy. */
 export async function executePlacement(prep: PreparedPlacement, place: PlaceRunner, onIteration?: (e: HistoryEntry) => void): Promise<PlacementOutcome> {

@@ -14,8 +14,9 @@ import { findSensorType } from '../repositories/sensor-types';
 import { findZoneSet, networkZoneSetId } from '../repositories/zones';
 import { recordAudit } from '../repositories/audit';
 import { STRATEGIES, type HistoryEntry, type Strategy } from '../../engine/types';
-import { runInput, type RunInput } from './placement';
-import { getProposal } from './proposals';
+import { directRunner, executePlacement, preparePlacement, revisionSnapshot, runInput, type RunInput } from './placement';
+import type { ObjectStore } from '../storage/object-store';
+import { createRevisionFromResult, getProposal } from './proposals';
 import { ServiceError } from './errors';
 
 export const PROPOSAL_RUN = 'proposal-run';
@@ -150,4 +151,17 @@ export async function cancelRun(db: Knex, network: NetworkRef, actorId: number, 
 	if (!job) throw new ServiceError(404, 'not_found', 'No such run.');
 	await recordAudit(db, { organisationId: network.organisation_id, actorUserId: actorId, action: 'run.cancel', objectType: 'job', objectId: runId });
 	return runView(db, job);
+}
+
+/**
+ * A run done at once on the calling thread, its revision stored: for the demo seed and tests,
+ * which need the outcome before they go on. The app queues runs instead (queueRuns).
+ */
+export async function runNow(db: Knex, store: ObjectStore, network: NetworkRef, actorId: number, proposalId: number, raw: unknown): Promise<number> {
+	const params = parseParams(raw);
+	await getProposal(db, network.id, proposalId);
+	await checkParams(db, network.id, params);
+	const prep = await preparePlacement(db, store, network.id, params);
+	const snapshot = revisionSnapshot(prep, await executePlacement(prep, directRunner));
+	return db.transaction((trx) => createRevisionFromResult(trx, { proposalId, networkId: network.id, organisationId: network.organisation_id, authorId: actorId, jobId: null }, snapshot));
 }
