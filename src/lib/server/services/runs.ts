@@ -139,6 +139,7 @@ export async function getRunView(db: Db, networkId: number, runId: number): Prom
 
 /** The runs of a proposal, newest first (limited to the latest 50). */
 export async function listRunViews(db: Db, networkId: number, proposalId: number): Promise<RunView[]> {
+	await getProposal(db, networkId, proposalId);
 	const jobs = await listJobs(db, { networkId, kinds: [PROPOSAL_RUN], limit: 200 });
 	const mine = jobs.filter((j) => (j.payload as ProposalRunPayload).proposalId === proposalId).slice(0, 50);
 	return Promise.all(mine.map((j) => runView(db, j)));

@@ -1,4 +1,4 @@
-import { fail, redirect } from '@sveltejs/kit';
+import { error, fail } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { getDb } from '$lib/server/db';
 import { networkAccess } from '$lib/server/auth/network-access';
@@ -19,7 +19,7 @@ export const load = (async (event) => {
 	const db = getDb();
 	const proposalId = Number(event.params.proposalId);
 	const proposal = await getProposalView(db, network.id, proposalId).catch(() => null);
-	if (!proposal) redirect(303, `/networks/${network.id}/proposals`);
+	if (!proposal) error(404, 'No such proposal.');
 	const [runs, recipes, zoneSets, currentZoneSet, types, sensors] = await Promise.all([
 		listRunViews(db, network.id, proposalId),
 		listRecipeViews(db, network.id),
