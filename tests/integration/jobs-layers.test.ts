@@ -8,6 +8,7 @@ import { closeThreadPools, getJob, runQueuedJobs } from '../../src/lib/server/jo
 import { registerBuiltInJobKinds } from '../../src/lib/server/jobs/kinds';
 import { acceptLayerUpload, layerPreview } from '../../src/lib/server/services/layers';
 import { createNetwork } from '../../src/lib/server/services/networks';
+import { queueRecipePreview } from '../../src/lib/server/services/recipe-previews';
 import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
 import { demoFile, fsTestStore, streamOf, type TestStore } from './layers-support';
 
@@ -62,6 +63,25 @@ describe('layer processing job', () => {
 		expect(done.error).toMatch(/no georeferencing/);
 		expect((await t.db('layers').count({ n: '*' }))[0].n).toBe(rowsBefore);
 		expect((await s.keys()).length).toBe(keysBefore);
+	});
+
+	it('a recipe preview is a job: the same definition twice is one job, and its result is the preview', async () => {
+		const [layer] = await t.db('layers').where({ network_id: ctx.networkId, status: 'ready' }).select('id');
+		const definition = { layers: [{ layerId: String(layer.id), transform: 'minmax', weight: 1 }] };
+		const a = await queueRecipePreview(t.db, ctx.networkId, ctx.actorId, definition);
+		const b = await queueRecipePreview(t.db, ctx.networkId, ctx.actorId, definition);
+		expect(b.id).toBe(a.id);
+		expect(a.state).toBe('queued');
+		await runQueuedJobs(t.db, s.store, { timeoutMs: 60_000 });
+		const done = (await getJob(t.db, a.id))!;
+		expect(done.state).toBe('finished');
+		const preview = (done.result as { preview: { png: string; grid: { width: number; height: number }; min: number; max: number } }).preview;
+		expect([...Buffer.from(preview.png, 'base64').subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]); // PNG signature (PNG spec §5.2)
+		expect([preview.grid.width, preview.grid.height]).toEqual([40, 30]); // the demo soil moisture grid (data/demo/README.md)
+		expect(preview.min).toBeCloseTo(0, 6); // minmax stretches to 0..1
+		expect(preview.max).toBeCloseTo(1, 6);
+		// A recipe naming a missing layer is refused in the request, with no job.
+		await expect(queueRecipePreview(t.db, ctx.networkId, ctx.actorId, { layers: [{ layerId: '999999', transform: 'identity', weight: 1 }] })).rejects.toMatchObject({ status: 422 });
 	});
 
 	it('bad metadata is refused in the request: no row, no object, no job', async () => {

@@ -434,7 +434,13 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		addRecipeVersion: (networkId: number, recipeId: number, input: { definition: RecipeDefinition; note?: string }) =>
 			call<{ version: RecipeVersion }>('POST', `/networks/${networkId}/recipes/${recipeId}/versions`, input).then((r) => r.version),
 		deleteRecipe: (networkId: number, recipeId: number) => call<null>('DELETE', `/networks/${networkId}/recipes/${recipeId}`),
-		previewRecipe: (networkId: number, definition: RecipeDefinition) => call<{ preview: RecipePreview }>('POST', `/networks/${networkId}/recipes/preview`, { definition }).then((r) => r.preview),
+		/** Queues the preview job (202 {job}), follows it and resolves with the preview; 422 with the reason if it failed. */
+		previewRecipe: async (networkId: number, definition: RecipeDefinition, opts: { onProgress?: (job: Job) => void } = {}) => {
+			const { job } = await call<{ job: Job }>('POST', `/networks/${networkId}/recipes/preview`, { definition });
+			const done = await waitForJob(networkId, job.id, { intervalMs: 250, onProgress: opts.onProgress });
+			if (done.state !== 'finished') throw new ApiClientError(422, done.state === 'cancelled' ? 'cancelled' : 'preview_failed', done.error ?? 'The preview could not be computed.');
+			return (done.result as { preview: RecipePreview }).preview;
+		},
 		useRecipeVersion: (networkId: number, versionId: number) => call<{ versionId: number }>('POST', `/networks/${networkId}/recipes/current`, { versionId }),
 		// ---- (layers and recipes end) ----
 		// ---- Sensors, study area and zones ----

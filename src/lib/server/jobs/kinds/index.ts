@@ -5,11 +5,14 @@
 import { registerJobKind } from '../registry';
 import { layerProcessingKind } from './layer-processing';
 import { placementKind } from './placement';
+import { recipePreviewKind } from './recipe-preview';
 
 export { LAYER_PROCESSING, type LayerProcessingPayload } from './layer-processing';
 export { PLACEMENT, type PlacementPayload } from './placement';
+export { RECIPE_PREVIEW } from '../../services/recipe-previews';
 
 export function registerBuiltInJobKinds(): void {
 	registerJobKind(layerProcessingKind);
 	registerJobKind(placementKind);
+	registerJobKind(recipePreviewKind);
 }
