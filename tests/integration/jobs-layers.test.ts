@@ -9,6 +9,9 @@ import { registerBuiltInJobKinds } from '../../src/lib/server/jobs/kinds';
 import { acceptLayerUpload, layerPreview } from '../../src/lib/server/services/layers';
 import { createNetwork } from '../../src/lib/server/services/networks';
 import { queueRecipePreview } from '../../src/lib/server/services/recipe-previews';
+import { saveRecipeVersion, useRecipeVersion } from '../../src/lib/server/services/importance';
+import { queueComputedZones, queueZoneShares } from '../../src/lib/server/services/zone-jobs';
+import { findNetwork } from '../../src/lib/server/repositories/networks';
 import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
 import { demoFile, fsTestStore, streamOf, type TestStore } from './layers-support';
 
@@ -82,6 +85,31 @@ describe('layer processing job', () => {
 		expect(preview.max).toBeCloseTo(1, 6);
 		// A recipe naming a missing layer is refused in the request, with no job.
 		await expect(queueRecipePreview(t.db, ctx.networkId, ctx.actorId, { layers: [{ layerId: '999999', transform: 'identity', weight: 1 }] })).rejects.toMatchObject({ status: 422 });
+	});
+
+	it('computed zones and zone shares are jobs: k zones whose shares sum to 1, measured again on request', async () => {
+		const network = (await findNetwork(t.db, ctx.networkId))!;
+		await expect(queueComputedZones(t.db, network, ctx.actorId, '', 3)).rejects.toMatchObject({ status: 422, code: 'no_importance' });
+		const [layer] = await t.db('layers').where({ network_id: ctx.networkId, status: 'ready' }).select('id');
+		const v = await saveRecipeVersion(t.db, s.store, ctx.networkId, ctx.organisationId, ctx.actorId, { name: 'Wet', definition: { layers: [{ layerId: String(layer.id), transform: 'minmax', weight: 1 }] } });
+		await useRecipeVersion(t.db, ctx.networkId, ctx.organisationId, ctx.actorId, v.id);
+		const job = await queueComputedZones(t.db, network, ctx.actorId, 'Three', 3);
+		expect(await t.db('zone_sets').where({ network_id: ctx.networkId }).count({ n: '*' }).first()).toMatchObject({ n: 0 }); // nothing computed in the request
+		await runQueuedJobs(t.db, s.store, { timeoutMs: 60_000 });
+		const done = (await getJob(t.db, job.id))!;
+		expect(done.state).toBe('finished');
+		const zoneSetId = (done.result as { zoneSetId: number }).zoneSetId;
+		const zones = await t.db('zones').where({ zone_set_id: zoneSetId }).select('importance_share');
+		expect(zones.length).toBe(3);
+		// Shares are fractions of the importance mass over a partition: they sum to 1 (definition of a share).
+		expect(zones.reduce((a: number, z: { importance_share: number }) => a + Number(z.importance_share), 0)).toBeCloseTo(1, 6);
+		await t.db('zones').where({ zone_set_id: zoneSetId }).update({ importance_share: null });
+		const measure = await queueZoneShares(t.db, network, ctx.actorId, zoneSetId);
+		await runQueuedJobs(t.db, s.store, { timeoutMs: 60_000 });
+		expect((await getJob(t.db, measure.id))!.state).toBe('finished');
+		const again = await t.db('zones').where({ zone_set_id: zoneSetId }).select('importance_share');
+		expect(again.reduce((a: number, z: { importance_share: number }) => a + Number(z.importance_share), 0)).toBeCloseTo(1, 6);
+		await expect(queueZoneShares(t.db, network, ctx.actorId, 999999)).rejects.toMatchObject({ status: 404 });
 	});
 
 	it('bad metadata is refused in the request: no row, no object, no job', async () => {

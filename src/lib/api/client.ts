@@ -462,7 +462,14 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		setArea: (networkId: number, input: { version: number; studyArea?: unknown; exclusions?: unknown[] }) => call<{ area: NetworkArea }>('POST', `/networks/${networkId}/area`, input).then((r) => r.area),
 		listZoneSets: (networkId: number, opts: { geometry?: boolean } = {}) => call<{ zoneSets: ZoneSet[] }>('GET', `/networks/${networkId}/zone-sets${opts.geometry ? '?geometry=1' : ''}`).then((r) => r.zoneSets),
 		getZoneSet: (networkId: number, zoneSetId: number) => call<{ zoneSet: ZoneSet }>('GET', `/networks/${networkId}/zone-sets/${zoneSetId}`).then((r) => r.zoneSet),
-		createZoneSet: (networkId: number, input: ZoneSetInput) => call<{ zoneSet: ZoneSet }>('POST', `/networks/${networkId}/zone-sets`, input).then((r) => r.zoneSet),
+		/** Computed zones come from a job (202 {job}): followed here until the zone set exists. */
+		createZoneSet: async (networkId: number, input: ZoneSetInput) => {
+			const r = await call<{ zoneSet?: ZoneSet; job?: Job }>('POST', `/networks/${networkId}/zone-sets`, input);
+			if (r.zoneSet) return r.zoneSet;
+			const done = await waitForJob(networkId, r.job!.id);
+			if (done.state !== 'finished') throw new ApiClientError(422, 'zones_failed', done.error ?? 'The zones could not be computed.', { k: done.error ?? '' });
+			return call<{ zoneSet: ZoneSet }>('GET', `/networks/${networkId}/zone-sets/${(done.result as { zoneSetId: number }).zoneSetId}`).then((x) => x.zoneSet);
+		},
 		useZoneSet: (networkId: number, zoneSetId: number, inUse = true) => call<{ zoneSet: ZoneSet }>('POST', `/networks/${networkId}/zone-sets/${zoneSetId}`, { inUse }).then((r) => r.zoneSet),
 		deleteZoneSet: (networkId: number, zoneSetId: number) => call<null>('DELETE', `/networks/${networkId}/zone-sets/${zoneSetId}`),
 		// ---- (sensors and zones end) ----

@@ -6,7 +6,8 @@ export const JOB_VIEW_PERMISSION: Permission = 'layer.view';
 const EDIT: Record<string, Permission> = {
 	'layer-processing': 'layer.edit',
 	placement: 'recipe.edit',
-	'recipe-preview': 'recipe.edit'
+	'recipe-preview': 'recipe.edit',
+	zones: 'zone.edit'
 };
 
 export function jobEditPermission(kind: string): Permission {

@@ -6,13 +6,16 @@ import { registerJobKind } from '../registry';
 import { layerProcessingKind } from './layer-processing';
 import { placementKind } from './placement';
 import { recipePreviewKind } from './recipe-preview';
+import { zonesKind } from './zones';
 
 export { LAYER_PROCESSING, type LayerProcessingPayload } from './layer-processing';
 export { PLACEMENT, type PlacementPayload } from './placement';
 export { RECIPE_PREVIEW } from '../../services/recipe-previews';
+export { ZONE_WORK } from '../../services/zone-jobs';
 
 export function registerBuiltInJobKinds(): void {
 	registerJobKind(layerProcessingKind);
 	registerJobKind(placementKind);
 	registerJobKind(recipePreviewKind);
+	registerJobKind(zonesKind);
 }
