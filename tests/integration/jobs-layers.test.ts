@@ -11,6 +11,7 @@ import { createNetwork } from '../../src/lib/server/services/networks';
 import { queueRecipePreview } from '../../src/lib/server/services/recipe-previews';
 import { saveRecipeVersion, useRecipeVersion } from '../../src/lib/server/services/importance';
 import { queueComputedZones, queueZoneShares } from '../../src/lib/server/services/zone-jobs';
+import { queueRecipeVersion } from '../../src/lib/server/services/recipe-versions';
 import { findNetwork } from '../../src/lib/server/repositories/networks';
 import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
 import { demoFile, fsTestStore, streamOf, type TestStore } from './layers-support';
@@ -110,6 +111,21 @@ describe('layer processing job', () => {
 		const again = await t.db('zones').where({ zone_set_id: zoneSetId }).select('importance_share');
 		expect(again.reduce((a: number, z: { importance_share: number }) => a + Number(z.importance_share), 0)).toBeCloseTo(1, 6);
 		await expect(queueZoneShares(t.db, network, ctx.actorId, 999999)).rejects.toMatchObject({ status: 404 });
+	});
+
+	it('a recipe version is saved by a job with its surface; a name already taken is refused in the request', async () => {
+		const [layer] = await t.db('layers').where({ network_id: ctx.networkId, status: 'ready' }).select('id');
+		const definition = { layers: [{ layerId: String(layer.id), transform: 'invert', weight: 1 }] };
+		const job = await queueRecipeVersion(t.db, ctx.networkId, ctx.organisationId, ctx.actorId, { name: 'Dry', definition });
+		expect(await t.db('importance_recipes').where({ network_id: ctx.networkId, name: 'Dry' }).first()).toBeUndefined(); // nothing saved by the request
+		await runQueuedJobs(t.db, s.store, { timeoutMs: 60_000 });
+		const done = (await getJob(t.db, job.id))!;
+		expect(done.state).toBe('finished');
+		const version = (done.result as { version: { id: number; version: number } }).version;
+		expect(version.version).toBe(1);
+		const row = await t.db('importance_recipe_versions').where({ id: version.id }).first();
+		expect(await s.store.exists(row.surface_key)).toBe(true);
+		await expect(queueRecipeVersion(t.db, ctx.networkId, ctx.organisationId, ctx.actorId, { name: 'Dry', definition })).rejects.toMatchObject({ status: 409, code: 'name_taken' });
 	});
 
 	it('bad metadata is refused in the request: no row, no object, no job', async () => {

@@ -391,6 +391,12 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 			await new Promise((r) => setTimeout(r, opts.intervalMs ?? 500));
 		}
 	}
+	async function savedVersion(networkId: number, queued: Promise<{ job: Job }>): Promise<RecipeVersion> {
+		const { job } = await queued;
+		const done = await waitForJob(networkId, job.id, { intervalMs: 250 });
+		if (done.state !== 'finished') throw new ApiClientError(422, done.state === 'cancelled' ? 'cancelled' : 'recipe_failed', done.error ?? 'The version could not be saved.', { layers: done.error ?? '' });
+		return (done.result as { version: RecipeVersion }).version;
+	}
 	return {
 		// Jobs
 		getJob,
@@ -429,10 +435,10 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		listRecipes: (networkId: number) => call<{ recipes: Recipe[]; currentVersionId: number | null }>('GET', `/networks/${networkId}/recipes`),
 		getRecipe: (networkId: number, recipeId: number) => call<{ recipe: Recipe }>('GET', `/networks/${networkId}/recipes/${recipeId}`).then((r) => r.recipe),
 		listRecipeVersions: (networkId: number, recipeId: number) => call<{ versions: RecipeVersion[] }>('GET', `/networks/${networkId}/recipes/${recipeId}/versions`).then((r) => r.versions),
-		createRecipe: (networkId: number, input: { name: string; definition: RecipeDefinition; note?: string }) =>
-			call<{ version: RecipeVersion }>('POST', `/networks/${networkId}/recipes`, input).then((r) => r.version),
+		/** Both queue a job that saves the version with its importance surface (202 {job}); followed here until the version exists. */
+		createRecipe: (networkId: number, input: { name: string; definition: RecipeDefinition; note?: string }) => savedVersion(networkId, call<{ job: Job }>('POST', `/networks/${networkId}/recipes`, input)),
 		addRecipeVersion: (networkId: number, recipeId: number, input: { definition: RecipeDefinition; note?: string }) =>
-			call<{ version: RecipeVersion }>('POST', `/networks/${networkId}/recipes/${recipeId}/versions`, input).then((r) => r.version),
+			savedVersion(networkId, call<{ job: Job }>('POST', `/networks/${networkId}/recipes/${recipeId}/versions`, input)),
 		deleteRecipe: (networkId: number, recipeId: number) => call<null>('DELETE', `/networks/${networkId}/recipes/${recipeId}`),
 		/** Queues the preview job (202 {job}), follows it and resolves with the preview; 422 with the reason if it failed. */
 		previewRecipe: async (networkId: number, definition: RecipeDefinition, opts: { onProgress?: (job: Job) => void } = {}) => {

@@ -7,7 +7,8 @@ const EDIT: Record<string, Permission> = {
 	'layer-processing': 'layer.edit',
 	placement: 'recipe.edit',
 	'recipe-preview': 'recipe.edit',
-	zones: 'zone.edit'
+	zones: 'zone.edit',
+	'recipe-version': 'recipe.edit'
 };
 
 export function jobEditPermission(kind: string): Permission {
