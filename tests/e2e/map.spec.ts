@@ -10,7 +10,7 @@ import { expect, test } from '@playwright/test';
 import type { Knex } from 'knex';
 import { createDb } from '../../src/lib/server/db/knex';
 import { seedDemoInventory } from '../../seeds/demo-inventory';
-import { contextFor, demoUser, signInPage, uploadLayerViaApi } from './support';
+import { contextFor, demoUser, saveRecipeViaApi, signInPage, uploadLayerViaApi } from './support';
 
 const demo = (f: string) => path.resolve(import.meta.dirname, '../../data/demo', f);
 
@@ -76,9 +76,7 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	// The importance surface through the layers API, as an analyst makes it.
 	const analyst = await contextFor('analyst');
 	const layerId = (await uploadLayerViaApi(analyst, networkId, { name: 'Soil moisture', kind: 'soil_moisture', units: 'm3/m3', fileName: 'soil-moisture.tif' }, readFileSync(demo('soil-moisture.tif')))).id;
-	const recipe = await analyst.post(`/api/v1/networks/${networkId}/recipes`, { data: { name: 'Wetness', definition: { layers: [{ layerId: String(layerId), transform: 'minmax', weight: 1 }] } } });
-	expect(recipe.status()).toBe(201);
-	const versionId = (await recipe.json()).version.id as number;
+	const versionId = (await saveRecipeViaApi(analyst, networkId, { name: 'Wetness', definition: { layers: [{ layerId: String(layerId), transform: 'minmax', weight: 1 }] } })).id;
 	expect((await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId } })).ok()).toBe(true);
 
 	const db = createDb(url, 1);

@@ -8,6 +8,11 @@ import { closeThreadPools, getJob, runQueuedJobs } from '../../src/lib/server/jo
 import { registerBuiltInJobKinds } from '../../src/lib/server/jobs/kinds';
 import { acceptLayerUpload, layerPreview } from '../../src/lib/server/services/layers';
 import { createNetwork } from '../../src/lib/server/services/networks';
+import { queueRecipePreview } from '../../src/lib/server/services/recipe-previews';
+import { saveRecipeVersion, useRecipeVersion } from '../../src/lib/server/services/importance';
+import { queueComputedZones, queueZoneShares } from '../../src/lib/server/services/zone-jobs';
+import { queueRecipeVersion } from '../../src/lib/server/services/recipe-versions';
+import { findNetwork } from '../../src/lib/server/repositories/networks';
 import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
 import { demoFile, fsTestStore, streamOf, type TestStore } from './layers-support';
 
@@ -62,6 +67,65 @@ describe('layer processing job', () => {
 		expect(done.error).toMatch(/no georeferencing/);
 		expect((await t.db('layers').count({ n: '*' }))[0].n).toBe(rowsBefore);
 		expect((await s.keys()).length).toBe(keysBefore);
+	});
+
+	it('a recipe preview is a job: the same definition twice is one job, and its result is the preview', async () => {
+		const [layer] = await t.db('layers').where({ network_id: ctx.networkId, status: 'ready' }).select('id');
+		const definition = { layers: [{ layerId: String(layer.id), transform: 'minmax', weight: 1 }] };
+		const a = await queueRecipePreview(t.db, ctx.networkId, ctx.actorId, definition);
+		const b = await queueRecipePreview(t.db, ctx.networkId, ctx.actorId, definition);
+		expect(b.id).toBe(a.id);
+		expect(a.state).toBe('queued');
+		await runQueuedJobs(t.db, s.store, { timeoutMs: 60_000 });
+		const done = (await getJob(t.db, a.id))!;
+		expect(done.state).toBe('finished');
+		const preview = (done.result as { preview: { png: string; grid: { width: number; height: number }; min: number; max: number } }).preview;
+		expect([...Buffer.from(preview.png, 'base64').subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]); // PNG signature (PNG spec §5.2)
+		expect([preview.grid.width, preview.grid.height]).toEqual([40, 30]); // the demo soil moisture grid (data/demo/README.md)
+		expect(preview.min).toBeCloseTo(0, 6); // minmax stretches to 0..1
+		expect(preview.max).toBeCloseTo(1, 6);
+		// A recipe naming a missing layer is refused in the request, with no job.
+		await expect(queueRecipePreview(t.db, ctx.networkId, ctx.actorId, { layers: [{ layerId: '999999', transform: 'identity', weight: 1 }] })).rejects.toMatchObject({ status: 422 });
+	});
+
+	it('computed zones and zone shares are jobs: k zones whose shares sum to 1, measured again on request', async () => {
+		const network = (await findNetwork(t.db, ctx.networkId))!;
+		await expect(queueComputedZones(t.db, network, ctx.actorId, '', 3)).rejects.toMatchObject({ status: 422, code: 'no_importance' });
+		const [layer] = await t.db('layers').where({ network_id: ctx.networkId, status: 'ready' }).select('id');
+		const v = await saveRecipeVersion(t.db, s.store, ctx.networkId, ctx.organisationId, ctx.actorId, { name: 'Wet', definition: { layers: [{ layerId: String(layer.id), transform: 'minmax', weight: 1 }] } });
+		await useRecipeVersion(t.db, ctx.networkId, ctx.organisationId, ctx.actorId, v.id);
+		const job = await queueComputedZones(t.db, network, ctx.actorId, 'Three', 3);
+		expect(await t.db('zone_sets').where({ network_id: ctx.networkId }).count({ n: '*' }).first()).toMatchObject({ n: 0 }); // nothing computed in the request
+		await runQueuedJobs(t.db, s.store, { timeoutMs: 60_000 });
+		const done = (await getJob(t.db, job.id))!;
+		expect(done.state).toBe('finished');
+		const zoneSetId = (done.result as { zoneSetId: number }).zoneSetId;
+		const zones = await t.db('zones').where({ zone_set_id: zoneSetId }).select('importance_share');
+		expect(zones.length).toBe(3);
+		// Shares are fractions of the importance mass over a partition: they sum to 1 (definition of a share).
+		expect(zones.reduce((a: number, z: { importance_share: number }) => a + Number(z.importance_share), 0)).toBeCloseTo(1, 6);
+		await t.db('zones').where({ zone_set_id: zoneSetId }).update({ importance_share: null });
+		const measure = await queueZoneShares(t.db, network, ctx.actorId, zoneSetId);
+		await runQueuedJobs(t.db, s.store, { timeoutMs: 60_000 });
+		expect((await getJob(t.db, measure.id))!.state).toBe('finished');
+		const again = await t.db('zones').where({ zone_set_id: zoneSetId }).select('importance_share');
+		expect(again.reduce((a: number, z: { importance_share: number }) => a + Number(z.importance_share), 0)).toBeCloseTo(1, 6);
+		await expect(queueZoneShares(t.db, network, ctx.actorId, 999999)).rejects.toMatchObject({ status: 404 });
+	});
+
+	it('a recipe version is saved by a job with its surface; a name already taken is refused in the request', async () => {
+		const [layer] = await t.db('layers').where({ network_id: ctx.networkId, status: 'ready' }).select('id');
+		const definition = { layers: [{ layerId: String(layer.id), transform: 'invert', weight: 1 }] };
+		const job = await queueRecipeVersion(t.db, ctx.networkId, ctx.organisationId, ctx.actorId, { name: 'Dry', definition });
+		expect(await t.db('importance_recipes').where({ network_id: ctx.networkId, name: 'Dry' }).first()).toBeUndefined(); // nothing saved by the request
+		await runQueuedJobs(t.db, s.store, { timeoutMs: 60_000 });
+		const done = (await getJob(t.db, job.id))!;
+		expect(done.state).toBe('finished');
+		const version = (done.result as { version: { id: number; version: number } }).version;
+		expect(version.version).toBe(1);
+		const row = await t.db('importance_recipe_versions').where({ id: version.id }).first();
+		expect(await s.store.exists(row.surface_key)).toBe(true);
+		await expect(queueRecipeVersion(t.db, ctx.networkId, ctx.organisationId, ctx.actorId, { name: 'Dry', definition })).rejects.toMatchObject({ status: 409, code: 'name_taken' });
 	});
 
 	it('bad metadata is refused in the request: no row, no object, no job', async () => {

@@ -170,6 +170,16 @@ export interface RecipePreview {
 	legend: LegendStop[];
 }
 
+/**
+ * The cheap checks of a recipe, for a request that queues its computation: the definition parses
+ * and every layer it names exists in the network and is ready. Throws ServiceError 400/422.
+ */
+export async function checkRecipe(db: Knex, networkId: number, definition: unknown): Promise<Recipe> {
+	const recipe = parseOrFail(definition);
+	for (const id of new Set(recipe.layers.map((l) => l.layerId))) await readyLayer(db, networkId, id);
+	return recipe;
+}
+
 /** The importance map of a recipe, not saved: a PNG (moorland ramp over 0..1) and its figures. */
 export async function previewRecipe(db: Knex, store: ObjectStore, networkId: number, definition: unknown): Promise<RecipePreview> {
 	const recipe = parseOrFail(definition);

@@ -1,0 +1,26 @@
+/**
+ * `recipe-version`: saves a recipe version with its importance surface (computed once per
+ * version, stored, cited by the version row); the result is {version} as the API returns it.
+ * A refusal found while computing (layers that do not overlap, a layer gone) fails the job with
+ * the reason and stores nothing.
+ */
+import { saveRecipeVersion, type RecipeVersionView } from '../../services/importance';
+import { RECIPE_VERSION, type RecipeVersionWork } from '../../services/recipe-versions';
+import { ServiceError } from '../../services/errors';
+import { JobFailure, type JobKind } from '../registry';
+
+export const recipeVersionKind: JobKind<RecipeVersionWork, { version: RecipeVersionView }> = {
+	kind: RECIPE_VERSION,
+	limits: { timeMs: 10 * 60_000, memoryMb: 1024 },
+	maxAttempts: 2,
+	backoffMs: 1000,
+	async handler({ payload, db, store, reportProgress }) {
+		reportProgress({ step: 'computing the importance surface' });
+		try {
+			return { version: await saveRecipeVersion(db, store, payload.networkId, payload.organisationId, payload.actorId, payload.input) };
+		} catch (e) {
+			if (e instanceof ServiceError) throw new JobFailure(e.message);
+			throw e;
+		}
+	}
+};
