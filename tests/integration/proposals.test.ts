@@ -205,8 +205,8 @@ describe('proposals, revisions, review and plan', () => {
 
 		// SMTP down: a port with nothing listening.
 		const port = await freePort();
-		const send = (transport: nodemailer.Transporter) => (row: { to_address: string; subject: string; text_body: string; html_body: string | null }) =>
-			transport.sendMail({ from: 'test@cairnfield.test', to: row.to_address, subject: row.subject, text: row.text_body, html: row.html_body ?? undefined });
+		const send = (transport: nodemailer.Transporter) => (row: { to_address: string; subject: string; text_body: string | null; html_body: string | null }) =>
+			transport.sendMail({ from: 'test@cairnfield.test', to: row.to_address, subject: row.subject, text: row.text_body ?? '', html: row.html_body ?? undefined });
 		const down = nodemailer.createTransport({ host: '127.0.0.1', port, ignoreTLS: true, connectionTimeout: 2000 });
 		expect(await deliverOutbox(t.db, send(down))).toBe(0);
 		let rows = await t.db('outbox_messages').whereIn('id', queued.map((m: { id: number }) => m.id));

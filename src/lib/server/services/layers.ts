@@ -28,6 +28,9 @@ import { ServiceError } from './errors';
 import type { Layer } from '../../api/client';
 import { enqueueJob, jobView, type JobView } from '../jobs/queue';
 
+/** The GeoTIFF reader, loaded on first use (geotiff must not load at import time; see DEVELOPERS.md). */
+const inspectModule = () => import('../layers/inspect');
+
 /** The job kind that processes a stored upload (see ../jobs/kinds/layer-processing.ts). */
 const LAYER_PROCESSING = 'layer-processing';
 
