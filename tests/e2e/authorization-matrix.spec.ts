@@ -131,19 +131,20 @@ const checks: Check[] = [
 	// (sensors rows end)
 
 	// Proposals, revisions, review, plan (proposal.view: admin, analyst, reviewer; proposal.edit: analyst;
-	// revision.review: admin, reviewer; plan.view: everyone)
+	// revision.review: admin, reviewer; plan.view: everyone). Actions on a missing proposal: an allowed
+	// caller's invalid form is refused, then the page it would render does not exist (404).
 	{ name: 'proposals page', method: 'GET', path: '/networks/1/proposals', expect: page(303, 200, 200, 200, 403) },
 	{ name: 'missing proposal page', method: 'GET', path: '/networks/1/proposals/999999', expect: page(303, 404, 404, 404, 403) },
 	{ name: 'missing revision page', method: 'GET', path: '/networks/1/proposals/999999/revisions/999999', expect: page(303, 404, 404, 404, 403) },
 	{ name: 'compare page of a missing proposal', method: 'GET', path: '/networks/1/proposals/999999/compare?r=1', expect: page(303, 404, 404, 404, 403) },
 	{ name: 'history page', method: 'GET', path: '/networks/1/history', expect: signedIn(200) },
 	{ name: 'create proposal action', method: 'POST', path: '/networks/1/proposals?/create', form: { title: '' }, expect: page(303, 403, 400, 403, 403) },
-	{ name: 'run action (no strategy)', method: 'POST', path: '/networks/1/proposals/999999?/run', form: { maxIterations: 'x' }, expect: page(303, 403, 400, 403, 403) },
-	{ name: 'run all action (bad iterations)', method: 'POST', path: '/networks/1/proposals/999999?/runAll', form: { maxIterations: '-1' }, expect: page(303, 403, 400, 403, 403) },
-	{ name: 'cancel run action', method: 'POST', path: '/networks/1/proposals/999999?/cancel', form: { runId: 'x' }, expect: page(303, 403, 400, 403, 403) },
-	{ name: 'submit revision action (note too long)', method: 'POST', path: '/networks/1/proposals/999999/revisions/999999?/submit', form: { note: 'x'.repeat(5001) }, expect: page(303, 403, 400, 403, 403) },
-	{ name: 'review action (no decision)', method: 'POST', path: '/networks/1/proposals/999999/revisions/999999?/review', form: { decision: 'x' }, expect: page(303, 400, 403, 400, 403) },
-	{ name: 'choice note action (no note)', method: 'POST', path: '/networks/1/proposals/999999/compare?/note', form: {}, expect: page(303, 403, 400, 403, 403) },
+	{ name: 'run action (no strategy)', method: 'POST', path: '/networks/1/proposals/999999?/run', form: { maxIterations: 'x' }, expect: page(303, 403, 404, 403, 403) },
+	{ name: 'run all action (bad iterations)', method: 'POST', path: '/networks/1/proposals/999999?/runAll', form: { maxIterations: '-1' }, expect: page(303, 403, 404, 403, 403) },
+	{ name: 'cancel run action', method: 'POST', path: '/networks/1/proposals/999999?/cancel', form: { runId: 'x' }, expect: page(303, 403, 404, 403, 403) },
+	{ name: 'submit revision action (note too long)', method: 'POST', path: '/networks/1/proposals/999999/revisions/999999?/submit', form: { note: 'x'.repeat(5001) }, expect: page(303, 403, 404, 403, 403) },
+	{ name: 'review action (no decision)', method: 'POST', path: '/networks/1/proposals/999999/revisions/999999?/review', form: { decision: 'x' }, expect: page(303, 404, 403, 404, 403) },
+	{ name: 'choice note action (no note)', method: 'POST', path: '/networks/1/proposals/999999/compare?/note', form: {}, expect: page(303, 403, 404, 403, 403) },
 	{ name: 'API list proposals', method: 'GET', path: '/api/v1/networks/1/proposals', expect: api(401, 200, 200, 200, 403) },
 	{ name: 'API create proposal (no title)', method: 'POST', path: '/api/v1/networks/1/proposals', json: { title: '' }, expect: api(401, 403, 400, 403, 403) },
 	{ name: 'API get missing proposal', method: 'GET', path: '/api/v1/networks/1/proposals/999999', expect: api(401, 404, 404, 404, 403) },
