@@ -179,7 +179,7 @@ async function pageLatency(url: string, storeDir: string, db: Knex, networkId: n
 	const appPort = await freePort();
 	const origin = `http://127.0.0.1:${appPort}`;
 	const env = { DATABASE_URL: url, STORAGE_DIR: storeDir, AUTH_SECRET: 'bench-secret-not-for-production-0123456789', ORIGIN: origin, PORT: String(appPort), HOST: '127.0.0.1', NODE_ENV: 'production', SMTP_HOST: '127.0.0.1', SMTP_PORT: '9' };
-	const app = spawn(process.execPath, [path.join(root, 'build', 'index.js')], { cwd: root, stdio: ['ignore', 'ignore', 'inherit'], env: { ...process.env, ...env } });
+	const app = spawn(process.execPath, [path.join(root, 'src', 'ops', 'serve.mjs')], { cwd: root, stdio: ['ignore', 'ignore', 'inherit'], env: { ...process.env, ...env } });
 	try {
 		await waitFor('the app to listen', () => portInUse(appPort), 30_000);
 		const analyst = DEMO_USERS.find((u) => u.role === 'analyst')!;
