@@ -28,9 +28,6 @@ import { ServiceError } from './errors';
 import type { Layer } from '../../api/client';
 import { enqueueJob, jobView, type JobView } from '../jobs/queue';
 
-/** The GeoTIFF reader, loaded on first use (geotiff must not load at import time; see DEVELOPERS.md). */
-const inspectModule = () => import('../layers/inspect');
-
 /** The job kind that processes a stored upload (see ../jobs/kinds/layer-processing.ts). */
 const LAYER_PROCESSING = 'layer-processing';
 
@@ -160,25 +157,25 @@ export interface LayerAnalysis {
  * worker thread.
  */
 export async function analyseLayerBytes(bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }): Promise<LayerAnalysis> {
-	const { loadLayer } = await inspectModule();
+	// The GeoTIFF reader is loaded on first use (see DEVELOPERS.md: geotiff and build-time analysis).
+	const { loadLayer } = await import('../layers/inspect');
 	const { metadata, band } = await loadLayer(bytes, { band: opts.band, name: opts.name, maxPixels: opts.maxPixels });
 	const preview = renderPreview(band);
 	return { metadata, png: preview.png };
 }
 
-/** Runs analyseLayerBytes somewhere (the job passes its pool thread). */
-export type LayerAnalyser = (bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }) => Promise<LayerAnalysis>;
-
 /**
- * The analyser outside jobs (scripts, tests): the band is decoded in a worker thread with a heap
- * limit (../layers/decode), so a decompression bomb ends that worker, not the process.
+ * analyseLayerBytes with the decoding in a worker thread of its own, bounded by `heapMb`
+ * (decodeLayer: a decompression bomb ends that worker, not this process). The default of
+ * processLayer; the layer-processing job passes its pool thread instead.
  */
-function boundedAnalyser(limits: LayerLimits): LayerAnalyser {
-	return async (bytes, opts) => {
-		const { metadata, band } = await decodeLayer(bytes, opts, { heapMb: limits.decodeHeapMb });
-		return { metadata, png: renderPreview(band).png };
-	};
+export async function decodeAndAnalyse(bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }, heapMb?: number): Promise<LayerAnalysis> {
+	const { metadata, band } = await decodeLayer(bytes, opts, { heapMb });
+	return { metadata, png: renderPreview(band).png };
 }
+
+/** Runs analyseLayerBytes somewhere: a decoding thread by default, the job's pool thread in a worker. */
+export type LayerAnalyser = (bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }) => Promise<LayerAnalysis>;
 
 /**
  * Stream `body` into the store and leave the layer `processing`, for processLayer to finish.
@@ -223,7 +220,7 @@ export async function storeLayerUpload(db: Knex, store: ObjectStore, ctx: Upload
  * entry is written with it. A refused raster removes the row and the stored objects (a refused
  * upload leaves nothing behind) and throws ServiceError 422 with the reason.
  */
-export async function processLayer(db: Knex, store: ObjectStore, ctx: UploadContext, layerId: number, limits: LayerLimits, analyse: LayerAnalyser = boundedAnalyser(limits)): Promise<LayerView> {
+export async function processLayer(db: Knex, store: ObjectStore, ctx: UploadContext, layerId: number, limits: LayerLimits, analyse: LayerAnalyser = (b, o) => decodeAndAnalyse(b, o, limits.decodeHeapMb)): Promise<LayerView> {
 	const row = await findLayer(db, ctx.networkId, layerId);
 	if (!row) throw new ServiceError(404, 'not_found', 'No such layer.');
 	if (row.status === 'ready') return layerView(row);

@@ -5,8 +5,8 @@
  */
 import { previewRecipe } from '../../services/importance';
 import { RECIPE_PREVIEW, recipePreviewView } from '../../services/recipe-previews';
-import { ServiceError } from '../../services/errors';
-import { JobFailure, type JobKind } from '../registry';
+import type { JobKind } from '../registry';
+import { refusalsFail } from './refusals';
 
 export const recipePreviewKind: JobKind<{ networkId: number; definition: unknown }, { preview: ReturnType<typeof recipePreviewView> }> = {
 	kind: RECIPE_PREVIEW,
@@ -15,11 +15,6 @@ export const recipePreviewKind: JobKind<{ networkId: number; definition: unknown
 	backoffMs: 1000,
 	async handler({ payload, db, store, reportProgress }) {
 		reportProgress({ step: 'computing' });
-		try {
-			return { preview: recipePreviewView(await previewRecipe(db, store, payload.networkId, payload.definition)) };
-		} catch (e) {
-			if (e instanceof ServiceError) throw new JobFailure(e.message);
-			throw e;
-		}
+		return refusalsFail(async () => ({ preview: recipePreviewView(await previewRecipe(db, store, payload.networkId, payload.definition)) }));
 	}
 };

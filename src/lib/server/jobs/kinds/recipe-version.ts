@@ -6,8 +6,8 @@
  */
 import { saveRecipeVersion, type RecipeVersionView } from '../../services/importance';
 import { RECIPE_VERSION, type RecipeVersionWork } from '../../services/recipe-versions';
-import { ServiceError } from '../../services/errors';
-import { JobFailure, type JobKind } from '../registry';
+import type { JobKind } from '../registry';
+import { refusalsFail } from './refusals';
 
 export const recipeVersionKind: JobKind<RecipeVersionWork, { version: RecipeVersionView }> = {
 	kind: RECIPE_VERSION,
@@ -16,11 +16,6 @@ export const recipeVersionKind: JobKind<RecipeVersionWork, { version: RecipeVers
 	backoffMs: 1000,
 	async handler({ payload, db, store, reportProgress }) {
 		reportProgress({ step: 'computing the importance surface' });
-		try {
-			return { version: await saveRecipeVersion(db, store, payload.networkId, payload.organisationId, payload.actorId, payload.input) };
-		} catch (e) {
-			if (e instanceof ServiceError) throw new JobFailure(e.message);
-			throw e;
-		}
+		return refusalsFail(async () => ({ version: await saveRecipeVersion(db, store, payload.networkId, payload.organisationId, payload.actorId, payload.input) }));
 	}
 };

@@ -4,10 +4,10 @@
  * zones service; the result is {zoneSetId}.
  */
 import { findNetwork } from '../../repositories/networks';
-import { ServiceError } from '../../services/errors';
 import { ZONE_WORK, type ZoneWork } from '../../services/zone-jobs';
 import { createComputedZoneSet, importanceForZones, measureZoneSet } from '../../services/zones';
 import { JobFailure, type JobKind } from '../registry';
+import { refusalsFail } from './refusals';
 
 export const zonesKind: JobKind<ZoneWork, { zoneSetId: number }> = {
 	kind: ZONE_WORK,
@@ -17,16 +17,13 @@ export const zonesKind: JobKind<ZoneWork, { zoneSetId: number }> = {
 	async handler({ payload, db, store, reportProgress }) {
 		const network = await findNetwork(db, payload.networkId);
 		if (!network) throw new JobFailure('The network no longer exists.');
-		try {
+		return refusalsFail(async () => {
 			reportProgress({ step: 'importance' });
 			const importance = await importanceForZones(db, store, network);
 			reportProgress({ step: payload.operation === 'compute' ? 'clustering' : 'measuring' });
 			if (payload.operation === 'compute') return { zoneSetId: await createComputedZoneSet(db, network, payload.actorId, payload.name, payload.k, importance) };
 			await measureZoneSet(db, network, payload.actorId, payload.zoneSetId, importance);
 			return { zoneSetId: payload.zoneSetId };
-		} catch (e) {
-			if (e instanceof ServiceError) throw new JobFailure(e.message);
-			throw e;
-		}
+		});
 	}
 };

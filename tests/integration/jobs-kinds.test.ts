@@ -1,6 +1,7 @@
 /**
- * Layer processing as a job: the upload request stores the file and queues the job; the job
- * (in a pool thread) makes the layer ready, or removes a refused one and fails with the reason.
+ * The built-in job kinds against the services they call: layer processing (the upload request
+ * stores the file and queues the job; the job, in a pool thread, makes the layer ready or removes a
+ * refused one and fails with the reason), recipe previews, recipe versions, zones, placements.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { encodeTiff } from '../../src/lib/geo/tiff-writer';
@@ -13,6 +14,9 @@ import { saveRecipeVersion, useRecipeVersion } from '../../src/lib/server/servic
 import { queueComputedZones, queueZoneShares } from '../../src/lib/server/services/zone-jobs';
 import { queueRecipeVersion } from '../../src/lib/server/services/recipe-versions';
 import { findNetwork } from '../../src/lib/server/repositories/networks';
+import { enqueueJob } from '../../src/lib/server/jobs';
+import { importanceForZones } from '../../src/lib/server/services/zones';
+import { place } from '../../src/lib/engine';
 import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
 import { demoFile, fsTestStore, streamOf, type TestStore } from './layers-support';
 
@@ -126,6 +130,24 @@ describe('layer processing job', () => {
 		const row = await t.db('importance_recipe_versions').where({ id: version.id }).first();
 		expect(await s.store.exists(row.surface_key)).toBe(true);
 		await expect(queueRecipeVersion(t.db, ctx.networkId, ctx.organisationId, ctx.actorId, { name: 'Dry', definition })).rejects.toMatchObject({ status: 409, code: 'name_taken' });
+	});
+
+	it('a placement job runs the engine on the network importance, reports its iterations, and returns what place() returns', async () => {
+		// Needs the recipe chosen by the zones test above.
+		const options = { strategy: 'lloyd' as const, count: 5, radius: 3000, maxIterations: 20, tolerance: 0, seed: 7 };
+		const job = await enqueueJob(t.db, { kind: 'placement', payload: { networkId: ctx.networkId, options }, networkId: ctx.networkId });
+		await runQueuedJobs(t.db, s.store, { timeoutMs: 120_000 });
+		const done = (await getJob(t.db, job.id))!;
+		expect(done.state).toBe('finished');
+		expect(done.progress).toMatchObject({ iteration: 20, maxIterations: 20 });
+		const result = done.result as { sensors: { id: string; x: number; y: number }[]; coverage: number; iterations: number };
+		expect(result.iterations).toBe(20);
+		expect(result.sensors.length).toBe(5);
+		// The same engine call in this process on the same grid gives the same sites (place() is deterministic for a seed).
+		const grid = (await importanceForZones(t.db, s.store, (await findNetwork(t.db, ctx.networkId))!))!.grid;
+		const direct = place(grid, null, [], options);
+		expect(result.sensors.map((p) => [p.id, p.x, p.y])).toEqual(direct.sensors.map((p) => [p.id, p.x, p.y]));
+		expect(result.coverage).toBeCloseTo(direct.coverage, 12);
 	});
 
 	it('bad metadata is refused in the request: no row, no object, no job', async () => {
