@@ -31,7 +31,7 @@ describe('layer processing job', () => {
 		t = await createTestDatabase();
 		s = await fsTestStore();
 		const analyst = await makeMember(t.db, 'analyst');
-		const networkId = await createNetwork(t.db, analyst.organisationId, analyst.userId, { name: 'Jobs layers', description: '', crsEpsg: 32632, publicText: '' });
+		const networkId = await createNetwork(t.db, analyst.organisationId, analyst.userId, { name: 'Jobs layers', description: '', crsEpsg: 32754, publicText: '' });
 		ctx = { networkId, organisationId: analyst.organisationId, actorId: analyst.userId };
 	});
 	afterAll(async () => {
@@ -52,8 +52,8 @@ describe('layer processing job', () => {
 		expect(done.state).toBe('finished');
 		const row = await t.db('layers').where({ id: layer.id }).first();
 		expect(row.status).toBe('ready');
-		// data/demo/README.md: 40 × 30 cells of 1 km, EPSG:32632, nodata −9999.
-		expect([row.width, row.height, row.epsg, row.nodata]).toEqual([40, 30, 32632, -9999]);
+		// data/demo/README.md: 40 × 30 cells of 1 km, EPSG:32754, nodata −9999.
+		expect([row.width, row.height, row.epsg, row.nodata]).toEqual([40, 30, 32754, -9999]);
 		const png = await layerPreview(t.db, s.store, ctx.networkId, layer.id);
 		expect([...png.subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]); // PNG signature (PNG spec §5.2)
 		expect(await t.db('audit_log').where({ action: 'layer.create', object_id: String(layer.id) }).first()).toBeTruthy();
