@@ -5,12 +5,14 @@
  *   2. the latency from queueing to start (an idle worker, default poll of 1 s, and 100 ms);
  *   3. p50 / p99 of a signed-in page while four placements run at once (the built app, one
  *      worker process beside it, as `npm start` runs them), against the same page with no jobs.
- * The demo inputs: the demo network as the seed makes it (its two rasters, its recipe and its
- * zone set, data/demo/zones.geojson), greenfield zone-balanced
- * placements of 24 sensors with a 1500 m radius, 300 iterations, tolerance 0 (every run does
- * all 300). Options: --jobs=N (placements per throughput round, default 8), --skip-pages,
- * --large-layer (while the pages are sampled, a 5000 × 5000 = 25-million-cell Float32 layer is
- * also uploaded and processed by the same worker, beside the four placements).
+ * The demo inputs: the demo network as the seed makes it (its two rasters, its recipe, its zone
+ * set from data/demo/zones.geojson); greenfield zone-balanced placements of 24 sensors with a
+ * 1500 m radius, 300 iterations, tolerance 0 (every run does all 300). The working grid is what the
+ * seeded recipe gives: 29 × 25 cells of 1 km since the demo moved to UTM 54S; runs 1–3 below were
+ * taken on the earlier demo's 200 × 150 grid of 30 m. Options: --jobs=N (placements per
+ * throughput round, default 8), --skip-pages, --large-layer (while the pages are sampled, a
+ * 5000 × 5000 = 25-million-cell Float32 layer is also uploaded and processed by the same worker,
+ * beside the four placements).
  * Printed, never asserted.
  *
  * Figures on the shared 2-core build machine, 2026-12-02, while five other developers' builds and
