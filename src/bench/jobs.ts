@@ -29,7 +29,11 @@
  * queue → start 687 / 1989 ms (poll 1 s), 64 / 284 ms (poll 100 ms); page with no jobs p50 72.4 ms,
  * p99 529.0 ms; with four placements running and the 25-million-cell layer processed beside them
  * (done in 40.1 s) p50 80.1 ms, p99 552.0 ms: the jobs added next to nothing to the page's times.
- * A second process on the same two cores only adds contention (and pays its own pool threads'
+ * Run 4 (load 9–11, the seeded UTM 54S demo, 29 × 25 grid, --large-layer): 23.1 /min with one
+ * process, 30.7 /min with two; queue → start 547 / 1017 ms (poll 1 s), 52 / 228 ms (poll 100 ms);
+ * page with no jobs p50 38.4 ms, p99 186.5 ms; with four placements and the 25-million-cell layer
+ * (processed in 24.1 s) p50 49.6 ms, p99 341.8 ms.
+ * A second process on the same two cores mostly adds contention (and pays its own pool threads'
  * start-up, about a second each under this load); it helps on another machine. The p99 goal of
  * 200 ms was not met here under a load average of 11–15; with the worker at nice 10 the p50 with
  * four placements running stayed at the no-job level.
