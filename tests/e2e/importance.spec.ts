@@ -7,7 +7,7 @@ import { randomBytes } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test } from '@playwright/test';
-import { contextFor, demoUser, gotoHydrated, signInPage, uploadLayerViaApi } from './support';
+import { contextFor, demoUser, signInPage, uploadLayerViaApi, gotoHydrated } from './support';
 
 const demo = (f: string) => path.resolve(import.meta.dirname, '../../data/demo', f);
 const tag = randomBytes(3).toString('hex');

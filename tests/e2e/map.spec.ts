@@ -10,7 +10,7 @@ import { expect, test } from '@playwright/test';
 import type { Knex } from 'knex';
 import { createDb } from '../../src/lib/server/db/knex';
 import { seedDemoInventory } from '../../seeds/demo-inventory';
-import { contextFor, demoUser, gotoHydrated, saveRecipeViaApi, signInPage, uploadLayerViaApi } from './support';
+import { contextFor, demoUser, saveRecipeViaApi, signInPage, uploadLayerViaApi, gotoHydrated } from './support';
 
 const demo = (f: string) => path.resolve(import.meta.dirname, '../../data/demo', f);
 

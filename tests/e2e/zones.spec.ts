@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test, type APIRequestContext } from '@playwright/test';
-import { contextFor, demoDir, freshNetwork, demoUser, gotoHydrated, saveRecipeViaApi, signInPage, uploadLayerViaApi, waitForHydration } from './support';
+import { contextFor, demoDir, freshNetwork, demoUser, saveRecipeViaApi, signInPage, uploadLayerViaApi, gotoHydrated, waitForHydration } from './support';
 
 
 

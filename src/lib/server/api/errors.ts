@@ -1,6 +1,7 @@
 /** The one error shape of the JSON API: { "error": { "code", "message", "fields"? } }. */
 import { json, isHttpError, isRedirect, type RequestEvent, type RequestHandler } from '@sveltejs/kit';
 import type { ZodError } from 'zod';
+import { ServiceError } from '../services/errors';
 
 export class ApiError extends Error {
 	constructor(
@@ -33,6 +34,7 @@ export function apiHandler(fn: (event: RequestEvent) => Promise<Response>): Requ
 			return await fn(event);
 		} catch (err) {
 			if (err instanceof ApiError) return json(apiErrorBody(err.code, err.message, err.fields), { status: err.status });
+			if (err instanceof ServiceError) return json(apiErrorBody(err.code, err.message, err.field ? { [err.field]: err.message } : undefined), { status: err.status });
 			if (isHttpError(err)) return json(apiErrorBody(err.status === 404 ? 'not_found' : 'http_error', err.body.message), { status: err.status });
 			if (isRedirect(err)) throw err;
 			console.error(err);

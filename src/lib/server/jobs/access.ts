@@ -8,7 +8,8 @@ const EDIT: Record<string, Permission> = {
 	placement: 'recipe.edit',
 	'recipe-preview': 'recipe.edit',
 	zones: 'zone.edit',
-	'recipe-version': 'recipe.edit'
+	'recipe-version': 'recipe.edit',
+	'proposal-run': 'proposal.edit'
 };
 
 export function jobEditPermission(kind: string): Permission {

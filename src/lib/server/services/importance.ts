@@ -369,6 +369,11 @@ export async function deleteRecipe(db: Knex, store: ObjectStore, networkId: numb
 export async function networkImportance(db: Knex, store: ObjectStore, networkId: number): Promise<NetworkImportance | null> {
 	const versionId = await networkRecipeVersionId(db, networkId);
 	if (versionId === null) return null;
+	return recipeVersionImportance(db, store, networkId, versionId);
+}
+
+/** The importance surface of one recipe version of the network (cached like networkImportance), or null when there is no such version. */
+export async function recipeVersionImportance(db: Knex, store: ObjectStore, networkId: number, versionId: number): Promise<NetworkImportance | null> {
 	const version = await findVersion(db, networkId, versionId);
 	if (!version) return null;
 	let surface: ComputedSurface | null = null;

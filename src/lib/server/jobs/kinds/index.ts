@@ -8,6 +8,7 @@ import { placementKind } from './placement';
 import { recipePreviewKind } from './recipe-preview';
 import { zonesKind } from './zones';
 import { recipeVersionKind } from './recipe-version';
+import { proposalRunKind } from './proposal-run';
 
 export { LAYER_PROCESSING, type LayerProcessingPayload } from './layer-processing';
 export { PLACEMENT, type PlacementPayload } from './placement';
@@ -21,4 +22,5 @@ export function registerBuiltInJobKinds(): void {
 	registerJobKind(recipePreviewKind);
 	registerJobKind(zonesKind);
 	registerJobKind(recipeVersionKind);
+	registerJobKind(proposalRunKind);
 }
