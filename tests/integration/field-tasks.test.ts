@@ -10,13 +10,15 @@ import { closeThreadPools } from '../../src/lib/server/jobs';
 import { createProposal } from '../../src/lib/server/services/proposals';
 import { runNow } from '../../src/lib/server/services/runs';
 import { decideRevision, submitRevision } from '../../src/lib/server/services/reviews';
-import { applyTaskUpdate, assignTasks, currentTasks, contiguousShares, type TaskView } from '../../src/lib/server/services/field-tasks';
+import { applyTaskUpdate, assignTasks, currentTasks, contiguousShares, tasksGpx, type TaskView } from '../../src/lib/server/services/field-tasks';
 import { findSensor } from '../../src/lib/server/repositories/sensors';
 import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
 import { placementNetwork, type PlacementNetwork } from '../helpers/placement-network';
 import { fsTestStore, type TestStore } from './layers-support';
+import { checkGpx } from '../helpers/gpx-rules';
 
 const ORIGIN = 'https://cairnfield.example.org';
+const KIND_WORDS = { move: 'Move', install: 'Install', remove: 'Remove' } as const;
 const R = 6_371_008.8; // mean Earth radius (IUGG), m
 
 /** Spherical initial bearing, degrees (the standard spherical-trigonometry formula; common practice, no source). */
@@ -116,6 +118,11 @@ describe('field tasks', () => {
 			expect(mail).toHaveLength(1);
 			expect(mail[0].text_body).toContain(`${ORIGIN}/networks/${net.network.id}/field`);
 			expect(mail[0].subject).toContain(`${mine.length} assigned`);
+			// The GPX export lists the same route, in the same order, and meets GPX 1.1's structural rules.
+			const gpx = checkGpx(tasksGpx('Field check', tech.name, mine));
+			expect(gpx.broken).toEqual([]);
+			expect(gpx.waypoints.map((w) => w.name)).toEqual(mine.map((x) => `${x.order}. ${KIND_WORDS[x.kind]} ${x.sensorCode}`));
+			expect(gpx.waypoints.map((w) => [w.lon, w.lat])).toEqual(mine.map((x) => [Number(x.target.lon.toFixed(9)), Number(x.target.lat.toFixed(9))]));
 		}
 		// Nobody else may be given tasks.
 		await expect(assignTasks(t.db, net.network, analyst, { taskIds: [after[0].id], assigneeId: analyst.id }, ORIGIN)).rejects.toMatchObject({ status: 400, code: 'not_technician' });

@@ -25,6 +25,7 @@ import type { Db } from '../db';
 import { routeOrder, type Point } from '../../engine/moves';
 import { parseEpsg, transformer } from '../../geo/crs';
 import { geodesicDistanceBearing } from '../../geo/geodesic';
+import { routeGpx } from '../../geo/gpx';
 import { roleAllows, type Role } from '../auth/roles';
 import { recordAudit } from '../repositories/audit';
 import { enqueueMail } from '../repositories/outbox';
@@ -447,4 +448,19 @@ export function resolveAssignee(param: string | null, actor: { id: number }, rol
 	if (param === null || param === '') return undefined;
 	if (!/^\d+$/.test(param)) throw new ServiceError(400, 'invalid_input', 'assignee is "me" or a user id.', 'assignee');
 	return Number(param);
+}
+
+/** A technician's route as GPX 1.1: the active tasks as waypoints in route order. */
+export function tasksGpx(networkName: string, who: string | null, tasks: readonly TaskView[], now = new Date()): string {
+	const active = tasks.filter((t) => t.state === 'open' || t.state === 'started' || t.state === 'blocked');
+	const words = { move: 'Move', install: 'Install', remove: 'Remove' } as const;
+	const points = active.map((t, i) => {
+		const parts = [`${words[t.kind]} ${t.sensorCode}`];
+		if (t.from) parts.push(`from ${t.from.lat.toFixed(6)}, ${t.from.lon.toFixed(6)}`);
+		parts.push(`${t.kind === 'remove' ? 'at' : 'to'} ${t.target.lat.toFixed(6)}, ${t.target.lon.toFixed(6)}`);
+		if (t.distanceM !== null && t.bearingDeg !== null) parts.push(`${Math.round(t.distanceM)} m at ${Math.round(t.bearingDeg)}°`);
+		parts.push(`state ${t.state}${t.blockedReason ? ` (${t.blockedReason})` : ''}`);
+		return { lon: t.target.lon, lat: t.target.lat, name: `${t.order ?? i + 1}. ${words[t.kind]} ${t.sensorCode}`, desc: parts.join('; '), sym: 'Flag', type: t.kind };
+	});
+	return routeGpx({ name: `${networkName}: ${who ? `route of ${who}` : 'field tasks'}`, desc: 'Field tasks in route order. Check the field cautions before the first task of the day.', creator: 'Cairnfield', time: now, points });
 }
