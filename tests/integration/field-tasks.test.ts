@@ -9,10 +9,12 @@ import geodesic from 'geographiclib-geodesic';
 import { closeThreadPools } from '../../src/lib/server/jobs';
 import { createProposal } from '../../src/lib/server/services/proposals';
 import { runNow } from '../../src/lib/server/services/runs';
-import { decideRevision, submitRevision } from '../../src/lib/server/services/reviews';
+import { currentPlanView, decideRevision, submitRevision } from '../../src/lib/server/services/reviews';
 import { applyTaskUpdate, assignTasks, currentTasks, contiguousShares, tasksGpx, type TaskView } from '../../src/lib/server/services/field-tasks';
 import { findSensor } from '../../src/lib/server/repositories/sensors';
-import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
+import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpers/db';
+import { generalise, publicImportancePng, publicMap } from '../../src/lib/server/services/public-map';
+import { networkImportance } from '../../src/lib/server/services/importance';
 import { placementNetwork, type PlacementNetwork } from '../helpers/placement-network';
 import { fsTestStore, type TestStore } from './layers-support';
 import { checkGpx } from '../helpers/gpx-rules';
@@ -202,5 +204,50 @@ describe('field tasks', () => {
 		const mail = await t.db('outbox_messages').where('id', '>', before!.id ?? 0).where('subject', 'like', '%cancelled%');
 		expect(mail.map((m) => m.to_address).sort()).toEqual([techA.email, techB.email].sort());
 		expect((await currentTasks(t.db, net.network.id)).every((x) => x.planId === planId)).toBe(true);
+	}, 120_000);
+
+	it('the public map: 404 until published, then only public fields; positions generalised to grid centres on request', async () => {
+		const importance = async (id: number) => {
+			const v = await networkImportance(t.db, s.store, id);
+			return v ? { grid: v.grid, data: v.band.data } : null;
+		};
+		const slug = net.network.slug;
+		await expect(publicMap(t.db, slug, importance)).rejects.toMatchObject({ status: 404 });
+		await expect(publicMap(t.db, 'no-such-network', importance)).rejects.toMatchObject({ status: 404 });
+		await t.db('networks').where({ id: net.network.id }).update({ publication: 'published', public_text: 'Soil moisture in the Vale.' });
+		const m = await publicMap(t.db, slug, importance);
+		const plan = await currentPlanView(t.db, net.network.id);
+		expect(m.plan).toEqual({ approvedAt: plan!.approvedAt });
+		expect(m.network).toEqual({ slug, name: net.network.name, publicText: 'Soil moisture in the Vale.' });
+		const revision = await t.db('revisions').select('outputs').where({ id: plan!.revisionId }).first();
+		const targets = (jsonValue(revision.outputs) as { targets: { features: unknown[] } }).targets.features;
+		expect(m.sites).toHaveLength(targets.length);
+		expect(m.importance?.url).toBe(`/api/v1/public/networks/${slug}/importance.png`);
+		expect(await publicImportancePng(t.db, slug, importance)).toBeInstanceOf(Buffer);
+
+		// Nothing private: no serial, sensor code, e-mail address, person, note or task field.
+		const text = JSON.stringify(m);
+		const sensors = await t.db('sensors').select('code', 'serial', 'notes').where({ network_id: net.network.id });
+		for (const x of sensors) {
+			if (x.serial) expect(text).not.toContain(x.serial);
+			expect(text).not.toContain(`"${x.code}"`);
+		}
+		for (const u of await t.db('users').select('email', 'name')) {
+			expect(text).not.toContain(u.email);
+		}
+		for (const word of ['assignee', 'serial', 'note', 'Flooded ford', 'Set at the fence post', 'author', 'email']) expect(text).not.toContain(word);
+
+		// Generalised to a 500 m grid: every position is the centre of the 500 m cell that holds the exact one.
+		await t.db('networks').where({ id: net.network.id }).update({ public_grid_m: 500 });
+		const g = await publicMap(t.db, slug, importance);
+		expect(g.generalisedToM).toBe(500);
+		for (const p of g.sites) {
+			expect(Math.abs((p.x / 500) % 1)).toBeCloseTo(0.5, 6);
+			expect(Math.abs((p.y / 500) % 1)).toBeCloseTo(0.5, 6);
+		}
+		const exact = m.sites.map((p) => generalise(p.x, p.y, 500).join()).sort();
+		expect(g.sites.map((p) => [p.x, p.y].join()).sort()).toEqual(exact);
+		await t.db('networks').where({ id: net.network.id }).update({ publication: 'private', public_grid_m: null });
+		await expect(publicMap(t.db, slug, importance)).rejects.toMatchObject({ status: 404 });
 	}, 120_000);
 });

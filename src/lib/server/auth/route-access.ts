@@ -78,6 +78,9 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/networks/[id=id]/tasks': 'signed-in',
 	'/api/v1/networks/[id=id]/tasks.gpx': 'signed-in',
 	'/api/v1/networks/[id=id]/tasks/assignments': 'signed-in',
-	'/api/v1/networks/[id=id]/tasks/[taskId=id]/updates': 'signed-in'
+	'/api/v1/networks/[id=id]/tasks/[taskId=id]/updates': 'signed-in',
+	'/(public)/map/[slug]': 'public',
+	'/api/v1/public/networks/[slug]': 'public',
+	'/api/v1/public/networks/[slug]/importance.png': 'public'
 	// (field routes end)
 };

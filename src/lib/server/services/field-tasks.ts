@@ -464,3 +464,31 @@ export function tasksGpx(networkName: string, who: string | null, tasks: readonl
 	});
 	return routeGpx({ name: `${networkName}: ${who ? `route of ${who}` : 'field tasks'}`, desc: 'Field tasks in route order. Check the field cautions before the first task of the day.', creator: 'Cairnfield', time: now, points });
 }
+
+// ---------------------------------------------------------------- per-network settings
+
+export const fieldSettingsInput = z
+	.object({
+		installToleranceM: z.coerce.number({ error: 'The tolerance is a number of metres.' }).min(0.5, 'Use a tolerance of at least 0.5 m.').max(1000, 'Use a tolerance of at most 1000 m.'),
+		publicGridM: z.preprocess((v) => (v === '' || v === null || v === undefined ? null : v), z.coerce.number({ error: 'The grid is a number of metres.' }).min(10, 'Use a grid of at least 10 m, or leave it empty.').max(100_000, 'Use a grid of at most 100 km.').nullable())
+	})
+	.strict();
+
+export async function fieldSettings(db: Db, networkId: number): Promise<{ installToleranceM: number; publicGridM: number | null }> {
+	const row = await db('networks').select('install_tolerance_m', 'public_grid_m').where({ id: networkId }).first();
+	return { installToleranceM: Number(row.install_tolerance_m), publicGridM: row.public_grid_m === null ? null : Number(row.public_grid_m) };
+}
+
+/** The installation tolerance and the public map's generalisation grid, with an audit entry. */
+export async function updateFieldSettings(db: Knex, network: NetworkRef, actorId: number, raw: unknown): Promise<void> {
+	const parsed = fieldSettingsInput.safeParse(raw);
+	if (!parsed.success) {
+		const i = parsed.error.issues[0];
+		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
+	}
+	await db.transaction(async (trx) => {
+		const before = await fieldSettings(trx, network.id);
+		await trx('networks').where({ id: network.id }).update({ install_tolerance_m: parsed.data.installToleranceM, public_grid_m: parsed.data.publicGridM });
+		await recordAudit(trx, { organisationId: network.organisation_id, actorUserId: actorId, action: 'network.field-settings', objectType: 'network', objectId: network.id, before, after: parsed.data });
+	});
+}
