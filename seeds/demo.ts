@@ -9,6 +9,7 @@ import { existsSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { seedDemoInventory } from './demo-inventory';
 import { seedDemoProposals } from './demo-proposals';
+import { seedDemoField } from './demo-field';
 import { createObjectStore } from '../src/lib/server/storage/create-object-store';
 import type { ObjectStore } from '../src/lib/server/storage/object-store';
 
@@ -84,4 +85,5 @@ async function seedDemoProposalStage(knex: Knex, store: ObjectStore): Promise<vo
 	const user = (role: string) => knex('users').select('id', 'name').where({ email: DEMO_USERS.find((u) => u.role === role)!.email }).first();
 	const origin = (process.env.ORIGIN ?? `http://127.0.0.1:${process.env.PORT ?? 3000}`).replace(/\/$/, '');
 	await seedDemoProposals(knex, store, { networkId: net.id, analyst: await user('analyst'), reviewer: await user('reviewer') }, origin);
+	await seedDemoField(knex, store, { networkId: net.id, analyst: await user('analyst'), reviewer: await user('reviewer'), technician: await user('technician') }, origin);
 }
