@@ -168,6 +168,14 @@ describe('field tasks', () => {
 		const blocked = await applyTaskUpdate(t.db, net.network, techA, task.id, 'key-device-b-02', { state: 'blocked', reason: 'Gate locked' });
 		expect(blocked.status).toBe(409);
 		expect((await findSensor(t.db, net.network.id, task.sensorId!))!.lon).toBeCloseTo(at.lon, 9);
+
+		// Re-assigning reorders the open tasks after the done ones: the route stays one sequence 1..n.
+		const route = await currentTasks(t.db, net.network.id, { assigneeId: techA.id });
+		const open = route.find((x) => x.state === 'open')!;
+		await assignTasks(t.db, net.network, analyst, { taskIds: [open.id], assigneeId: techA.id }, ORIGIN);
+		const again = await currentTasks(t.db, net.network.id, { assigneeId: techA.id });
+		expect(again.map((x) => x.order)).toEqual(again.map((_, i) => i + 1));
+		expect(again.filter((x) => x.state === 'done').map((x) => x.order)).toEqual(again.filter((x) => x.state === 'done').map((_, i) => i + 1));
 	});
 
 	it('an installation far from its target adds the sensor and is flagged; blocked needs a reason', async () => {

@@ -302,11 +302,20 @@ export async function assignTasks(db: Knex, network: NetworkRef, actor: { id: nu
 	});
 }
 
-/** Puts one technician's active tasks of a plan in the engine's route order (1, 2, …). */
+/**
+ * Puts one technician's active tasks of a plan in the engine's route order. Tasks already done or
+ * cancelled keep their relative order and come first (1..m); the active ones follow (m + 1, …), so
+ * the list stays one sequence without gaps.
+ */
 async function orderRoute(trx: Knex.Transaction, networkId: number, planId: number, userId: number, start: Point | null): Promise<void> {
-	const mine = await listTasks(trx, networkId, { planId, assigneeId: userId, states: ACTIVE_STATES });
-	const { order } = routeOrder(start, mine.map((t) => [Number(t.route_x), Number(t.route_y)] as Point));
-	for (let k = 0; k < order.length; k++) await trx('field_tasks').where({ id: mine[order[k]].id }).update({ route_order: k + 1 });
+	const all = await listTasks(trx, networkId, { planId, assigneeId: userId });
+	const active = all.filter((t) => ACTIVE_STATES.includes(t.state));
+	// Finished ones first, in the order they had (listTasks sorts by route order), numbered 1..m.
+	const finished = all.filter((t) => !ACTIVE_STATES.includes(t.state));
+	for (let k = 0; k < finished.length; k++) if (finished[k].route_order !== k + 1) await trx('field_tasks').where({ id: finished[k].id }).update({ route_order: k + 1 });
+	const after = finished.length;
+	const { order } = routeOrder(start, active.map((t) => [Number(t.route_x), Number(t.route_y)] as Point));
+	for (let k = 0; k < order.length; k++) await trx('field_tasks').where({ id: active[order[k]].id }).update({ route_order: after + k + 1 });
 }
 
 // ---------------------------------------------------------------- updates from the field
