@@ -82,8 +82,9 @@ try {
 	const done = await migrateLatest(databaseUrl);
 	log(done.length ? `migrated: ${done.join(', ')}` : 'database schema is up to date');
 	const storageDir = process.env.STORAGE_DIR ?? path.join(dataDir, 'objects');
+	let demoUsers = false;
 	if (process.env.SEED_DEMO !== 'false') {
-		await seedDemo(databaseUrl, { ...process.env, STORAGE_DIR: storageDir });
+		demoUsers = (await seedDemo(databaseUrl, origin, { ...process.env, STORAGE_DIR: storageDir })).users;
 		log('demo data in place');
 	}
 
@@ -97,7 +98,9 @@ try {
 
 	const appEnv: NodeJS.ProcessEnv = {
 			...process.env,
-			NODE_ENV: 'production',
+			// A local start: not "production", so that the development inbox may be shown (on a loopback ORIGIN only).
+			NODE_ENV: process.env.NODE_ENV ?? 'development',
+			DEV_INBOX: process.env.DEV_INBOX ?? (process.env.SMTP_HOST ? 'false' : 'true'),
 			SHUTDOWN_TIMEOUT: process.env.SHUTDOWN_TIMEOUT ?? '3',
 			PORT: String(port),
 			HOST: host,
@@ -108,9 +111,10 @@ try {
 			SMTP_PORT: String(smtpPort),
 			DEV_MAIL_DIR: process.env.SMTP_HOST ? '' : mailDir,
 			STORAGE_DIR: storageDir,
+			// The server's outer bound; each route has its own, smaller one (src/lib/server/http/body-limit.ts).
 			BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? String(600 * 1024 * 1024)
 	};
-	app = spawn(process.execPath, [path.join(root, 'build', 'index.js')], { cwd: root, stdio: 'inherit', env: appEnv });
+	app = spawn(process.execPath, [path.join(root, 'src', 'ops', 'serve.mjs')], { cwd: root, stdio: 'inherit', env: appEnv });
 	// One job worker beside the app (layer processing, placements, …); `npm run worker` adds more anywhere.
 	if (process.env.JOBS_WORKER !== 'false') {
 		worker = startWorkerProcess({ ...appEnv, NODE_ENV: 'production' });
@@ -130,8 +134,10 @@ try {
 	const { waitFor } = await import('./system');
 	await waitFor('the app to listen', () => portInUse(port), 30_000);
 	console.log(`\nCairnfield is running at ${origin}\n`);
-	console.log('Demo sign-ins (local development only):');
-	for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(11)} ${u.email.padEnd(28)} ${u.password}`);
+	if (demoUsers) {
+		console.log('Demo sign-ins (local development only):');
+		for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(11)} ${u.email.padEnd(28)} ${u.password}`);
+	}
 	console.log('\nPress Ctrl-C to stop the app and its MariaDB.\n');
 } catch (err) {
 	console.error(`npm start failed: ${err instanceof Error ? err.message : err}`);

@@ -9,6 +9,8 @@
  *   JOBS_LEASE_S        lease length in seconds (default 30)
  *   JOBS_POLL_MS        pause between polls when idle (default 1000)
  *   JOBS_STOP_GRACE_S   on SIGTERM, how long running jobs may finish before they are handed back (default 20)
+ *   JOBS_NICE           scheduling priority of the worker and its threads, 0..19 (default 10): on a
+ *                       machine shared with an app server, page requests go first
  */
 import os from 'node:os';
 import { createDb } from '../lib/server/db/knex';
@@ -31,6 +33,13 @@ export function runWorkerProcess(register: () => void): void {
 		process.exit(2);
 	}
 	register();
+	// Before any pool thread exists: on Linux new threads inherit the niceness of their creator.
+	const nice = Math.min(19, Math.max(0, Number(process.env.JOBS_NICE ?? 10) || 0));
+	try {
+		os.setPriority(nice);
+	} catch {
+		// Not permitted here: run at normal priority.
+	}
 	const concurrency = positive('JOBS_CONCURRENCY', os.availableParallelism());
 	// Per job: its heartbeat and its own queries; plus the claim loop.
 	const db = createDb(url, concurrency * 2 + 2);

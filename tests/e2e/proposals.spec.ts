@@ -119,6 +119,7 @@ test('in Chromium: run all three, compare, submit; the reviewer approves from th
 	const networkId = await demoNetworkWithInputs('Browser proposals');
 	const shots = path.resolve(import.meta.dirname, '../../test-results/proposals');
 	mkdirSync(shots, { recursive: true });
+	await page.setViewportSize({ width: 1440, height: 1000 });
 
 	await signInPage(page, demoUser('analyst').email, demoUser('analyst').password);
 	await page.goto(`/networks/${networkId}/proposals`);
@@ -139,7 +140,6 @@ test('in Chromium: run all three, compare, submit; the reviewer approves from th
 	// Arrows and σ-shaded zones are drawn on the revision maps.
 	await expect(page.locator('.cf-arrow').first()).toBeAttached();
 	await expect(page.locator('.cf-zone-sigma').first()).toBeAttached();
-	await page.setViewportSize({ width: 1440, height: 1000 });
 	await page.screenshot({ path: path.join(shots, 'compare-desk.png'), fullPage: true });
 
 	await page.getByLabel('Why this revision').fill('Zone-balanced: every sub-catchment gets probes in proportion, at a cost close to Lloyd’s.');
@@ -151,6 +151,8 @@ test('in Chromium: run all three, compare, submit; the reviewer approves from th
 	await phone.goto(page.url());
 	await expect(phone.getByTestId('comparison-maps').locator('figure')).toHaveCount(4, { timeout: 30_000 });
 	await phone.screenshot({ path: path.join(shots, 'compare-360.png'), fullPage: true });
+	// Nothing is wider than the phone's screen (wide tables scroll inside their own box).
+	expect(await phone.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(360);
 	await phone.close();
 
 	// Revisions are numbered as their runs finish: find the zone-balanced one in the list.

@@ -12,8 +12,23 @@ export function demoUser(role: DemoRole) {
 	return DEMO_USERS.find((u) => u.role === role)!;
 }
 
+/**
+ * Waits until the page's scripts have hydrated it (the root layout sets data-hydrated on <html>).
+ * Forms work and keep what was typed before that, but a test that types into a page still loading
+ * its scripts tests the network's speed, not the page.
+ */
+export async function waitForHydration(page: Page): Promise<void> {
+	await page.locator('html[data-hydrated]').waitFor({ state: 'attached' });
+}
+
+/** page.goto, then wait for hydration: use it before typing into the page. */
+export async function gotoHydrated(page: Page, url: string): Promise<void> {
+	await page.goto(url);
+	await waitForHydration(page);
+}
+
 export async function signInPage(page: Page, email: string, password: string): Promise<void> {
-	await page.goto('/signin');
+	await gotoHydrated(page, '/signin');
 	await page.getByLabel('E-mail').first().fill(email);
 	await page.getByLabel('Password').fill(password);
 	await page.getByRole('button', { name: 'Sign in', exact: true }).click();
@@ -87,4 +102,25 @@ export async function uploadLayerViaApi(ctx: APIRequestContext, networkId: numbe
 	const ready = (await res.json()).layer;
 	expect(ready.status).toBe('ready');
 	return ready;
+}
+
+/** Follows a job through the API until it ends; returns it (its state says how it ended). */
+export async function jobOutcome(ctx: APIRequestContext, networkId: number, jobId: number): Promise<{ state: string; result: unknown; error: string | null }> {
+	let job: { state: string; result: unknown; error: string | null } = { state: 'queued', result: null, error: null };
+	await expect
+		.poll(async () => {
+			job = ((await (await ctx.get(`/api/v1/networks/${networkId}/jobs/${jobId}`, { headers: { accept: 'application/json' } })).json()) as { job: typeof job }).job;
+			return ['finished', 'failed', 'cancelled'].includes(job.state);
+		}, { timeout: 60_000, intervals: [200, 500] })
+		.toBe(true);
+	return job;
+}
+
+/** Saves a recipe version through the API (202 with the job that computes its surface) and returns the version. */
+export async function saveRecipeViaApi(ctx: APIRequestContext, networkId: number, body: { name: string; definition: unknown }): Promise<{ id: number; version: number }> {
+	const res = await ctx.post(`/api/v1/networks/${networkId}/recipes`, { data: body, headers: { accept: 'application/json' } });
+	expect(res.status(), await res.text()).toBe(202);
+	const done = await jobOutcome(ctx, networkId, ((await res.json()) as { job: { id: number } }).job.id);
+	expect(done.state, done.error ?? '').toBe('finished');
+	return (done.result as { version: { id: number; version: number } }).version;
 }

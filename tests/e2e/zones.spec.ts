@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test, type APIRequestContext } from '@playwright/test';
-import { contextFor, demoDir, freshNetwork, demoUser, signInPage, uploadLayerViaApi } from './support';
+import { contextFor, demoDir, freshNetwork, demoUser, saveRecipeViaApi, signInPage, uploadLayerViaApi, gotoHydrated, waitForHydration } from './support';
 
 
 
@@ -21,18 +21,18 @@ test('the analyst uploads the study area, exclusions and zones, lays a 3 km grid
 	const u = demoUser('analyst');
 	await signInPage(page, u.email, u.password);
 	// Sensors first, so the zones have something to count.
-	await page.goto(`/networks/${networkId}/sensors`);
+	await gotoHydrated(page, `/networks/${networkId}/sensors`);
 	await page.locator('input[name="file"]').setInputFiles(path.join(demoDir, 'sensors.csv'));
 	await page.getByRole('button', { name: 'Import', exact: true }).click();
 	await expect(page.getByText('Imported 14 sensors from sensors.csv.')).toBeVisible();
 
-	await page.goto(`/networks/${networkId}/zones`);
+	await gotoHydrated(page, `/networks/${networkId}/zones`);
 	await expect(page.getByTestId('study-area-state')).toHaveText('Not outlined yet');
 	await page.getByLabel('Study area file (GeoJSON or KML, WGS 84)').setInputFiles(path.join(demoDir, 'study-area.geojson'));
 	await page.getByRole('button', { name: 'Upload study area' }).click();
 	await expect(page.getByText('Study area taken from study-area.geojson.')).toBeVisible();
 	await expect(page.getByTestId('study-area-state')).toHaveText('Outlined (1 polygon)');
-	await expect(page.getByText('EPSG:32632')).toBeVisible();
+	await expect(page.getByText('EPSG:32754')).toBeVisible();
 
 	await page.getByLabel(/Exclusions file/).setInputFiles(path.join(demoDir, 'exclusions.geojson'));
 	await page.getByRole('button', { name: 'Upload exclusions' }).click();
@@ -71,11 +71,11 @@ test('the analyst uploads the study area, exclusions and zones, lays a 3 km grid
 	// With an importance recipe (the demo soil moisture, inverted: drier = more important), the shares are measured.
 	const analyst: APIRequestContext = await contextFor('analyst');
 	const layer = await uploadLayerViaApi(analyst, networkId, { name: 'soil', kind: 'soil_moisture', fileName: 'soil-moisture.tif' }, readFileSync(path.join(demoDir, 'soil-moisture.tif')));
-	const rec = await analyst.post(`/api/v1/networks/${networkId}/recipes`, { data: { name: 'Dry', definition: { layers: [{ layerId: String(layer.id), transform: 'invert', weight: 1 }] } }, headers: { accept: 'application/json' } });
-	expect(rec.status(), await rec.text()).toBe(201);
-	const cur = await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId: (await rec.json()).version.id }, headers: { accept: 'application/json' } });
+	const rec = await saveRecipeViaApi(analyst, networkId, { name: 'Dry', definition: { layers: [{ layerId: String(layer.id), transform: 'invert', weight: 1 }] } });
+	const cur = await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId: rec.id }, headers: { accept: 'application/json' } });
 	expect(cur.status(), await cur.text()).toBe(200);
 	await page.reload();
+	await waitForHydration(page);
 	const uploadedSet = page.getByTestId('zone-set').filter({ hasText: 'uploaded polygons' });
 	await expect(uploadedSet.getByText('Shares not measured with the current importance recipe')).toBeVisible();
 	await uploadedSet.getByRole('button', { name: 'Measure shares' }).click();

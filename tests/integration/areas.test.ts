@@ -23,7 +23,7 @@ describe('study area and exclusions', () => {
 		const a = await setArea(t.db, id, m.userId, 1, parseAreaUpload('studyArea', demo('study-area.geojson'), 'study-area.geojson'));
 		expect(a.version).toBe(2);
 		expect((a.study_area as { type: string }).type).toBe('MultiPolygon');
-		expect(workingCrsOf(a)).toBe(32632);
+		expect(workingCrsOf(a)).toBe(32754);
 		const b = await setArea(t.db, id, m.userId, 2, parseAreaUpload('exclusions', demo('exclusions.geojson'), 'exclusions.geojson'));
 		expect(areaView(b).exclusions.map((f) => f.properties.name)).toEqual(['Vennarrow Water (reservoir)']);
 		await expect(setArea(t.db, id, m.userId, 2, { exclusions: null })).rejects.toMatchObject({ status: 409, code: 'stale' });

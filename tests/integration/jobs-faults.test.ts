@@ -167,7 +167,7 @@ describe('job workers when MariaDB restarts', () => {
 	it('the workers reconnect by themselves and finish every job, each result once', async () => {
 		const ids = await enqueueSteps(db, 8, 5, 200);
 		w = startWorkerProcess({ DATABASE_URL: url, STORAGE_DIR: storeDir, JOBS_KINDS: 'fault-steps', JOBS_POLL_MS: '100', JOBS_LEASE_S: '5', JOBS_CONCURRENCY: '2' }, ['ignore', 'ignore', 'inherit'], entry);
-		await until('a first job to finish', async () => (await db('jobs').whereIn('id', ids).where({ state: 'finished' }).count({ n: '*' }))[0].n >= 1);
+		await until('a first job to finish', async () => Number((await db('jobs').whereIn('id', ids).where({ state: 'finished' }).count({ n: '*' }))[0]?.n ?? 0) >= 1);
 		await server.stop();
 		await wait(1500); // the workers meet a dead server: refused connections, broken pool connections
 		server = await start();

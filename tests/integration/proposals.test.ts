@@ -12,7 +12,8 @@ import nodemailer from 'nodemailer';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { registerJobKind, runQueuedJobs, closeThreadPools } from '../../src/lib/server/jobs';
 import { proposalRunKind } from '../../src/lib/server/jobs/kinds/proposal-run';
-import { createProposal, getProposalView, getRevisionView } from '../../src/lib/server/services/proposals';
+import { createProposal, getProposalView, getRevisionView, listProposalViews } from '../../src/lib/server/services/proposals';
+import { DEMO_PROPOSALS, seedDemoProposals } from '../../seeds/demo-proposals';
 import { snapshotHash } from '../../src/lib/server/services/placement';
 import { getRunView, queueRuns, runNow, PROPOSAL_RUN, ALL_STRATEGIES } from '../../src/lib/server/services/runs';
 import { currentPlanView, decideRevision, networkHistory, submitRevision } from '../../src/lib/server/services/reviews';
@@ -205,8 +206,8 @@ describe('proposals, revisions, review and plan', () => {
 
 		// SMTP down: a port with nothing listening.
 		const port = await freePort();
-		const send = (transport: nodemailer.Transporter) => (row: { to_address: string; subject: string; text_body: string; html_body: string | null }) =>
-			transport.sendMail({ from: 'test@cairnfield.test', to: row.to_address, subject: row.subject, text: row.text_body, html: row.html_body ?? undefined });
+		const send = (transport: nodemailer.Transporter) => (row: { to_address: string; subject: string; text_body: string | null; html_body: string | null }) =>
+			transport.sendMail({ from: 'test@cairnfield.test', to: row.to_address, subject: row.subject, text: row.text_body ?? '', html: row.html_body ?? undefined });
 		const down = nodemailer.createTransport({ host: '127.0.0.1', port, ignoreTLS: true, connectionTimeout: 2000 });
 		expect(await deliverOutbox(t.db, send(down))).toBe(0);
 		let rows = await t.db('outbox_messages').whereIn('id', queued.map((m: { id: number }) => m.id));
@@ -242,4 +243,46 @@ describe('proposals, revisions, review and plan', () => {
 		expect(Number((await t.db('outbox_messages').count({ n: '*' }).first())!.n)).toBe(mail);
 		expect(Number((await t.db('audit_log').count({ n: '*' }).first())!.n)).toBe(audit);
 	}, 60_000);
+});
+
+describe('the demo stage of proposals', () => {
+	let t: TestDb;
+	let s: TestStore;
+	afterAll(async () => {
+		await s?.close();
+		await t?.drop();
+	});
+
+	it('leaves an approved plan, three revisions one per strategy, and one waiting for the reviewer; twice is once', async () => {
+		t = await createTestDatabase();
+		s = await fsTestStore();
+		const a = await makeMember(t.db, 'analyst');
+		const r = await makeMember(t.db, 'reviewer', a.organisationId);
+		const { network } = await placementNetwork(t.db, s.store, a.organisationId, a.userId, 'Demo stage');
+		const actors = { networkId: network.id, analyst: { id: a.userId, name: 'Analyst' }, reviewer: { id: r.userId, name: 'Reviewer' } };
+		const lines: string[] = [];
+		await seedDemoProposals(t.db, s.store, actors, ORIGIN, (l) => lines.push(l));
+		const proposals = await listProposalViews(t.db, network.id);
+		const plan = proposals.find((p) => p.title === DEMO_PROPOSALS.plan.title)!;
+		const spring = proposals.find((p) => p.title === DEMO_PROPOSALS.spring.title)!;
+		expect(plan.revisions.map((x) => x.state)).toEqual(['approved']);
+		expect((await currentPlanView(t.db, network.id))!.revisionId).toBe(plan.revisions[0].id);
+		expect(spring.revisions.map((x) => x.strategy)).toEqual(['lloyd', 'range-limited', 'zone-balanced']);
+		expect(spring.revisions.map((x) => x.state)).toEqual(['draft', 'draft', 'submitted']);
+		expect(spring.choiceNote).toBe(DEMO_PROPOSALS.spring.note);
+		// The reviewer's e-mail waits in the outbox.
+		expect(await t.db('outbox_messages').where({ to_address: r.email, status: 'pending' }).andWhere('subject', 'like', 'Review wanted: Spring redeployment%')).toHaveLength(1);
+		await seedDemoProposals(t.db, s.store, actors, ORIGIN, (l) => lines.push(l));
+		expect(await t.db('revisions').where({ network_id: network.id })).toHaveLength(4);
+		expect(lines).toEqual([]);
+	}, 120_000);
+
+	it('says so and does nothing while the network has no recipe or sensors', async () => {
+		const a = await makeMember(t.db, 'analyst');
+		const id = (await t.db('networks').insert({ organisation_id: a.organisationId, slug: 'empty', name: 'Empty', description: '', public_text: '' }))[0];
+		const lines: string[] = [];
+		await seedDemoProposals(t.db, s.store, { networkId: id, analyst: { id: a.userId, name: 'A' }, reviewer: { id: a.userId, name: 'A' } }, ORIGIN, (l) => lines.push(l));
+		expect(lines[0]).toMatch(/skipped/);
+		expect(await t.db('proposals').where({ network_id: id })).toHaveLength(0);
+	});
 });

@@ -33,6 +33,16 @@ export interface Network {
 	updatedAt: string;
 }
 
+/** A network in a list: no geometry (getNetwork has it). */
+export type NetworkSummary = Omit<Network, 'studyArea' | 'exclusions'> & { hasStudyArea: boolean };
+export interface NetworkList {
+	networks: NetworkSummary[];
+	total: number;
+	page: number;
+	pages: number;
+	perPage: number;
+}
+
 export interface NetworkPatch {
 	version: number;
 	name?: string;
@@ -109,7 +119,7 @@ export interface MapLegendStop {
 }
 
 export interface MapBackdrop {
-	/** 'importance' = the network's current importance surface; 'layer' = a layer preview. */
+	/** 'importance' = the network's current importance map; 'layer' = a layer preview. */
 	kind: 'importance' | 'layer';
 	label: string;
 	url: string;
@@ -391,13 +401,20 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 			await new Promise((r) => setTimeout(r, opts.intervalMs ?? 500));
 		}
 	}
+	async function savedVersion(networkId: number, queued: Promise<{ job: Job }>): Promise<RecipeVersion> {
+		const { job } = await queued;
+		const done = await waitForJob(networkId, job.id, { intervalMs: 250 });
+		if (done.state !== 'finished') throw new ApiClientError(422, done.state === 'cancelled' ? 'cancelled' : 'recipe_failed', done.error ?? 'The version could not be saved.', { layers: done.error ?? '' });
+		return (done.result as { version: RecipeVersion }).version;
+	}
 	return {
 		// Jobs
 		getJob,
 		waitForJob,
 		cancelJob: (networkId: number, jobId: number) => call<{ job: Job }>('DELETE', `/networks/${networkId}/jobs/${jobId}`).then((r) => r.job),
 		// (jobs calls end)
-		listNetworks: () => call<{ networks: Network[] }>('GET', '/networks').then((r) => r.networks),
+		listNetworks: (query: { page?: number; perPage?: 10 | 25 | 50 | 100 } = {}) =>
+			call<NetworkList>('GET', `/networks?${new URLSearchParams(Object.entries(query).map(([k, v]) => [k, String(v)]))}`),
 		getNetwork: (id: number) => call<{ network: Network }>('GET', `/networks/${id}`).then((r) => r.network),
 		createNetwork: (input: { name: string; description?: string; crsEpsg?: number | null; publicText?: string }) =>
 			call<{ network: Network }>('POST', '/networks', input).then((r) => r.network),
@@ -429,12 +446,18 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		listRecipes: (networkId: number) => call<{ recipes: Recipe[]; currentVersionId: number | null }>('GET', `/networks/${networkId}/recipes`),
 		getRecipe: (networkId: number, recipeId: number) => call<{ recipe: Recipe }>('GET', `/networks/${networkId}/recipes/${recipeId}`).then((r) => r.recipe),
 		listRecipeVersions: (networkId: number, recipeId: number) => call<{ versions: RecipeVersion[] }>('GET', `/networks/${networkId}/recipes/${recipeId}/versions`).then((r) => r.versions),
-		createRecipe: (networkId: number, input: { name: string; definition: RecipeDefinition; note?: string }) =>
-			call<{ version: RecipeVersion }>('POST', `/networks/${networkId}/recipes`, input).then((r) => r.version),
+		/** Both queue a job that saves the version with its importance surface (202 {job}); followed here until the version exists. */
+		createRecipe: (networkId: number, input: { name: string; definition: RecipeDefinition; note?: string }) => savedVersion(networkId, call<{ job: Job }>('POST', `/networks/${networkId}/recipes`, input)),
 		addRecipeVersion: (networkId: number, recipeId: number, input: { definition: RecipeDefinition; note?: string }) =>
-			call<{ version: RecipeVersion }>('POST', `/networks/${networkId}/recipes/${recipeId}/versions`, input).then((r) => r.version),
+			savedVersion(networkId, call<{ job: Job }>('POST', `/networks/${networkId}/recipes/${recipeId}/versions`, input)),
 		deleteRecipe: (networkId: number, recipeId: number) => call<null>('DELETE', `/networks/${networkId}/recipes/${recipeId}`),
-		previewRecipe: (networkId: number, definition: RecipeDefinition) => call<{ preview: RecipePreview }>('POST', `/networks/${networkId}/recipes/preview`, { definition }).then((r) => r.preview),
+		/** Queues the preview job (202 {job}), follows it and resolves with the preview; 422 with the reason if it failed. */
+		previewRecipe: async (networkId: number, definition: RecipeDefinition, opts: { onProgress?: (job: Job) => void } = {}) => {
+			const { job } = await call<{ job: Job }>('POST', `/networks/${networkId}/recipes/preview`, { definition });
+			const done = await waitForJob(networkId, job.id, { intervalMs: 250, onProgress: opts.onProgress });
+			if (done.state !== 'finished') throw new ApiClientError(422, done.state === 'cancelled' ? 'cancelled' : 'preview_failed', done.error ?? 'The preview could not be computed.');
+			return (done.result as { preview: RecipePreview }).preview;
+		},
 		useRecipeVersion: (networkId: number, versionId: number) => call<{ versionId: number }>('POST', `/networks/${networkId}/recipes/current`, { versionId }),
 		// ---- (layers and recipes end) ----
 		// ---- Sensors, study area and zones ----
@@ -456,7 +479,14 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		setArea: (networkId: number, input: { version: number; studyArea?: unknown; exclusions?: unknown[] }) => call<{ area: NetworkArea }>('POST', `/networks/${networkId}/area`, input).then((r) => r.area),
 		listZoneSets: (networkId: number, opts: { geometry?: boolean } = {}) => call<{ zoneSets: ZoneSet[] }>('GET', `/networks/${networkId}/zone-sets${opts.geometry ? '?geometry=1' : ''}`).then((r) => r.zoneSets),
 		getZoneSet: (networkId: number, zoneSetId: number) => call<{ zoneSet: ZoneSet }>('GET', `/networks/${networkId}/zone-sets/${zoneSetId}`).then((r) => r.zoneSet),
-		createZoneSet: (networkId: number, input: ZoneSetInput) => call<{ zoneSet: ZoneSet }>('POST', `/networks/${networkId}/zone-sets`, input).then((r) => r.zoneSet),
+		/** Computed zones come from a job (202 {job}): followed here until the zone set exists. */
+		createZoneSet: async (networkId: number, input: ZoneSetInput) => {
+			const r = await call<{ zoneSet?: ZoneSet; job?: Job }>('POST', `/networks/${networkId}/zone-sets`, input);
+			if (r.zoneSet) return r.zoneSet;
+			const done = await waitForJob(networkId, r.job!.id);
+			if (done.state !== 'finished') throw new ApiClientError(422, 'zones_failed', done.error ?? 'The zones could not be computed.', { k: done.error ?? '' });
+			return call<{ zoneSet: ZoneSet }>('GET', `/networks/${networkId}/zone-sets/${(done.result as { zoneSetId: number }).zoneSetId}`).then((x) => x.zoneSet);
+		},
 		useZoneSet: (networkId: number, zoneSetId: number, inUse = true) => call<{ zoneSet: ZoneSet }>('POST', `/networks/${networkId}/zone-sets/${zoneSetId}`, { inUse }).then((r) => r.zoneSet),
 		deleteZoneSet: (networkId: number, zoneSetId: number) => call<null>('DELETE', `/networks/${networkId}/zone-sets/${zoneSetId}`),
 		// ---- (sensors and zones end) ----

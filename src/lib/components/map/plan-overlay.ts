@@ -75,8 +75,26 @@ export function arrowDegrees(from: MapPoint, to: MapPoint): number {
 	return (-Math.atan2(to[1] - from[1], to[0] - from[0]) * 180) / Math.PI;
 }
 
-/** σ as a signed percentage with one decimal ("+4.2 %", "−3.0 %"). */
+/** σ as a signed percentage with one decimal ("+4.2 %", "−3.0 %"; a no-break space before %). */
 export function formatSigma(sigma: number): string {
 	const v = (sigma * 100).toFixed(1);
-	return `${sigma < 0 ? '−' : '+'}${v.replace('-', '')} %`;
+	return `${sigma < 0 ? '−' : '+'}${v.replace('-', '')}\u00a0%`;
+}
+
+/**
+ * The box [xmin, ymin, xmax, ymax] that frames a plan: the study area and every sensor, site and
+ * arrow end, padded by 4 % (at least 200 m) on each side; null when there is nothing to frame.
+ */
+export function planBounds(o: PlanOverlay, studyArea: readonly (readonly MapPoint[])[]): [number, number, number, number] | null {
+	const pts: MapPoint[] = [...studyArea.flat(), ...o.standing.map((s) => s.at), ...o.sites.map((s) => s.at), ...o.arrows.flatMap((a) => [a.from, a.to])];
+	if (pts.length === 0) return null;
+	let [x0, y0, x1, y1] = [Infinity, Infinity, -Infinity, -Infinity];
+	for (const [x, y] of pts) {
+		x0 = Math.min(x0, x);
+		y0 = Math.min(y0, y);
+		x1 = Math.max(x1, x);
+		y1 = Math.max(y1, y);
+	}
+	const pad = Math.max(200, 0.04 * Math.max(x1 - x0, y1 - y0));
+	return [x0 - pad, y0 - pad, x1 + pad, y1 + pad];
 }

@@ -23,20 +23,20 @@ export const STATE_BADGE: Record<RevisionStateName | 'empty', string> = {
 export const STRATEGY_LABELS: Record<string, string> = { lloyd: 'Lloyd', 'range-limited': 'Range-limited', 'zone-balanced': 'Zone-balanced' };
 
 export function percent(v: number | null | undefined, digits = 1): string {
-	return v === null || v === undefined || !Number.isFinite(v) ? '—' : `${(v * 100).toFixed(digits)} %`;
+	return v === null || v === undefined || !Number.isFinite(v) ? '—' : `${(v * 100).toFixed(digits)}\u00a0%`;
 }
 
 /** Metres with a thin-space thousands separator; kilometres with one decimal from 10 km. */
 export function distance(m: number | null | undefined): string {
 	if (m === null || m === undefined || !Number.isFinite(m)) return '—';
-	if (m >= 10_000) return `${(m / 1000).toFixed(1)} km`;
-	return `${Math.round(m).toString().replace(/\B(?=(\d{3})+(?!\d))/g, '\u2009')} m`;
+	if (m >= 10_000) return `${(m / 1000).toFixed(1)}\u00a0km`;
+	return `${Math.round(m).toString().replace(/\B(?=(\d{3})+(?!\d))/g, '\u2009')}\u00a0m`;
 }
 
 /** Locational cost H (m²) in km² with three significant figures. */
 export function cost(h: number | null | undefined): string {
 	if (h === null || h === undefined || !Number.isFinite(h)) return '—';
-	return `${Number((h / 1e6).toPrecision(3))} km²`;
+	return `${Number((h / 1e6).toPrecision(3))}\u00a0km²`;
 }
 
 export function when(iso: string | null | undefined): string {

@@ -5,7 +5,11 @@ export const JOB_VIEW_PERMISSION: Permission = 'layer.view';
 
 const EDIT: Record<string, Permission> = {
 	'layer-processing': 'layer.edit',
-	placement: 'recipe.edit'
+	placement: 'recipe.edit',
+	'recipe-preview': 'recipe.edit',
+	zones: 'zone.edit',
+	'recipe-version': 'recipe.edit',
+	'proposal-run': 'proposal.edit'
 };
 
 export function jobEditPermission(kind: string): Permission {

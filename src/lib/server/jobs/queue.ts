@@ -190,45 +190,54 @@ const GIVE_UP = 'The worker running this job stopped before it finished, on ever
 
 /**
  * Claims the next due job of one of `kinds`: a queued job whose run_after has come, or a running
- * job whose lease ran out (its worker died). Locked rows are skipped, so concurrent workers never
- * claim the same job. Returns null when nothing is due.
+ * job whose lease ran out (its worker died). The row is locked with SELECT … FOR UPDATE SKIP LOCKED
+ * by its key and checked again under the lock, so concurrent workers never claim the same job and
+ * never wait for each other. Returns null when nothing is due.
  */
 export async function claimJob(db: Knex, workerId: string, kinds: string[], leaseMs: number): Promise<Claim | null> {
 	if (kinds.length === 0) return null;
-	for (let tries = 0; tries < 10; tries++) {
-		const outcome = await db.transaction(async (trx) => {
-			const [rows] = (await trx.raw(
-				`SELECT id, state, attempts, max_attempts FROM jobs
-				 WHERE kind IN (${kinds.map(() => '?').join(',')})
-				   AND ((state = 'queued' AND run_after <= CURRENT_TIMESTAMP(3))
-				     OR (state = 'running' AND lease_until < CURRENT_TIMESTAMP(3)))
-				 ORDER BY priority DESC, id
-				 LIMIT 1
-				 FOR UPDATE SKIP LOCKED`,
-				kinds
-			)) as [Array<{ id: number; state: JobState; attempts: number; max_attempts: number }>];
-			const r = rows[0];
-			if (!r) return { claim: null, again: false };
-			if (r.state === 'running' && r.attempts >= r.max_attempts) {
-				// Its worker died on the last allowed attempt: give up with a message a person can read.
-				await trx('jobs').where({ id: r.id }).update({ state: 'failed', error: GIVE_UP, lease_owner: null, lease_until: null, finished_at: trx.raw('CURRENT_TIMESTAMP(3)'), updated_at: trx.raw('CURRENT_TIMESTAMP(3)') });
-				await runFailedHooks(trx, (await findJob(trx, r.id))!, { state: 'failed', message: GIVE_UP });
-				return { claim: null, again: true };
-			}
-			const token = `${workerId}/${randomBytes(6).toString('hex')}`;
-			await trx('jobs')
-				.where({ id: r.id })
-				.update({
-					state: 'running',
-					attempts: trx.raw('attempts + 1'),
-					lease_owner: token,
-					lease_until: trx.raw('CURRENT_TIMESTAMP(3) + INTERVAL ? MICROSECOND', [leaseMs * 1000]),
-					started_at: trx.raw('COALESCE(started_at, CURRENT_TIMESTAMP(3))'),
-					updated_at: trx.raw('CURRENT_TIMESTAMP(3)')
-				});
-			return { claim: { job: (await findJob(trx, r.id))!, token }, again: false };
-		});
-		if (outcome.claim || !outcome.again) return outcome.claim;
+	const due = `((state = 'queued' AND run_after <= CURRENT_TIMESTAMP(3)) OR (state = 'running' AND lease_until < CURRENT_TIMESTAMP(3)))`;
+	for (let round = 0; round < 5; round++) {
+		// Candidates first, without locks: a locking scan would also lock the rows it only looked
+		// at, and concurrent workers would then skip jobs nobody holds.
+		const [candidates] = (await db.raw(
+			`SELECT id FROM jobs WHERE kind IN (${kinds.map(() => '?').join(',')}) AND ${due} ORDER BY priority DESC, id LIMIT 8`,
+			kinds
+		)) as [Array<{ id: number }>];
+		if (candidates.length === 0) return null;
+		let gaveUp = false;
+		for (const { id } of candidates) {
+			const outcome = await db.transaction(async (trx) => {
+				// Lock this one row by its key, skipping it if another worker holds it, and check it is still due.
+				const [rows] = (await trx.raw(`SELECT id, state, attempts, max_attempts FROM jobs WHERE id = ? AND ${due} FOR UPDATE SKIP LOCKED`, [id])) as [
+					Array<{ id: number; state: JobState; attempts: number; max_attempts: number }>
+				];
+				const r = rows[0];
+				if (!r) return null;
+				if (r.state === 'running' && r.attempts >= r.max_attempts) {
+					// Its worker died on the last allowed attempt: give up with a message a person can read.
+					await trx('jobs').where({ id: r.id }).update({ state: 'failed', error: GIVE_UP, lease_owner: null, lease_until: null, finished_at: trx.raw('CURRENT_TIMESTAMP(3)'), updated_at: trx.raw('CURRENT_TIMESTAMP(3)') });
+					await runFailedHooks(trx, (await findJob(trx, r.id))!, { state: 'failed', message: GIVE_UP });
+					return 'gave-up' as const;
+				}
+				const token = `${workerId}/${randomBytes(6).toString('hex')}`;
+				await trx('jobs')
+					.where({ id: r.id })
+					.update({
+						state: 'running',
+						attempts: trx.raw('attempts + 1'),
+						lease_owner: token,
+						lease_until: trx.raw('CURRENT_TIMESTAMP(3) + INTERVAL ? MICROSECOND', [leaseMs * 1000]),
+						started_at: trx.raw('COALESCE(started_at, CURRENT_TIMESTAMP(3))'),
+						updated_at: trx.raw('CURRENT_TIMESTAMP(3)')
+					});
+				return { job: (await findJob(trx, r.id))!, token };
+			});
+			if (outcome === 'gave-up') gaveUp = true;
+			else if (outcome) return outcome;
+		}
+		// Every candidate was taken by others (or given up): look again only if something changed.
+		if (!gaveUp && candidates.length < 8) return null;
 	}
 	return null;
 }

@@ -12,7 +12,7 @@ let running: Promise<number> | null = null;
 let timer: NodeJS.Timeout | null = null;
 
 export async function deliverPending(limit = 20): Promise<number> {
-	return deliverOutbox(getDb(), (row) => getTransport().sendMail({ from: mailFrom(), to: row.to_address, subject: row.subject, text: row.text_body, html: row.html_body ?? undefined }), limit);
+	return deliverOutbox(getDb(), (row) => getTransport().sendMail({ from: mailFrom(), to: row.to_address, subject: row.subject, text: row.text_body ?? '', html: row.html_body ?? undefined }), limit);
 }
 
 /** Starts a delivery pass now (coalesced with one already running). */

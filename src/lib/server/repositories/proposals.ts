@@ -98,19 +98,7 @@ export async function listRevisionSummaries(db: Db, networkId: number, proposalI
 	return rows.map(parseRevision);
 }
 
-export interface NewRevision {
-	proposal_id: number;
-	network_id: number;
-	strategy: RevisionRow['strategy'];
-	author_id: number | null;
-	job_id: number | null;
-	engine_version: string;
-	inputs: unknown;
-	parameters: unknown;
-	outputs: unknown;
-	metrics: unknown;
-	content_hash: string;
-}
+export type NewRevision = Pick<RevisionRow, 'proposal_id' | 'network_id' | 'strategy' | 'author_id' | 'job_id' | 'engine_version' | 'inputs' | 'parameters' | 'outputs' | 'metrics' | 'content_hash'>;
 
 /** Inserts a revision with the next number of its proposal (the proposal row is locked for it). */
 export async function insertRevision(db: Db, r: NewRevision): Promise<number> {

@@ -7,7 +7,7 @@
  * layer (smallest cell area in metres; ties: the first listed), coarsened by an integer factor
  * when it would exceed MAX_SURFACE_CELLS. Layers in another CRS are reprojected (nearest
  * neighbour, reprojectToGrid), layers in the same CRS are aligned (alignToGrid). Cells outside a
- * layer's footprint are nodata, and nodata in any layer is nodata in the surface (combineLayers).
+ * layer's extent are nodata, and nodata in any layer is nodata in the surface (combineLayers).
  *
  * Stored surface ("surface_key" of a version): a compact binary, see encodeSurface.
  */
@@ -168,6 +168,16 @@ export interface RecipePreview {
 	max: number;
 	mean: number;
 	legend: LegendStop[];
+}
+
+/**
+ * The cheap checks of a recipe, for a request that queues its computation: the definition parses
+ * and every layer it names exists in the network and is ready. Throws ServiceError 400/422.
+ */
+export async function checkRecipe(db: Knex, networkId: number, definition: unknown): Promise<Recipe> {
+	const recipe = parseOrFail(definition);
+	for (const id of new Set(recipe.layers.map((l) => l.layerId))) await readyLayer(db, networkId, id);
+	return recipe;
 }
 
 /** The importance map of a recipe, not saved: a PNG (moorland ramp over 0..1) and its figures. */

@@ -18,6 +18,7 @@ import { Readable } from 'node:stream';
 import type { Knex } from 'knex';
 import { z } from 'zod';
 import { LayerRejected } from '../layers/errors';
+import { decodeLayer } from '../layers/decode';
 import { renderPreview } from '../layers/preview';
 import { newObjectKey, type ObjectStore } from '../storage/object-store';
 import { recordAudit } from '../repositories/audit';
@@ -33,12 +34,6 @@ const LAYER_PROCESSING = 'layer-processing';
 /** inspect.ts's default pixel limit (25 million), repeated so that this module loads without geotiff. */
 const DEFAULT_MAX_PIXELS = 25_000_000;
 
-/**
- * The GeoTIFF reader is loaded on first use, not with this module: the geotiff package starts a
- * worker shim when imported inside a worker thread, which is where SvelteKit analyses the build.
- */
-const inspectModule = () => import('../layers/inspect');
-
 export const LAYER_KINDS = ['soil_moisture', 'vegetation_index', 'elevation', 'other'] as const;
 export const LAYER_PLATFORMS = ['satellite', 'aircraft', 'drone', 'model', 'other'] as const;
 export const DEFAULT_LAYER_MAX_BYTES = 500 * 1024 * 1024;
@@ -46,6 +41,8 @@ export const DEFAULT_LAYER_MAX_BYTES = 500 * 1024 * 1024;
 export interface LayerLimits {
 	maxBytes: number;
 	maxPixels: number;
+	/** Heap limit of the worker that decodes an upload (MB); default 512. */
+	decodeHeapMb?: number;
 }
 
 function positiveInt(value: string | undefined, fallback: number, name: string): number {
@@ -56,7 +53,11 @@ function positiveInt(value: string | undefined, fallback: number, name: string):
 }
 
 export function layerLimits(env: Record<string, string | undefined>): LayerLimits {
-	return { maxBytes: positiveInt(env.LAYER_MAX_BYTES, DEFAULT_LAYER_MAX_BYTES, 'LAYER_MAX_BYTES'), maxPixels: positiveInt(env.LAYER_MAX_PIXELS, DEFAULT_MAX_PIXELS, 'LAYER_MAX_PIXELS') };
+	return {
+		maxBytes: positiveInt(env.LAYER_MAX_BYTES, DEFAULT_LAYER_MAX_BYTES, 'LAYER_MAX_BYTES'),
+		maxPixels: positiveInt(env.LAYER_MAX_PIXELS, DEFAULT_MAX_PIXELS, 'LAYER_MAX_PIXELS'),
+		decodeHeapMb: positiveInt(env.LAYER_DECODE_HEAP_MB, 512, 'LAYER_DECODE_HEAP_MB')
+	};
 }
 
 /** The upload is larger than LAYER_MAX_BYTES (answered with 413). */
@@ -156,13 +157,24 @@ export interface LayerAnalysis {
  * worker thread.
  */
 export async function analyseLayerBytes(bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }): Promise<LayerAnalysis> {
-	const { loadLayer } = await inspectModule();
+	// The GeoTIFF reader is loaded on first use (see DEVELOPERS.md: geotiff and build-time analysis).
+	const { loadLayer } = await import('../layers/inspect');
 	const { metadata, band } = await loadLayer(bytes, { band: opts.band, name: opts.name, maxPixels: opts.maxPixels });
 	const preview = renderPreview(band);
 	return { metadata, png: preview.png };
 }
 
-/** Runs analyseLayerBytes somewhere (in this thread by default; the job passes a worker thread). */
+/**
+ * analyseLayerBytes with the decoding in a worker thread of its own, bounded by `heapMb`
+ * (decodeLayer: a decompression bomb ends that worker, not this process). The default of
+ * processLayer; the layer-processing job passes its pool thread instead.
+ */
+export async function decodeAndAnalyse(bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }, heapMb?: number): Promise<LayerAnalysis> {
+	const { metadata, band } = await decodeLayer(bytes, opts, { heapMb });
+	return { metadata, png: renderPreview(band).png };
+}
+
+/** Runs analyseLayerBytes somewhere: a decoding thread by default, the job's pool thread in a worker. */
 export type LayerAnalyser = (bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }) => Promise<LayerAnalysis>;
 
 /**
@@ -178,6 +190,7 @@ export async function storeLayerUpload(db: Knex, store: ObjectStore, ctx: Upload
 		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
 	}
 	const m = parsed.data;
+	const storageKey = newObjectKey('layers');
 	const id = await insertLayer(db, {
 		network_id: ctx.networkId,
 		name: m.name,
@@ -187,9 +200,9 @@ export async function storeLayerUpload(db: Knex, store: ObjectStore, ctx: Upload
 		platform: m.platform,
 		band: m.band,
 		original_name: m.fileName,
-		created_by: ctx.actorId
+		created_by: ctx.actorId,
+		storage_key: storageKey
 	});
-	const storageKey = newObjectKey('layers');
 	try {
 		const counter = { bytes: 0 };
 		const { size } = await store.put(storageKey, Readable.from(limited(body, limits.maxBytes, counter)), { contentType: 'image/tiff' });
@@ -207,7 +220,7 @@ export async function storeLayerUpload(db: Knex, store: ObjectStore, ctx: Upload
  * entry is written with it. A refused raster removes the row and the stored objects (a refused
  * upload leaves nothing behind) and throws ServiceError 422 with the reason.
  */
-export async function processLayer(db: Knex, store: ObjectStore, ctx: UploadContext, layerId: number, limits: LayerLimits, analyse: LayerAnalyser = analyseLayerBytes): Promise<LayerView> {
+export async function processLayer(db: Knex, store: ObjectStore, ctx: UploadContext, layerId: number, limits: LayerLimits, analyse: LayerAnalyser = (b, o) => decodeAndAnalyse(b, o, limits.decodeHeapMb)): Promise<LayerView> {
 	const row = await findLayer(db, ctx.networkId, layerId);
 	if (!row) throw new ServiceError(404, 'not_found', 'No such layer.');
 	if (row.status === 'ready') return layerView(row);

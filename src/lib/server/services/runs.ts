@@ -14,7 +14,7 @@ import { findSensorType } from '../repositories/sensor-types';
 import { findZoneSet, networkZoneSetId } from '../repositories/zones';
 import { recordAudit } from '../repositories/audit';
 import { STRATEGIES, type HistoryEntry, type Strategy } from '../../engine/types';
-import { directRunner, executePlacement, preparePlacement, revisionSnapshot, runInput, type RunInput } from './placement';
+import { directRunner, executePlacement, preparePlacement, revisionSnapshot, runInput, type RevisionSnapshot, type RunInput } from './placement';
 import type { ObjectStore } from '../storage/object-store';
 import { createRevisionFromResult, getProposal } from './proposals';
 import { ServiceError } from './errors';
@@ -100,6 +100,11 @@ export const ALL_STRATEGIES = STRATEGIES;
 
 function progressOf(job: JobRow, params: RunInput): RunProgress {
 	const p = (job.progress ?? {}) as Partial<RunProgress>;
+	// Progress is stored at most about once a second: a finished run's last figures are its result's.
+	const result = job.state === 'finished' ? (job.result as Partial<RevisionSnapshot> | null) : null;
+	if (result?.metrics && result.outputs) {
+		return { iteration: result.metrics.iterations, maxIterations: params.maxIterations, cost: result.metrics.cost, coverage: result.metrics.coverage, history: result.outputs.history };
+	}
 	return {
 		iteration: Number(p.iteration ?? 0),
 		maxIterations: Number(p.maxIterations ?? params.maxIterations),

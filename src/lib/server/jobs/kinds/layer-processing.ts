@@ -6,8 +6,8 @@
  */
 import { LayerRejected } from '../../layers/errors';
 import { layerLimits, processLayer, type LayerAnalysis } from '../../services/layers';
-import { ServiceError } from '../../services/errors';
-import { JobFailure, type JobKind } from '../registry';
+import type { JobKind } from '../registry';
+import { refusalsFail } from './refusals';
 
 export interface LayerProcessingPayload {
 	networkId: number;
@@ -29,16 +29,13 @@ export const layerProcessingKind: JobKind<LayerProcessingPayload, { layerId: num
 	async handler({ payload, db, store, runInThread, reportProgress }) {
 		reportProgress({ step: 'inspecting' });
 		const limits = layerLimits(process.env);
-		try {
-			await processLayer(db, store, payload, payload.layerId, limits, async (bytes, opts) => {
+		await refusalsFail(() =>
+			processLayer(db, store, payload, payload.layerId, limits, async (bytes, opts) => {
 				const reply = await runInThread<AnalyseReply>('analyseLayer', { bytes, ...opts });
 				if (!reply.ok) throw new LayerRejected(reply.code as LayerRejected['code'], reply.message);
 				return { metadata: reply.metadata, png: reply.png };
-			});
-		} catch (e) {
-			if (e instanceof ServiceError) throw new JobFailure(e.message);
-			throw e;
-		}
+			})
+		);
 		reportProgress({ step: 'done' });
 		return { layerId: payload.layerId };
 	},

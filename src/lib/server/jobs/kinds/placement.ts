@@ -12,9 +12,9 @@ import { parseEpsg, transformer } from '../../../geo/crs';
 import { projectRings } from '../../../geo/geojson';
 import { findNetwork } from '../../repositories/networks';
 import { findZoneSet, listZones } from '../../repositories/zones';
-import { ServiceError } from '../../services/errors';
 import { importanceForZones } from '../../services/zones';
 import { JobFailure, type JobKind } from '../registry';
+import { refusalsFail } from './refusals';
 import type { PlaceTaskInput } from '../threads/tasks';
 
 export interface PlacementPayload {
@@ -38,13 +38,7 @@ export const placementKind: JobKind<PlacementPayload, PlacementResult> = {
 	async handler({ payload, db, store, runInThread, reportProgress, signal }) {
 		const network = await findNetwork(db, payload.networkId);
 		if (!network) throw new JobFailure('The network no longer exists.');
-		let importance;
-		try {
-			importance = await importanceForZones(db, store, network);
-		} catch (e) {
-			if (e instanceof ServiceError) throw new JobFailure(e.message);
-			throw e;
-		}
+		const importance = await refusalsFail(() => importanceForZones(db, store, network));
 		if (!importance) throw new JobFailure('The network has no importance recipe chosen yet.');
 		const grid = importance.grid;
 		let zones: ZoneMap | null = null;
