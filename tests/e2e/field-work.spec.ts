@@ -12,7 +12,7 @@ import { expect, test, type APIRequestContext } from '@playwright/test';
 import type { Knex } from 'knex';
 import { createDb } from '../../src/lib/server/db/knex';
 import { createObjectStore } from '../../src/lib/server/storage/create-object-store';
-import { DEMO_ORGANISATION, DEMO_USERS } from '../../seeds/demo';
+import { DEMO_NETWORK, DEMO_ORGANISATION, DEMO_USERS } from '../../seeds/demo';
 import { DEMO_FIELD, seedDemoField } from '../../seeds/demo-field';
 import { placementNetwork } from '../helpers/placement-network';
 import { checkGpx } from '../helpers/gpx-rules';
@@ -209,4 +209,20 @@ test('the public map needs no sign-in and shows nothing private, in its HTML or 
 	expect((await anon.get('/api/v1/public/networks/no-such-network')).status()).toBe(404);
 	await db('networks').where({ id: networkId }).update({ publication: 'published' });
 	await anon.dispose();
+});
+
+test('the demo on a fresh start: the demo technician has a route with tasks done and one blocked, and the public map works', async () => {
+	const tech = await contextFor('technician');
+	const networks = (await (await tech.get('/api/v1/networks')).json()).networks as { id: number; slug: string }[];
+	const demo = networks.find((n) => n.slug === DEMO_NETWORK.slug)!;
+	const res = await tech.get(`/api/v1/networks/${demo.id}/tasks?assignee=me`);
+	const tasks = (await res.json()).tasks as Task[];
+	expect(tasks.filter((t) => t.state === 'done').length).toBeGreaterThanOrEqual(2);
+	expect(tasks.filter((t) => t.state === 'blocked')).toHaveLength(1);
+	const anon = await contextFor(null);
+	const map = await anon.get(`/api/v1/public/networks/${DEMO_NETWORK.slug}`);
+	expect(map.status()).toBe(200);
+	expect((await map.json()).plan.approvedAt).toEqual(expect.any(String));
+	await anon.dispose();
+	await tech.dispose();
 });
