@@ -16,7 +16,7 @@ import { DEMO_NETWORK, DEMO_ORGANISATION, DEMO_USERS } from '../../seeds/demo';
 import { DEMO_FIELD, seedDemoField } from '../../seeds/demo-field';
 import { placementNetwork } from '../helpers/placement-network';
 import { checkGpx } from '../helpers/gpx-rules';
-import { contextFor, demoDir, demoUser, linkIn, signInPage, waitForMail } from './support';
+import { contextFor, demoDir, demoUser, gotoHydrated, linkIn, signInPage, waitForMail } from './support';
 
 let db: Knex;
 let networkId: number;
@@ -128,7 +128,7 @@ test('in a 360 px window the technician reads the cautions, sees the route in or
 	const page = await context.newPage();
 	const u = demoUser('technician');
 	await signInPage(page, u.email, u.password);
-	await page.goto(`/networks/${networkId}/field`);
+	await gotoHydrated(page, `/networks/${networkId}/field`);
 	await expect(page.getByTestId('cautions')).toContainText('utility-locate service');
 	await page.screenshot({ path: '/tmp/field-360-cautions.png', fullPage: false });
 	await page.getByRole('button', { name: 'I have read the cautions' }).click();

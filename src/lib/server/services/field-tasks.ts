@@ -53,6 +53,13 @@ interface NetworkRef {
 	name: string;
 }
 
+function parseOr400<T>(schema: z.ZodType<T>, raw: unknown): T {
+	const r = schema.safeParse(raw);
+	if (r.success) return r.data;
+	const i = r.error.issues[0];
+	throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
+}
+
 export const fieldUrl = (origin: string, networkId: number) => `${origin.replace(/\/$/, '')}/networks/${networkId}/field`;
 
 // ---------------------------------------------------------------- views
@@ -251,12 +258,7 @@ export function contiguousShares<T>(items: readonly T[], parts: number): T[][] {
 
 /** Assigns tasks of the current plan; returns the ids assigned per technician. */
 export async function assignTasks(db: Knex, network: NetworkRef, actor: { id: number; name: string }, raw: unknown, origin: string): Promise<Map<number, number[]>> {
-	const parsed = assignInput.safeParse(raw);
-	if (!parsed.success) {
-		const i = parsed.error.issues[0];
-		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
-	}
-	const input = parsed.data;
+	const input = parseOr400(assignInput, raw);
 	return db.transaction(async (trx) => {
 		const plan = await trx('plans').select('id', 'revision_id').where({ network_id: network.id, state: 'current' }).forUpdate().first();
 		if (!plan) throw new ServiceError(409, 'no_plan', 'This network has no approved plan, so it has no tasks to assign.');
@@ -362,12 +364,7 @@ const today = () => new Date().toISOString().slice(0, 10);
  */
 export async function applyTaskUpdate(db: Knex, network: NetworkRef & { install_tolerance_m?: number }, actor: { id: number }, taskId: number, key: string, raw: unknown): Promise<TaskUpdateResult> {
 	if (!/^[\x21-\x7e]{8,200}$/.test(key)) throw new ServiceError(400, 'idempotency_key', 'Send an Idempotency-Key header of 8 to 200 visible characters (a UUID is good).');
-	const parsed = taskUpdateInput.safeParse(raw);
-	if (!parsed.success) {
-		const i = parsed.error.issues[0];
-		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
-	}
-	const input = parsed.data;
+	const input = parseOr400(taskUpdateInput, raw);
 	const requestHash = hashRequest(taskId, input);
 	const run = () =>
 		db.transaction(async (trx): Promise<TaskUpdateResult> => {
@@ -490,14 +487,10 @@ export async function fieldSettings(db: Db, networkId: number): Promise<{ instal
 
 /** The installation tolerance and the public map's generalisation grid, with an audit entry. */
 export async function updateFieldSettings(db: Knex, network: NetworkRef, actorId: number, raw: unknown): Promise<void> {
-	const parsed = fieldSettingsInput.safeParse(raw);
-	if (!parsed.success) {
-		const i = parsed.error.issues[0];
-		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
-	}
+	const settings = parseOr400(fieldSettingsInput, raw);
 	await db.transaction(async (trx) => {
 		const before = await fieldSettings(trx, network.id);
-		await trx('networks').where({ id: network.id }).update({ install_tolerance_m: parsed.data.installToleranceM, public_grid_m: parsed.data.publicGridM });
-		await recordAudit(trx, { organisationId: network.organisation_id, actorUserId: actorId, action: 'network.field-settings', objectType: 'network', objectId: network.id, before, after: parsed.data });
+		await trx('networks').where({ id: network.id }).update({ install_tolerance_m: settings.installToleranceM, public_grid_m: settings.publicGridM });
+		await recordAudit(trx, { organisationId: network.organisation_id, actorUserId: actorId, action: 'network.field-settings', objectType: 'network', objectId: network.id, before, after: settings });
 	});
 }
