@@ -165,6 +165,7 @@ const checks: Check[] = [
 	{ name: 'assign action (no task)', method: 'POST', path: '/networks/1/tasks?/assign', form: { taskId: 'x', assigneeId: '' }, expect: page(303, 400, 400, 403, 403) },
 	{ name: 'spread action (nobody)', method: 'POST', path: '/networks/1/tasks?/spread', form: {}, expect: page(303, 400, 400, 403, 403) },
 	{ name: 'my route page', method: 'GET', path: '/networks/1/field', expect: page(303, 403, 403, 403, 200) },
+	{ name: 'printable task sheet', method: 'GET', path: '/networks/1/field/print', expect: page(303, 403, 403, 403, 200) },
 	{ name: 'task update action (no key)', method: 'POST', path: '/networks/1/field?/update', form: { taskId: '999999', state: 'started' }, expect: page(303, 403, 403, 403, 400) },
 	{ name: 'acknowledge cautions action', method: 'POST', path: '/networks/1/field?/acknowledge', form: {}, expect: page(303, 403, 403, 403, 303) },
 	{ name: 'API my tasks', method: 'GET', path: '/api/v1/networks/1/tasks?assignee=me', expect: api(401, 200, 200, 200, 200) },

@@ -226,3 +226,24 @@ test('the demo on a fresh start: the demo technician has a route with tasks done
 	await anon.dispose();
 	await tech.dispose();
 });
+
+test('the printable task sheet lists the route with the cautions; printed, it shows no page chrome', async ({ browser }) => {
+	const context = await browser.newContext();
+	const page = await context.newPage();
+	const u = demoUser('technician');
+	await signInPage(page, u.email, u.password);
+	await page.goto(`/networks/${networkId}/field/print`);
+	const tech = await contextFor('technician');
+	const tasks = (await tasksOf(tech)).filter((t) => t.state !== 'cancelled');
+	await expect(page.locator('[data-testid="sheet-table"] tbody tr')).toHaveCount(tasks.length);
+	await expect(page.getByTestId('task-sheet')).toContainText('utility-locate service');
+	await expect(page.locator('[data-testid="sheet-table"] tbody tr').first()).toContainText(`${tasks[0].target.lat.toFixed(6)}, ${tasks[0].target.lon.toFixed(6)}`);
+	await page.emulateMedia({ media: 'print' });
+	await expect(page.getByRole('button', { name: 'Print' })).toBeHidden();
+	await expect(page.locator('footer')).toBeHidden();
+	await expect(page.locator('[role="tablist"]')).toBeHidden();
+	await expect(page.getByRole('heading', { name: /^Task sheet/ })).toBeVisible();
+	await page.screenshot({ path: '/tmp/field-print.png', fullPage: true });
+	await tech.dispose();
+	await context.close();
+});

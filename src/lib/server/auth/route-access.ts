@@ -76,6 +76,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	// Field tasks and the public map
 	'/(app)/networks/[id=id]/tasks': 'signed-in',
 	'/(app)/networks/[id=id]/field': 'signed-in',
+	'/(app)/networks/[id=id]/field/print': 'signed-in',
 	'/api/v1/networks/[id=id]/tasks': 'signed-in',
 	'/api/v1/networks/[id=id]/tasks.gpx': 'signed-in',
 	'/api/v1/networks/[id=id]/tasks/assignments': 'signed-in',

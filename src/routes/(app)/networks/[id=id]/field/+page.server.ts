@@ -6,8 +6,7 @@ import { networkAccess } from '$lib/server/auth/network-access';
 import { recordAudit } from '$lib/server/repositories/audit';
 import { ServiceError } from '$lib/server/services/errors';
 import { applyTaskUpdate, currentTasks, fieldSettings } from '$lib/server/services/field-tasks';
-import { networkMap, padBounds, boundsOf } from '$lib/server/services/map-data';
-import { transformer } from '$lib/geo/crs';
+import { routeMap } from '$lib/server/services/route-map';
 import { importanceSource } from '../../../../api/v1/networks/[id=id]/map/importance-source';
 
 const ACK_COOKIE = 'cf-cautions-ack';
@@ -24,18 +23,6 @@ export const load = (async (event) => {
 	const sensorById = new Map(sensors.map((s: { id: number; serial: string; status: string; notes: string }) => [s.id, s]));
 	const typeById = new Map(types.map((t: { id: number; name: string; radius_m: number; notes: string }) => [t.id, { name: t.name, radiusM: Number(t.radius_m), notes: t.notes }]));
 
-	// The route map: the network's CRS and importance backdrop, framed on this technician's tasks.
-	const doc = await networkMap(db, { network, importance: importanceSource(), apiBase: `/api/v1/networks/${network.id}` });
-	let map = null;
-	if (doc.crs && tasks.length) {
-		const fwd = transformer(4326, doc.crs.epsg).forward;
-		const dots = tasks.map((t) => {
-			const [x, y] = fwd(t.target.lon, t.target.lat);
-			return { x, y, label: String(t.order ?? ''), kind: t.state === 'done' ? ('site' as const) : ('target' as const) };
-		});
-		const b = boundsOf(dots.map((d) => [d.x, d.y]));
-		if (b) map = { extent: padBounds(b, 0.12, 150), dots, studyArea: doc.studyArea, overlay: doc.backdrop?.kind === 'importance' ? { url: doc.backdrop.url, bounds: doc.backdrop.bounds } : null };
-	}
 	const active = tasks.filter((t) => t.state !== 'cancelled');
 	return {
 		networkId: network.id,
@@ -49,7 +36,7 @@ export const load = (async (event) => {
 		})),
 		toleranceM: (await fieldSettings(db, network.id)).installToleranceM,
 		cautionsAcknowledged: event.cookies.get(ACK_COOKIE) === `${actor.id}:${today()}`,
-		map
+		map: await routeMap(db, network, active, importanceSource())
 	};
 }) satisfies PageServerLoad;
 
