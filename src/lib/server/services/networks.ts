@@ -114,7 +114,11 @@ export async function updateNetworkDetails(db: Knex, networkId: number, actorId:
 		if (patch.crsEpsg !== undefined) fields.crs_epsg = patch.crsEpsg;
 		if (patch.publicText !== undefined) fields.public_text = patch.publicText;
 		if (patch.publication !== undefined) fields.publication = patch.publication;
-		const ok = await updateNetwork(trx, networkId, before.version, fields);
+		const ok = await updateNetwork(trx, networkId, before.version, fields).catch((e: { errno?: number }) => {
+			// networks_published_slug: /map/{slug} names no organisation, so a published slug is unique everywhere.
+			if (e.errno === 1062) throw new ServiceError(409, 'slug_published', `Another organisation already publishes a network as "${patch.slug ?? before.slug}": change the short name before publishing.`, 'publication');
+			throw e;
+		});
 		if (!ok) throw new ServiceError(409, 'stale', 'Someone else changed this network meanwhile. Reload and try again.');
 		const after = (await findNetwork(trx, networkId))!;
 		const pick = (n: NetworkRow) => Object.fromEntries(Object.keys(fields).map((k) => [k, (n as unknown as Record<string, unknown>)[k]]));

@@ -33,6 +33,7 @@ import {
 } from '../repositories/proposals';
 import { revisionDecidedMail, revisionSubmittedMail, type RevisionMailContext } from '../mail/templates';
 import { ServiceError } from './errors';
+import { createTasksForPlan } from './field-tasks';
 
 export interface Reviewer {
 	id: number;
@@ -133,6 +134,8 @@ export async function decideRevision(db: Knex, network: NetworkRef, actor: Revie
 			}
 			planId = await insertPlan(trx, { network_id: network.id, revision_id: r.id, approved_by: actor.id });
 			if (superseded) await setSupersededBy(trx, superseded.id, planId);
+			// The plan's field work, in the same transaction (and the superseded plan's open tasks cancelled).
+			await createTasksForPlan(trx, network, actor.id, planId, r, superseded?.id ?? null, origin);
 		}
 		await recordAudit(trx, {
 			organisationId: network.organisation_id,
