@@ -291,8 +291,7 @@ export type SaveVersionInput = z.input<typeof saveVersionInput>;
 export async function saveRecipeVersion(db: Knex, store: ObjectStore, networkId: number, organisationId: number, actorId: number, input: SaveVersionInput): Promise<RecipeVersionView> {
 	const parsed = saveVersionInput.safeParse(input);
 	if (!parsed.success) {
-		const i = parsed.error.issues[0];
-		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
+		throw ServiceError.fromZod(parsed.error);
 	}
 	const { recipeId, name, note } = parsed.data;
 	const recipe = parseOrFail(parsed.data.definition);

@@ -55,11 +55,9 @@ export function layerLimits(env: Record<string, string | undefined>): LayerLimit
 }
 
 /** The upload is larger than LAYER_MAX_BYTES (answered with 413). */
-export class UploadTooLarge extends Error {
-	readonly status = 413;
-	readonly code = 'too_large';
+export class UploadTooLarge extends ServiceError {
 	constructor(maxBytes: number) {
-		super(`The file is larger than the limit of ${formatBytes(maxBytes)}. Clip or resample the raster, or ask an administrator to raise LAYER_MAX_BYTES.`);
+		super(413, 'too_large', `The file is larger than the limit of ${formatBytes(maxBytes)}. Clip or resample the raster, or ask an administrator to raise LAYER_MAX_BYTES.`);
 		this.name = 'UploadTooLarge';
 	}
 }
@@ -147,8 +145,7 @@ export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadConte
 	const parsed = layerMetaInput.safeParse(meta);
 	if (!parsed.success) {
 		if (body instanceof Readable) body.resume(); // drain, so the client sees our answer
-		const i = parsed.error.issues[0];
-		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
+		throw ServiceError.fromZod(parsed.error);
 	}
 	const m = parsed.data;
 	const id = await insertLayer(db, {

@@ -33,14 +33,14 @@ import {
 } from '../inventory';
 import { isoDate, resolvePosition } from '../inventory/sensor-record';
 import { chooseWorkingCrs, CrsError, transformer, utmZoneFor } from '../../geo/crs';
-import { ServiceError } from './errors';
+import { ServiceError, zodFields } from './errors';
 
 export type FieldErrors = Record<string, string>;
 
 /** A form or request that failed validation, with a message per field. */
-export class SensorInputError extends Error {
+export class SensorInputError extends ServiceError {
 	constructor(public fields: FieldErrors) {
-		super('Some fields are not valid.');
+		super(400, 'invalid_input', 'Some fields are not valid.', undefined, fields);
 		this.name = 'SensorInputError';
 	}
 }
@@ -176,7 +176,7 @@ const FIELD_OF: Record<string, string> = { lon: 'lon', lat: 'lat', x: 'x', y: 'y
 export async function validateSensorInput(db: Knex, network: NetworkRow, raw: Record<string, unknown>): Promise<SensorFields> {
 	const errors: FieldErrors = {};
 	const parsed = sensorFormSchema.safeParse(raw);
-	if (!parsed.success) for (const i of parsed.error.issues) errors[String(i.path[0] ?? '_')] ??= i.message;
+	if (!parsed.success) Object.assign(errors, zodFields(parsed.error));
 	const mode = raw.positionMode === 'xy' ? 'xy' : 'lonlat';
 	const crs = workingCrsOf(network);
 	let pos: { lon: number; lat: number } | null = null;

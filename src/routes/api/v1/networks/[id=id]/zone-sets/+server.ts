@@ -1,10 +1,9 @@
 import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
-import { apiHandler, ApiError, readJson } from '$lib/server/api/errors';
+import { apiHandler, readJson } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { getObjectStore } from '$lib/server/storage/app-store';
-import { ServiceError } from '$lib/server/services/errors';
 import { createComputedZoneSet, createGridZoneSet, createUploadedZoneSet, importanceForZones, zoneSetApiInput, zoneSetView, zoneSetViews } from '$lib/server/services/zones';
 
 /** GET /api/v1/networks/:id/zone-sets (zones without geometry; ?geometry=1 to include it) */
@@ -21,17 +20,12 @@ export const POST: RequestHandler = apiHandler(async (event) => {
 	const { network, actor } = await networkAccess(event, 'zone.edit');
 	const input = await readJson(event, zoneSetApiInput);
 	const db = getDb();
-	try {
-		const importance = await importanceForZones(db, getObjectStore(), network);
-		const id =
-			input.kind === 'uploaded'
-				? await createUploadedZoneSet(db, network, actor.id, input.name, JSON.stringify(input.geojson), 'upload.geojson', importance)
-				: input.kind === 'grid'
-					? await createGridZoneSet(db, network, actor.id, input.name, input.cellSizeKm, importance)
-					: await createComputedZoneSet(db, network, actor.id, input.name, input.k, importance);
-		return json({ zoneSet: await zoneSetView(db, network, id) }, { status: 201 });
-	} catch (err) {
-		if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-		throw err;
-	}
+	const importance = await importanceForZones(db, getObjectStore(), network);
+	const id =
+		input.kind === 'uploaded'
+			? await createUploadedZoneSet(db, network, actor.id, input.name, JSON.stringify(input.geojson), 'upload.geojson', importance)
+			: input.kind === 'grid'
+				? await createGridZoneSet(db, network, actor.id, input.name, input.cellSizeKm, importance)
+				: await createComputedZoneSet(db, network, actor.id, input.name, input.k, importance);
+	return json({ zoneSet: await zoneSetView(db, network, id) }, { status: 201 });
 });

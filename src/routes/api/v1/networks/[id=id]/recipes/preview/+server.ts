@@ -2,11 +2,10 @@ import { json } from '@sveltejs/kit';
 import { z } from 'zod';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
-import { apiHandler, ApiError, readJson } from '$lib/server/api/errors';
+import { apiHandler, readJson } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { getObjectStore } from '$lib/server/storage/app-store';
 import { previewRecipe } from '$lib/server/services/importance';
-import { ServiceError } from '$lib/server/services/errors';
 
 const input = z.object({ definition: z.unknown() }).strict();
 
@@ -17,11 +16,6 @@ const input = z.object({ definition: z.unknown() }).strict();
 export const POST: RequestHandler = apiHandler(async (event) => {
 	const { network } = await networkAccess(event, 'recipe.edit');
 	const { definition } = await readJson(event, input);
-	try {
-		const p = await previewRecipe(getDb(), getObjectStore(), network.id, definition);
-		return json({ preview: { png: p.png.toString('base64'), width: p.width, height: p.height, grid: p.grid, validCount: p.validCount, min: p.min, max: p.max, mean: p.mean, legend: p.legend } });
-	} catch (err) {
-		if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-		throw err;
-	}
+	const p = await previewRecipe(getDb(), getObjectStore(), network.id, definition);
+	return json({ preview: { png: p.png.toString('base64'), width: p.width, height: p.height, grid: p.grid, validCount: p.validCount, min: p.min, max: p.max, mean: p.mean, legend: p.legend } });
 });
