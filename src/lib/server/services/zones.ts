@@ -24,7 +24,8 @@ import {
 	type ZoneSetKind,
 	type ZoneSetRow
 } from '../repositories/zones';
-import { parsePolygonUpload, PolygonError, ringArea2, type MultiPolygonGeometry, type Position } from '../../geo/polygons';
+import { parsePolygonUpload, PolygonError, type MultiPolygonGeometry, type Position } from '../../geo/polygons';
+import { boundsOf, clipPolygonToRect, closeRing, orientRing, pointInPolygons, ringArea2 } from '../../geo/geometry';
 import { projectRings } from '../../geo/geojson';
 import { CrsError, parseEpsg, transformer } from '../../geo/crs';
 import { computeZones } from '../../engine/zones';
@@ -57,57 +58,6 @@ export interface NewZone {
 
 // ---------------------------------------------------------------- pure geometry helpers
 
-/** Even-odd point-in-polygon over every ring of a MultiPolygon (the rasteriser's rule). */
-export function pointInMultiPolygon(lon: number, lat: number, g: MultiPolygonGeometry): boolean {
-	let inside = false;
-	for (const poly of g.coordinates)
-		for (const ring of poly)
-			for (let i = 0, j = ring.length - 1; i < ring.length; j = i++) {
-				const [xi, yi] = ring[i];
-				const [xj, yj] = ring[j];
-				if (yi > lat !== yj > lat && lon < ((xj - xi) * (lat - yi)) / (yj - yi) + xi) inside = !inside;
-			}
-	return inside;
-}
-
-/** Sutherland–Hodgman: clip a (closed) ring to an axis-aligned rectangle; [] when nothing is left. */
-export function clipRingToRect(ring: readonly Position[], xmin: number, ymin: number, xmax: number, ymax: number): Position[] {
-	let pts: Position[] = ring.slice(0, ring.length - 1).map((p) => [p[0], p[1]]);
-	const edges: Array<[(p: Position) => boolean, (a: Position, b: Position) => Position]> = [
-		[(p) => p[0] >= xmin, (a, b) => [xmin, a[1] + ((b[1] - a[1]) * (xmin - a[0])) / (b[0] - a[0])]],
-		[(p) => p[0] <= xmax, (a, b) => [xmax, a[1] + ((b[1] - a[1]) * (xmax - a[0])) / (b[0] - a[0])]],
-		[(p) => p[1] >= ymin, (a, b) => [a[0] + ((b[0] - a[0]) * (ymin - a[1])) / (b[1] - a[1]), ymin]],
-		[(p) => p[1] <= ymax, (a, b) => [a[0] + ((b[0] - a[0]) * (ymax - a[1])) / (b[1] - a[1]), ymax]]
-	];
-	for (const [inside, cut] of edges) {
-		if (pts.length === 0) break;
-		const out: Position[] = [];
-		for (let i = 0; i < pts.length; i++) {
-			const cur = pts[i];
-			const prev = pts[(i + pts.length - 1) % pts.length];
-			const ci = inside(cur);
-			if (ci !== inside(prev)) out.push(cut(prev, cur));
-			if (ci) out.push(cur);
-		}
-		pts = out;
-	}
-	if (pts.length < 3) return [];
-	const closed = [...pts, pts[0]];
-	return Math.abs(ringArea2(closed)) > 1e-9 * (xmax - xmin) * (ymax - ymin) ? closed : [];
-}
-
-function orient(ring: Position[], ccw: boolean): Position[] {
-	return ringArea2(ring) > 0 === ccw ? ring : [...ring].reverse();
-}
-
-function closeRing(r: readonly (readonly [number, number])[]): Position[] {
-	const out = r.map((p) => [p[0], p[1]] as Position);
-	const a = out[0];
-	const b = out[out.length - 1];
-	if (a[0] !== b[0] || a[1] !== b[1]) out.push([a[0], a[1]]);
-	return out;
-}
-
 /** A rectangle in working-CRS metres as a lon/lat ring, edges densified so it follows the projection. */
 function rectToLonLat(xmin: number, ymin: number, xmax: number, ymax: number, inverse: (x: number, y: number) => [number, number], pieces = 8): Position[] {
 	const pts: Position[] = [];
@@ -119,7 +69,7 @@ function rectToLonLat(xmin: number, ymin: number, xmax: number, ymax: number, in
 	side(xmax, ymax, xmin, ymax);
 	side(xmin, ymax, xmin, ymin);
 	pts.push(pts[0]);
-	return orient(pts, true);
+	return orientRing(pts, true);
 }
 
 function roundPos(p: Position): Position {
@@ -136,10 +86,7 @@ export function gridZones(studyArea: MultiPolygonGeometry, epsg: number, cellSiz
 	if (!(cellSize > 0) || !Number.isFinite(cellSize)) throw new ServiceError(400, 'invalid_input', 'The cell size must be a positive number of metres.', 'cellSize');
 	const t = transformer(4326, epsg);
 	const polys = studyArea.coordinates.map((poly) => projectRings(poly, t.forward, cellSize / 8).map((r) => closeRing(r)));
-	let xmin = Infinity, ymin = Infinity, xmax = -Infinity, ymax = -Infinity;
-	for (const poly of polys) for (const [x, y] of poly[0]) {
-		xmin = Math.min(xmin, x); xmax = Math.max(xmax, x); ymin = Math.min(ymin, y); ymax = Math.max(ymax, y);
-	}
+	const [xmin, ymin, xmax, ymax] = boundsOf([], polys) ?? [0, 0, 0, 0];
 	const c0 = Math.floor(xmin / cellSize), c1 = Math.ceil(xmax / cellSize);
 	const r0 = Math.floor(ymin / cellSize), r1 = Math.ceil(ymax / cellSize);
 	const total = (c1 - c0) * (r1 - r0);
@@ -150,16 +97,14 @@ export function gridZones(studyArea: MultiPolygonGeometry, epsg: number, cellSiz
 			const bx0 = c * cellSize, bx1 = bx0 + cellSize, by0 = r * cellSize, by1 = by0 + cellSize;
 			const parts: Position[][][] = [];
 			for (const poly of polys) {
-				const ext = clipRingToRect(poly[0], bx0, by0, bx1, by1);
-				if (ext.length === 0) continue;
-				const holes = poly.slice(1).map((h) => clipRingToRect(h, bx0, by0, bx1, by1)).filter((h) => h.length);
-				parts.push([orient(ext, true), ...holes.map((h) => orient(h, false))]);
+				const clipped = clipPolygonToRect(poly, [bx0, by0, bx1, by1]);
+				if (clipped.length > 0) parts.push(clipped.map((ring, k) => orientRing(ring, k === 0)));
 			}
 			if (parts.length === 0) continue;
 			const whole = parts.length === 1 && parts[0].length === 1 && Math.abs(ringArea2(parts[0][0]) / 2 - cellSize * cellSize) < 1e-6 * cellSize * cellSize;
 			const coordinates = whole
 				? [[rectToLonLat(bx0, by0, bx1, by1, t.inverse).map(roundPos)]]
-				: parts.map((poly) => poly.map((ring, k) => orient(ring.map((p) => roundPos(t.inverse(p[0], p[1]))), k === 0)));
+				: parts.map((poly) => poly.map((ring, k) => orientRing(ring.map((p) => roundPos(t.inverse(p[0], p[1]))), k === 0)));
 			zones.push({ code: `G${zones.length + 1}`, name: `r${row} c${col}`, geometry: { type: 'MultiPolygon', coordinates } });
 			if (zones.length > maxZones) throw new ServiceError(422, 'too_many_zones', `More than ${maxZones} grid cells fall in the study area; choose a larger cell size.`, 'cellSize');
 		}
@@ -223,7 +168,7 @@ export function traceZoneMap(grid: Pick<WorkingGrid, 'width' | 'height' | 'x0' |
 		for (const h of holes) {
 			const owner = exteriors
 				.map((e, k) => ({ k, a: ringArea2(e) }))
-				.filter(({ k }) => pointInMultiPolygon(h[0][0] + 0, h[0][1] + 0, { type: 'MultiPolygon', coordinates: [[exteriors[k]]] }) || h.some((p) => pointInMultiPolygon(p[0], p[1], { type: 'MultiPolygon', coordinates: [[exteriors[k]]] })))
+				.filter(({ k }) => h.some((p) => pointInPolygons(p, [[exteriors[k]]])))
 				.sort((a, b) => a.a - b.a)[0];
 			if (owner) polys[owner.k].push(h);
 		}
@@ -432,7 +377,7 @@ function view(set: ZoneSetRow, zones: ZoneRow[], points: { lon: number; lat: num
 			code: z.code,
 			name: z.name,
 			importanceShare: z.importance_share,
-			sensorCount: points.filter((p) => pointInMultiPolygon(p.lon, p.lat, z.geometry)).length,
+			sensorCount: points.filter((p) => pointInPolygons([p.lon, p.lat], z.geometry.coordinates)).length,
 			...(withGeometry ? { geometry: z.geometry } : {})
 		}))
 	};
