@@ -1,4 +1,4 @@
-import { error, json, type Handle, type HandleServerError } from '@sveltejs/kit';
+import { error, json, type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { authHandle } from '$lib/server/auth';
 import { loadActor } from '$lib/server/auth/actor';
@@ -7,7 +7,10 @@ import { apiErrorBody } from '$lib/server/api/errors';
 import { closeDb, getDb } from '$lib/server/db';
 import { startOutboxTimer } from '$lib/server/mail/outbox';
 
-startOutboxTimer();
+/** Runs once when the server starts, before the first request (not when a build step imports this module). */
+export const init: ServerInit = () => {
+	startOutboxTimer();
+};
 
 // adapter-node emits this after it stopped accepting requests (SIGINT/SIGTERM): let the process exit.
 process.on('sveltekit:shutdown', () => {

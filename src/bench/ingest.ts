@@ -14,7 +14,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { readGeoTiff } from '../lib/geo/geotiff';
-import { encodeTiff } from '../lib/geo/tiff-writer';
+import { encodeTiff } from './support/tiff-writer';
 import { buildWorkingGrid } from '../lib/geo/working-grid';
 
 const SIZE = 4000;

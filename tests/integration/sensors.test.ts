@@ -13,10 +13,10 @@ import {
 	removeSensor,
 	sensorPage,
 	SensorInputError,
-	validateSensorInput,
-	workingCrsOf
+	validateSensorInput
 } from '../../src/lib/server/services/sensors';
 import { seedDemoInventory } from '../../seeds/demo-inventory';
+import { workingCrs } from '../../src/lib/server/services/working-crs';
 import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpers/db';
 
 const demoCsv = readFileSync(path.resolve(import.meta.dirname, '../../data/demo/sensors.csv'), 'utf8');
@@ -139,7 +139,7 @@ describe('sensors service', () => {
 
 	it('positions entered in the working CRS (UTM of the study area centre) are stored as lon/lat and shown in both', async () => {
 		const net = await freshNetwork();
-		expect(workingCrsOf(net)).toBe(32632); // the demo area lies near 10.2°E, 52.9°N: UTM zone 32N
+		expect(await workingCrs(t.db, net)).toBe(32632); // the demo area lies near 10.2°E, 52.9°N: UTM zone 32N
 		const types = await sensorTypesOf(t.db, net.id);
 		// 500000 m E is the zone's central meridian 9°E (UTM definition); 5 860 000 m N ≈ 52.88°N.
 		const f = await validateSensorInput(t.db, net, { code: 'XY-1', serial: 's', typeId: String(types[0].id), positionMode: 'xy', x: '500000', y: '5860000', installedOn: '', status: 'active', notes: '' });

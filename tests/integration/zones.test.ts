@@ -127,20 +127,21 @@ describe('zone sets service', () => {
 	});
 	afterAll(async () => t?.drop());
 
-	it('uploaded demo zones: 4 zones, active sensors counted where they stand, shares null without importance', async () => {
+	it('uploaded demo zones: 4 zones, sensors standing in the field counted where they stand, shares null without importance', async () => {
 		const id = await createUploadedZoneSet(t.db, net, m.userId, '', demo('zones.geojson'), 'zones.geojson');
 		const set = (await zoneSetViews(t.db, net)).find((s) => s.id === id)!;
 		expect(set.zones.map((z) => z.code)).toEqual(['north-fell', 'west-moss', 'south-heath', 'eastern-reach']);
 		expect(set.zones.every((z) => z.importanceShare === null)).toBe(true);
-		// Expected counts by testing each active sensor of sensors.csv against each zone polygon directly.
+		// Expected counts by testing each sensor of sensors.csv that stands in the field (active or
+		// faulty; a retired one never counts) against each zone polygon directly.
 		const zonesFc = JSON.parse(demo('zones.geojson'));
-		const active = demo('sensors.csv').trim().split(/\r?\n/).slice(1).map((l) => l.split(',')).filter((c) => c[6] === 'active');
-		expect(active).toHaveLength(13);
+		const active = demo('sensors.csv').trim().split(/\r?\n/).slice(1).map((l) => l.split(',')).filter((c) => c[6] !== 'retired');
+		expect(active).toHaveLength(14);
 		const expected = zonesFc.features.map((f: { geometry: { coordinates: [number, number][][] } }) =>
 			active.filter((c) => pointInPolygons([Number(c[3]), Number(c[4])], [f.geometry.coordinates])).length
 		);
 		expect(set.zones.map((z) => z.sensorCount)).toEqual(expected);
-		expect(set.zones.reduce((s, z) => s + z.sensorCount, 0)).toBe(13); // the sub-catchments partition the catchment
+		expect(set.zones.reduce((s, z) => s + z.sensorCount, 0)).toBe(14); // the sub-catchments partition the catchment
 		const audit = await t.db('audit_log').where({ action: 'zone_set.create', object_id: String(id) }).first();
 		expect(jsonValue(audit.after)).toMatchObject({ kind: 'uploaded', zones: 4 });
 	});
@@ -150,7 +151,7 @@ describe('zone sets service', () => {
 		const set = (await zoneSetViews(t.db, net)).find((s) => s.id === id)!;
 		expect(set.zones.length).toBeGreaterThan(20);
 		expect(set.zones.reduce((s, z) => s + (z.importanceShare ?? 0), 0)).toBeCloseTo(1, 6);
-		expect(set.zones.reduce((s, z) => s + z.sensorCount, 0)).toBe(13);
+		expect(set.zones.reduce((s, z) => s + z.sensorCount, 0)).toBe(14);
 		await useZoneSet(t.db, net, m.userId, id);
 		expect((await t.db('networks').where({ id: net.id }).first()).zone_set_id).toBe(id);
 		expect((await zoneSetViews(t.db, net)).find((s) => s.id === id)!.inUse).toBe(true);
@@ -162,7 +163,7 @@ describe('zone sets service', () => {
 		const set = (await zoneSetViews(t.db, net)).find((s) => s.id === id)!;
 		expect(set.zones.map((z) => z.code)).toEqual(['Z1', 'Z2', 'Z3', 'Z4']);
 		expect(set.zones.reduce((s, z) => s + (z.importanceShare ?? 0), 0)).toBeCloseTo(1, 9);
-		expect(set.zones.reduce((s, z) => s + z.sensorCount, 0)).toBe(13);
+		expect(set.zones.reduce((s, z) => s + z.sensorCount, 0)).toBe(14);
 	});
 
 	it('a bad upload is refused with the parser’s message and stores nothing', async () => {

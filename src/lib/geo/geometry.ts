@@ -64,6 +64,12 @@ export function unionBounds(...all: (Bounds | null)[]): Bounds | null {
 	return boundsOf(all.flatMap((b) => (b ? [[b[0], b[1]], [b[2], b[3]]] : [])));
 }
 
+/** Bounds grown by a fraction of their larger side on every side (at least `minPad` map units). */
+export function padBounds(b: Bounds, fraction: number, minPad = 0): Bounds {
+	const pad = Math.max(minPad, Math.max(b[2] - b[0], b[3] - b[1]) * fraction);
+	return [b[0] - pad, b[1] - pad, b[2] + pad, b[3] + pad];
+}
+
 /**
  * A polygon (exterior and holes, closed rings) clipped to a rectangle; holes that vanish are
  * dropped, and an empty array means nothing of the polygon lies inside the rectangle.
@@ -97,6 +103,6 @@ export function labelPosition(polygons: readonly (readonly Ring[])[], precision?
 	if (!best) return null;
 	const b = boundsOf([], [best.rings]);
 	const step = precision ?? (b ? Math.max(b[2] - b[0], b[3] - b[1]) / 1000 : 1);
-	const p = polylabel(best.rings as number[][][], step > 0 ? step : 1);
+	const p = polylabel(best.rings as unknown as number[][][], step > 0 ? step : 1);
 	return [p[0], p[1]];
 }

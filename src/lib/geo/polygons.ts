@@ -48,6 +48,25 @@ function isObject(v: unknown): v is Json {
 	return typeof v === 'object' && v !== null && !Array.isArray(v);
 }
 
+/**
+ * A stored polygon value (study area, exclusion, zone, layer outline) as one MultiPolygon, without
+ * validating it again: the services store MultiPolygons; older rows and the demo seed may hold a
+ * Polygon, a Feature or a FeatureCollection. Null when it holds no polygon.
+ */
+export function asMultiPolygon(v: unknown): MultiPolygonGeometry | null {
+	if (!v || typeof v !== 'object') return null;
+	const g = v as { type?: unknown; coordinates?: unknown; geometry?: unknown; features?: unknown };
+	if (g.type === 'Feature') return asMultiPolygon(g.geometry);
+	if (g.type === 'FeatureCollection' && Array.isArray(g.features)) {
+		const parts = g.features.flatMap((f) => asMultiPolygon(f)?.coordinates ?? []);
+		return parts.length ? { type: 'MultiPolygon', coordinates: parts } : null;
+	}
+	if (!Array.isArray(g.coordinates) || g.coordinates.length === 0) return null;
+	if (g.type === 'MultiPolygon') return v as MultiPolygonGeometry;
+	if (g.type === 'Polygon') return { type: 'MultiPolygon', coordinates: [g.coordinates as MultiPolygonGeometry['coordinates'][number]] };
+	return null;
+}
+
 interface Counter {
 	positions: number;
 	max: number;

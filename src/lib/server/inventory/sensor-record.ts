@@ -5,8 +5,9 @@
 import { z } from 'zod';
 import { CrsError, parseEpsg, transformer } from '../../geo/crs';
 
-export const SENSOR_STATUSES = ['active', 'faulty', 'retired'] as const;
-export type SensorStatus = (typeof SENSOR_STATUSES)[number];
+import { SENSOR_STATUSES, type SensorStatus } from '../../api/client';
+
+export { SENSOR_STATUSES, type SensorStatus };
 
 export interface SensorRecord {
 	id: string;

@@ -1,8 +1,7 @@
 /** Layers: the uploaded rasters of a network, with their metadata. */
 import type { Db } from '../db';
+import type { LayerKind, LayerPlatform } from '../../api/client';
 
-export type LayerKind = 'soil_moisture' | 'vegetation_index' | 'elevation' | 'other';
-export type LayerPlatform = 'satellite' | 'aircraft' | 'drone' | 'model' | 'other';
 export type LayerStatus = 'uploading' | 'processing' | 'ready' | 'failed';
 
 export interface LayerRow {
@@ -63,6 +62,17 @@ function parseRow(row: Record<string, unknown>): LayerRow {
 export async function listLayers(db: Db, networkId: number): Promise<LayerRow[]> {
 	const rows = await db('layers').select(columns).where({ network_id: networkId }).orderBy('created_at', 'desc').orderBy('id', 'desc');
 	return rows.map(parseRow);
+}
+
+/** The newest ready layer with a preview image, or undefined. */
+export async function latestPreviewedLayer(db: Db, networkId: number): Promise<LayerRow | undefined> {
+	const row = await db('layers')
+		.select(columns)
+		.where({ network_id: networkId, status: 'ready' })
+		.whereNotNull('preview_key')
+		.orderBy([{ column: 'created_at', order: 'desc' }, { column: 'id', order: 'desc' }])
+		.first();
+	return row ? parseRow(row) : undefined;
 }
 
 export async function findLayer(db: Db, networkId: number, id: number): Promise<LayerRow | undefined> {

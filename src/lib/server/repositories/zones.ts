@@ -2,7 +2,9 @@
 import type { Db } from '../db';
 import type { MultiPolygonGeometry } from '../../geo/polygons';
 
-export type ZoneSetKind = 'uploaded' | 'grid' | 'computed';
+import type { ZoneSetKind } from '../../api/client';
+
+export type { ZoneSetKind };
 
 export interface ZoneSetRow {
 	id: number;

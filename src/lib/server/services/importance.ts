@@ -38,6 +38,7 @@ import {
 	type RecipeVersionRow
 } from '../repositories/recipes';
 import { ServiceError } from './errors';
+import { settleWorkingCrs } from './working-crs';
 
 /** Largest surface, in cells (4 million Float32 = 16 MB). */
 export const MAX_SURFACE_CELLS = 4_000_000;
@@ -310,7 +311,7 @@ export async function saveRecipeVersion(db: Knex, store: ObjectStore, networkId:
 				row = (await findRecipe(trx, networkId, id, { forUpdate: true }))!;
 			}
 			const version = row.latest_version + 1;
-			const versionId = await insertVersion(trx, { recipe_id: row.id, version, definition: recipe, note, surface_key: key, created_by: actorId });
+			const versionId = await insertVersion(trx, { recipe_id: row.id, version, definition: recipe, note, surface_key: key, grid_epsg: surface.grid.epsg, created_by: actorId });
 			await bumpLatestVersion(trx, row.id, version);
 			await recordAudit(trx, { organisationId, actorUserId: actorId, action: 'recipe.version.create', objectType: 'importance_recipe_version', objectId: versionId, after: { recipe: row.name, version, definition: recipe, note } });
 			return versionView((await findVersion(trx, networkId, versionId))!);
@@ -328,6 +329,7 @@ export async function useRecipeVersion(db: Knex, networkId: number, organisation
 		if (!v) throw new ServiceError(404, 'not_found', 'No such recipe version in this network.', 'versionId');
 		const before = await networkRecipeVersionId(trx, networkId);
 		await setNetworkRecipeVersion(trx, networkId, versionId);
+		await settleWorkingCrs(trx, networkId);
 		await recordAudit(trx, { organisationId, actorUserId: actorId, action: 'network.recipe_version', objectType: 'network', objectId: networkId, before: { recipeVersionId: before }, after: { recipeVersionId: versionId } });
 	});
 }

@@ -23,7 +23,7 @@ import { recordAudit } from '../repositories/audit';
 import { deleteLayerRow, findLayer, insertLayer, listLayers, updateLayer, type LayerRow } from '../repositories/layers';
 import { versionsCitingLayer } from '../repositories/recipes';
 import { ServiceError } from './errors';
-import type { Layer } from '../../api/client';
+import { LAYER_KINDS, LAYER_PLATFORMS, type Layer } from '../../api/client';
 
 /** inspect.ts's default pixel limit (25 million), repeated so that this module loads without geotiff. */
 const DEFAULT_MAX_PIXELS = 25_000_000;
@@ -34,8 +34,6 @@ const DEFAULT_MAX_PIXELS = 25_000_000;
  */
 const inspectModule = () => import('../layers/inspect');
 
-export const LAYER_KINDS = ['soil_moisture', 'vegetation_index', 'elevation', 'other'] as const;
-export const LAYER_PLATFORMS = ['satellite', 'aircraft', 'drone', 'model', 'other'] as const;
 export const DEFAULT_LAYER_MAX_BYTES = 500 * 1024 * 1024;
 
 export interface LayerLimits {

@@ -4,6 +4,7 @@ import { z } from 'zod';
 import { recordAudit } from '../repositories/audit';
 import { findNetwork, insertNetwork, slugTaken, updateNetwork, type NetworkRow } from '../repositories/networks';
 import { ServiceError } from './errors';
+import { settleWorkingCrs } from './working-crs';
 
 const slugRe = /^[a-z0-9]+(?:-[a-z0-9]+)*$/;
 
@@ -51,6 +52,7 @@ export async function createNetwork(db: Knex, organisationId: number, actorId: n
 		if (await slugTaken(trx, organisationId, slug)) throw new ServiceError(409, 'slug_taken', `A network with the short name "${slug}" already exists.`, 'slug');
 		const fields = { name: input.name, slug, description: input.description, crs_epsg: input.crsEpsg, publication: 'private' as const, public_text: input.publicText, study_area: null, exclusions: null };
 		const id = await insertNetwork(trx, organisationId, actorId, fields);
+		await settleWorkingCrs(trx, id);
 		await recordAudit(trx, { organisationId, actorUserId: actorId, action: 'network.create', objectType: 'network', objectId: id, after: fields });
 		return id;
 	});
@@ -96,6 +98,7 @@ export async function updateNetworkDetails(db: Knex, networkId: number, actorId:
 		if (patch.publication !== undefined) fields.publication = patch.publication;
 		const ok = await updateNetwork(trx, networkId, before.version, fields);
 		if (!ok) throw new ServiceError(409, 'stale', 'Someone else changed this network meanwhile. Reload and try again.');
+		if (patch.crsEpsg !== undefined && patch.crsEpsg !== before.crs_epsg) await settleWorkingCrs(trx, networkId);
 		const after = (await findNetwork(trx, networkId))!;
 		const pick = (n: NetworkRow) => Object.fromEntries(Object.keys(fields).map((k) => [k, (n as unknown as Record<string, unknown>)[k]]));
 		await recordAudit(trx, { organisationId: before.organisation_id, actorUserId: actorId, action: 'network.update', objectType: 'network', objectId: networkId, before: pick(before), after: pick(after) });

@@ -32,7 +32,9 @@ import {
 	type SensorRecord
 } from '../inventory';
 import { isoDate, resolvePosition } from '../inventory/sensor-record';
-import { chooseWorkingCrs, CrsError, transformer, utmZoneFor } from '../../geo/crs';
+import { CrsError, transformer } from '../../geo/crs';
+import { workingCrs } from './working-crs';
+import type { Sensor } from '../../api/client';
 import { ServiceError, zodFields } from './errors';
 
 export type FieldErrors = Record<string, string>;
@@ -45,45 +47,9 @@ export class SensorInputError extends ServiceError {
 	}
 }
 
-// ---------------------------------------------------------------- working CRS
-
-/** Centre of the bounding box of a GeoJSON (Multi)Polygon geometry, or null. */
-export function geometryCentre(g: unknown): [number, number] | null {
-	if (!g || typeof g !== 'object') return null;
-	const coords = (g as { coordinates?: unknown }).coordinates;
-	let minX = Infinity, minY = Infinity, maxX = -Infinity, maxY = -Infinity;
-	const walk = (v: unknown): void => {
-		if (Array.isArray(v) && v.length >= 2 && typeof v[0] === 'number' && typeof v[1] === 'number') {
-			minX = Math.min(minX, v[0]); maxX = Math.max(maxX, v[0]);
-			minY = Math.min(minY, v[1]); maxY = Math.max(maxY, v[1]);
-		} else if (Array.isArray(v)) v.forEach(walk);
-	};
-	walk(coords);
-	return Number.isFinite(minX) ? [(minX + maxX) / 2, (minY + maxY) / 2] : null;
-}
-
-/**
- * The network's working CRS: its explicit crs_epsg, otherwise the UTM zone of the study area's
- * centre; null when neither is known (then only lon/lat can be entered).
- */
-export function workingCrsOf(network: Pick<NetworkRow, 'crs_epsg' | 'study_area'>): number | null {
-	if (network.crs_epsg) return network.crs_epsg;
-	const c = geometryCentre(network.study_area);
-	if (!c) return null;
-	try {
-		// 4326 is never suitable as a working CRS, so this is the UTM zone of the centre.
-		return chooseWorkingCrs(4326, c, null);
-	} catch (e) {
-		if (e instanceof CrsError) return null;
-		throw e;
-	}
-}
-
-export { utmZoneFor };
-
 // ---------------------------------------------------------------- views
 
-export function sensorView(s: SensorRow, crs: number | null) {
+export function sensorView(s: SensorRow, crs: number | null): Sensor {
 	let x: number | null = null;
 	let y: number | null = null;
 	if (crs) {
@@ -107,7 +73,6 @@ export function sensorView(s: SensorRow, crs: number | null) {
 		version: s.version
 	};
 }
-export type SensorView = ReturnType<typeof sensorView>;
 
 // ---------------------------------------------------------------- list query
 
@@ -135,7 +100,7 @@ export function parseListQuery(params: URLSearchParams): SensorListQuery {
 }
 
 export async function sensorPage(db: Knex, network: NetworkRow, q: SensorListQuery) {
-	const crs = workingCrsOf(network);
+	const crs = await workingCrs(db, network);
 	const query: SensorQuery = { sort: q.sort, dir: q.dir, typeId: q.type, status: q.status, text: q.q, page: q.page, perPage: q.perPage };
 	let { rows, total } = await listSensors(db, network.id, query);
 	const pages = Math.max(1, Math.ceil(total / q.perPage));
@@ -178,7 +143,7 @@ export async function validateSensorInput(db: Knex, network: NetworkRow, raw: Re
 	const parsed = sensorFormSchema.safeParse(raw);
 	if (!parsed.success) Object.assign(errors, zodFields(parsed.error));
 	const mode = raw.positionMode === 'xy' ? 'xy' : 'lonlat';
-	const crs = workingCrsOf(network);
+	const crs = await workingCrs(db, network);
 	let pos: { lon: number; lat: number } | null = null;
 	if (mode === 'xy' && !crs) errors.x = 'The working CRS is not known yet (set it on the overview or outline the study area); enter lon/lat.';
 	else {

@@ -9,6 +9,7 @@ import type { Knex } from 'knex';
 import { z } from 'zod';
 import { recordAudit } from '../repositories/audit';
 import type { NetworkRow } from '../repositories/networks';
+import type { SensorStatus, ZoneSet } from '../../api/client';
 import { listSensors } from '../repositories/sensors';
 import {
 	deleteZoneSet,
@@ -24,7 +25,7 @@ import {
 	type ZoneSetKind,
 	type ZoneSetRow
 } from '../repositories/zones';
-import { parsePolygonUpload, PolygonError, type MultiPolygonGeometry, type Position } from '../../geo/polygons';
+import { asMultiPolygon, parsePolygonUpload, PolygonError, type MultiPolygonGeometry, type Position } from '../../geo/polygons';
 import { boundsOf, clipPolygonToRect, closeRing, orientRing, pointInPolygons, ringArea2 } from '../../geo/geometry';
 import { projectRings } from '../../geo/geojson';
 import { CrsError, parseEpsg, transformer } from '../../geo/crs';
@@ -36,8 +37,8 @@ import { buildWorkingGrid, WorkingGridError } from '../../geo/working-grid';
 import { ImportanceError } from '../../importance/grid';
 import type { ObjectStore } from '../storage';
 import { networkImportance, surfaceRasterBand } from './importance';
-import { exclusionList, studyAreaMultiPolygon } from './areas';
-import { workingCrsOf } from './sensors';
+import { exclusionList } from './areas';
+import { workingCrs } from './working-crs';
 import { ServiceError } from './errors';
 
 /** Cell sizes offered for grid zones: the SMAP EASE-Grid 2.0 product sizes (FIELD-FACTS.md [S]). */
@@ -207,9 +208,9 @@ export async function importanceForZones(db: Knex, store: ObjectStore, network: 
 	try {
 		const imp = await networkImportance(db, store, network.id);
 		if (!imp) return null;
-		const area = studyAreaMultiPolygon(network.study_area);
+		const area = asMultiPolygon(network.study_area);
 		const opts = {
-			crs: workingCrsOf(network),
+			crs: await workingCrs(db, network),
 			studyArea: area?.coordinates?.length ? area.coordinates : undefined,
 			exclusions: exclusionList(network.exclusions).map((f) => f.geometry.coordinates).flat()
 		};
@@ -258,7 +259,7 @@ export const zoneSetApiInput = z.discriminatedUnion('kind', [
 // ---------------------------------------------------------------- use cases
 
 function studyAreaOf(network: NetworkRow): MultiPolygonGeometry {
-	const a = studyAreaMultiPolygon(network.study_area);
+	const a = asMultiPolygon(network.study_area);
 	if (!a) throw new ServiceError(422, 'no_study_area', 'Outline the study area first.');
 	return a;
 }
@@ -300,7 +301,7 @@ export async function createUploadedZoneSet(db: Knex, network: NetworkRow, actor
 
 export async function createGridZoneSet(db: Knex, network: NetworkRow, actorId: number, name: string, cellSizeKm: number, importance: ImportanceSurface | null = null): Promise<number> {
 	const area = studyAreaOf(network);
-	const epsg = workingCrsOf(network);
+	const epsg = await workingCrs(db, network);
 	if (!epsg) throw new ServiceError(422, 'no_crs', 'The working CRS is not known; set it on the overview.');
 	const cellSize = cellSizeKm * 1000;
 	const zones = gridZones(area, epsg, cellSize);
@@ -342,28 +343,48 @@ export async function removeZoneSet(db: Knex, network: NetworkRow, actorId: numb
 	});
 }
 
-export interface ZoneView {
-	id: number;
-	code: string;
-	name: string;
-	importanceShare: number | null;
-	sensorCount: number;
-	geometry?: MultiPolygonGeometry;
+/** A zone set as the API returns it: the typed client's ZoneSet, with its timestamp as a Date. */
+export type ZoneSetView = Omit<ZoneSet, 'createdAt'> & { createdAt: Date };
+
+/**
+ * "The current zone set" of a network: the one it uses (networks.zone_set_id), chosen on the zones
+ * page; null when it uses none. Nothing falls back to another set.
+ */
+export async function currentZoneSet(db: Knex, networkId: number): Promise<ZoneSetRow | null> {
+	const id = await networkZoneSetId(db, networkId);
+	return id === null ? null : ((await findZoneSet(db, networkId, id)) ?? null);
 }
 
-export interface ZoneSetView {
-	id: number;
-	name: string;
-	kind: ZoneSetKind;
-	params: Record<string, unknown> | null;
-	inUse: boolean;
-	/** The importance recipe version the shares were measured with (null: not measured). */
-	recipeVersionId: number | null;
-	createdAt: Date;
-	zones: ZoneView[];
+/** Whether a sensor counts as standing in the field: every status but `retired` (a faulty sensor still occupies its site). */
+export function standsInField(s: { status: SensorStatus }): boolean {
+	return s.status !== 'retired';
 }
 
-function view(set: ZoneSetRow, zones: ZoneRow[], points: { lon: number; lat: number }[], inUse: boolean, withGeometry: boolean): ZoneSetView {
+/**
+ * "Sensors in a zone": for each zone of one zone set, how many sensors standing in the field
+ * (standsInField) lie inside it (lon/lat, holes excluded). A sensor is in one zone only: one on an
+ * edge two zones share counts for the first of them, so the counts add up to the sensors in the
+ * set's union. Each zone's bounding box is taken once and only sensors inside it are tested.
+ */
+export function sensorsInZones(zones: readonly unknown[], sensors: readonly { lon: number; lat: number; status: SensorStatus }[]): number[] {
+	let left = sensors.filter(standsInField);
+	return zones.map((geometry) => {
+		const polygons = asMultiPolygon(geometry)?.coordinates ?? [];
+		const box = boundsOf([], polygons);
+		if (!box) return 0;
+		const outside: typeof left = [];
+		for (const s of left) {
+			const inBox = s.lon >= box[0] && s.lon <= box[2] && s.lat >= box[1] && s.lat <= box[3];
+			if (!inBox || !pointInPolygons([s.lon, s.lat], polygons)) outside.push(s);
+		}
+		const n = left.length - outside.length;
+		left = outside;
+		return n;
+	});
+}
+
+function view(set: ZoneSetRow, zones: ZoneRow[], sensors: readonly { lon: number; lat: number; status: SensorStatus }[], inUse: boolean, withGeometry: boolean): ZoneSetView {
+	const counts = sensorsInZones(zones.map((z) => z.geometry), sensors);
 	return {
 		id: set.id,
 		name: set.name,
@@ -372,26 +393,26 @@ function view(set: ZoneSetRow, zones: ZoneRow[], points: { lon: number; lat: num
 		inUse,
 		recipeVersionId: set.recipe_version_id,
 		createdAt: set.created_at,
-		zones: zones.map((z) => ({
+		zones: zones.map((z, i) => ({
 			id: z.id,
 			code: z.code,
 			name: z.name,
 			importanceShare: z.importance_share,
-			sensorCount: points.filter((p) => pointInPolygons([p.lon, p.lat], z.geometry.coordinates)).length,
+			sensorCount: counts[i],
 			...(withGeometry ? { geometry: z.geometry } : {})
 		}))
 	};
 }
 
-async function activePoints(db: Knex, networkId: number) {
-	const { rows } = await listSensors(db, networkId, { status: 'active' });
-	return rows.map((r) => ({ lon: r.lon, lat: r.lat }));
+async function sensorPositions(db: Knex, networkId: number) {
+	const { rows } = await listSensors(db, networkId);
+	return rows.map((r) => ({ lon: r.lon, lat: r.lat, status: r.status }));
 }
 
 export async function zoneSetViews(db: Knex, network: NetworkRow, opts: { withGeometry?: boolean } = {}): Promise<ZoneSetView[]> {
 	const sets = await listZoneSets(db, network.id);
 	const zones = await listZones(db, sets.map((s) => s.id));
-	const points = await activePoints(db, network.id);
+	const points = await sensorPositions(db, network.id);
 	const current = await networkZoneSetId(db, network.id);
 	return sets.map((s) => view(s, zones.filter((z) => z.zone_set_id === s.id), points, s.id === current, !!opts.withGeometry));
 }
@@ -400,5 +421,5 @@ export async function zoneSetView(db: Knex, network: NetworkRow, zoneSetId: numb
 	const set = await findZoneSet(db, network.id, zoneSetId);
 	if (!set) throw new ServiceError(404, 'not_found', 'No such zone set.');
 	const zones = await listZones(db, [set.id]);
-	return view(set, zones, await activePoints(db, network.id), (await networkZoneSetId(db, network.id)) === set.id, true);
+	return view(set, zones, await sensorPositions(db, network.id), (await networkZoneSetId(db, network.id)) === set.id, true);
 }

@@ -6,7 +6,7 @@ import { roleAllows } from '$lib/server/auth/roles';
 import { formFields, parseForm, serviceFailure } from '$lib/server/forms';
 import { getObjectStore } from '$lib/server/storage/app-store';
 import { areaView, parseAreaUpload, setArea } from '$lib/server/services/areas';
-import { workingCrsOf } from '$lib/server/services/sensors';
+import { workingCrs } from '$lib/server/services/working-crs';
 import {
 	computedInput,
 	createComputedZoneSet,
@@ -37,7 +37,7 @@ export const load = (async (event) => {
 			parts: area.studyArea?.coordinates.length ?? 0,
 			exclusions: area.exclusions.map((f) => f.properties.name)
 		},
-		workingCrs: workingCrsOf(network),
+		workingCrs: await workingCrs(db, network),
 		zoneSets: (await zoneSetViews(db, network)).map((s) => ({ ...s, createdAt: s.createdAt.toISOString() })),
 		recipeVersionId: (recipe?.recipe_version_id as number | null) ?? null,
 		presetsKm: GRID_PRESETS_M.map((m) => m / 1000),

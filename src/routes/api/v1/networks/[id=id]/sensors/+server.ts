@@ -4,7 +4,8 @@ import { getDb } from '$lib/server/db';
 import { apiHandler, ApiError } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { findSensor } from '$lib/server/repositories/sensors';
-import { createSensor, exportSensors, parseListQuery, sensorPage, sensorView, validateSensorInput, workingCrsOf } from '$lib/server/services/sensors';
+import { createSensor, exportSensors, parseListQuery, sensorPage, sensorView, validateSensorInput } from '$lib/server/services/sensors';
+import { workingCrs } from '$lib/server/services/working-crs';
 
 /**
  * GET /api/v1/networks/:id/sensors?sort=&dir=&type=&status=&q=&page=&perPage=
@@ -48,5 +49,5 @@ export const POST: RequestHandler = apiHandler(async (event) => {
 	const b = asFields(await body(event.request));
 	const f = await validateSensorInput(getDb(), network, b);
 	const id = await createSensor(getDb(), network, actor.id, f);
-	return json({ sensor: sensorView((await findSensor(getDb(), network.id, id))!, workingCrsOf(network)) }, { status: 201 });
+	return json({ sensor: sensorView((await findSensor(getDb(), network.id, id))!, await workingCrs(getDb(), network)) }, { status: 201 });
 });

@@ -4,7 +4,8 @@ import { getDb } from '$lib/server/db';
 import { apiHandler, ApiError } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { findSensor } from '$lib/server/repositories/sensors';
-import { editSensor, removeSensor, sensorView, validateSensorInput, workingCrsOf } from '$lib/server/services/sensors';
+import { editSensor, removeSensor, sensorView, validateSensorInput } from '$lib/server/services/sensors';
+import { workingCrs } from '$lib/server/services/working-crs';
 
 function version(v: unknown): number {
 	const n = Number(v);
@@ -17,7 +18,7 @@ export const GET: RequestHandler = apiHandler(async (event) => {
 	const { network } = await networkAccess(event, 'sensor.view');
 	const s = await findSensor(getDb(), network.id, Number(event.params.sensorId));
 	if (!s) throw new ApiError(404, 'not_found', 'No such sensor.');
-	return json({ sensor: sensorView(s, workingCrsOf(network)) });
+	return json({ sensor: sensorView(s, await workingCrs(getDb(), network)) });
 });
 
 /** POST /api/v1/networks/:id/sensors/:sensorId: all fields of the sensor plus the `version` last read. */
@@ -34,7 +35,7 @@ export const POST: RequestHandler = apiHandler(async (event) => {
 	const fields = Object.fromEntries(Object.entries(b).map(([k, x]) => [k, typeof x === 'number' ? String(x) : x === null ? '' : x]));
 	const f = await validateSensorInput(getDb(), network, fields);
 	const after = await editSensor(getDb(), network, actor.id, Number(event.params.sensorId), v, f);
-	return json({ sensor: sensorView(after, workingCrsOf(network)) });
+	return json({ sensor: sensorView(after, await workingCrs(getDb(), network)) });
 });
 
 /** DELETE /api/v1/networks/:id/sensors/:sensorId?version=n */
