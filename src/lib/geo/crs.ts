@@ -85,7 +85,7 @@ export function isProjected(epsg: number): boolean {
 }
 
 /** Projected, and with ground-true metres near any network (not Web Mercator, not EASE-Grid 2.0). */
-export function isSuitableWorkingCrs(epsg: number): boolean {
+function isSuitableWorkingCrs(epsg: number): boolean {
 	return isProjected(epsg) && !GLOBAL_DISTORTED.has(epsg);
 }
 

@@ -56,7 +56,7 @@ export const isoDate = z
 	}, 'install_date is not a real calendar date');
 
 /** Raw fields as text (CSV) or JSON values (GeoJSON), before coordinates are resolved. */
-export const sensorFieldsSchema = z.object({
+const sensorFieldsSchema = z.object({
 	id: text('id', 64).regex(ID_PATTERN, 'id may hold only letters, digits, ".", "_", ":" and "-", starting with a letter or digit'),
 	serial: text('serial', 100),
 	type: text('type', 100),
@@ -66,7 +66,7 @@ export const sensorFieldsSchema = z.object({
 });
 
 /** Number from a CSV cell or a JSON value; '' and null mean "not given". */
-export function numberField(raw: unknown): number | null | 'invalid' {
+function numberField(raw: unknown): number | null | 'invalid' {
 	if (raw === undefined || raw === null) return null;
 	if (typeof raw === 'number') return Number.isFinite(raw) ? raw : 'invalid';
 	if (typeof raw !== 'string') return 'invalid';
@@ -134,7 +134,7 @@ export function resolvePosition(p: PositionInput, row: number): { lon: number; l
 }
 
 /** Match a type name case-insensitively against the known names; the canonical spelling is kept. */
-export function typeMatcher(knownTypes: readonly string[]): (name: string) => string | null {
+function typeMatcher(knownTypes: readonly string[]): (name: string) => string | null {
 	const byKey = new Map(knownTypes.map((t) => [t.trim().toLowerCase(), t]));
 	return (name) => byKey.get(name.trim().toLowerCase()) ?? null;
 }
@@ -147,7 +147,7 @@ function emptyToUndefined(v: unknown): unknown {
  * Validate one record's fields and position. `raw` holds the file's own names
  * (id, serial, type, lon, lat, x, y, crs, install_date, status, notes).
  */
-export function validateSensor(raw: Record<string, unknown>, row: number, matchType: (name: string) => string | null, knownTypes: readonly string[]): SensorRecord | RowError[] {
+function validateSensor(raw: Record<string, unknown>, row: number, matchType: (name: string) => string | null, knownTypes: readonly string[]): SensorRecord | RowError[] {
 	const errors: RowError[] = [];
 	const parsed = sensorFieldsSchema.safeParse({
 		id: raw.id,

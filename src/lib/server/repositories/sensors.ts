@@ -114,11 +114,6 @@ export async function findSensor(db: Db, networkId: number, id: number, opts: { 
 	return row ? normalise(row) : undefined;
 }
 
-export async function findSensorByCode(db: Db, networkId: number, code: string): Promise<SensorRow | undefined> {
-	const row = (await base(db, networkId).select(selectRow(db)).where('s.code', code).first()) as SensorRow | undefined;
-	return row ? normalise(row) : undefined;
-}
-
 /** Codes among `codes` that the network already uses (compared by the column's collation). */
 export async function existingCodes(db: Db, networkId: number, codes: string[]): Promise<string[]> {
 	if (codes.length === 0) return [];
@@ -137,6 +132,13 @@ function pointWkt(db: Db, lon: number, lat: number) {
 export async function insertSensor(db: Db, networkId: number, f: SensorFields): Promise<number> {
 	const [id] = await db('sensors').insert({ ...f, network_id: networkId, position: pointWkt(db, f.lon, f.lat) });
 	return id;
+}
+
+/** Many sensors in a few multi-row INSERTs (500 rows each). */
+export async function insertSensors(db: Db, networkId: number, rows: readonly SensorFields[]): Promise<void> {
+	for (let i = 0; i < rows.length; i += 500) {
+		await db('sensors').insert(rows.slice(i, i + 500).map((f) => ({ ...f, network_id: networkId, position: pointWkt(db, f.lon, f.lat) })));
+	}
 }
 
 /** Optimistic update: succeeds only when the row still has `version`. */

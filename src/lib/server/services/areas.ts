@@ -35,11 +35,11 @@ export const areaPatch = z
 export type AreaPatch = z.infer<typeof areaPatch>;
 
 /** All parts of all features as one MultiPolygon. */
-export function mergeFeatures(features: readonly PolygonFeature[]): MultiPolygonGeometry {
+function mergeFeatures(features: readonly PolygonFeature[]): MultiPolygonGeometry {
 	return { type: 'MultiPolygon', coordinates: features.flatMap((f) => f.geometry.coordinates) };
 }
 
-export function toExclusions(features: readonly PolygonFeature[]): ExclusionCollection {
+function toExclusions(features: readonly PolygonFeature[]): ExclusionCollection {
 	return {
 		type: 'FeatureCollection',
 		features: features.map((f, i) => ({ type: 'Feature', properties: { name: f.name ?? f.id ?? `Exclusion ${i + 1}` }, geometry: f.geometry }))

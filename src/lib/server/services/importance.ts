@@ -41,7 +41,7 @@ import { ServiceError } from './errors';
 import { settleWorkingCrs } from './working-crs';
 
 /** Largest surface, in cells (4 million Float32 = 16 MB). */
-export const MAX_SURFACE_CELLS = 4_000_000;
+const MAX_SURFACE_CELLS = 4_000_000;
 
 /**
  * The importance surface a network currently works with.
@@ -66,11 +66,6 @@ export interface NetworkImportance {
 	validCount: number;
 	min: number;
 	max: number;
-}
-
-/** The layer ids a recipe definition cites (recipe steps carry them as strings). */
-export function recipeLayerIds(recipe: Recipe): number[] {
-	return [...new Set(recipe.layers.map((l) => Number(l.layerId)))];
 }
 
 async function readyLayer(db: Knex, networkId: number, layerId: string): Promise<LayerRow> {
@@ -252,7 +247,7 @@ export interface RecipeView {
 	versions: RecipeVersionView[];
 }
 
-export function versionView(v: RecipeVersionRow): RecipeVersionView {
+function versionView(v: RecipeVersionRow): RecipeVersionView {
 	return { id: v.id, recipeId: v.recipe_id, version: v.version, definition: v.definition, note: v.note, createdBy: v.created_by_name, createdAt: v.created_at, hasSurface: v.surface_key !== null };
 }
 

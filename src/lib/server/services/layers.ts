@@ -34,7 +34,7 @@ const DEFAULT_MAX_PIXELS = 25_000_000;
  */
 const inspectModule = () => import('../layers/inspect');
 
-export const DEFAULT_LAYER_MAX_BYTES = 500 * 1024 * 1024;
+const DEFAULT_LAYER_MAX_BYTES = 500 * 1024 * 1024;
 
 export interface LayerLimits {
 	maxBytes: number;
@@ -68,7 +68,7 @@ export function formatBytes(n: number): string {
 
 const emptyToUndefined = (v: unknown) => (typeof v === 'string' && v.trim() === '' ? undefined : v);
 
-export const layerMetaInput = z.object({
+const layerMetaInput = z.object({
 	name: z.string({ error: 'Give the layer a name.' }).trim().min(1, 'Give the layer a name.').max(200, 'Keep the name under 200 characters.'),
 	kind: z.enum(LAYER_KINDS, { error: 'Choose what the layer measures.' }),
 	units: z.string().trim().max(50, 'Keep the units under 50 characters.').default(''),

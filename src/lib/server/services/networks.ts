@@ -9,7 +9,7 @@ import { settleWorkingCrs } from './working-crs';
 const slugRe = /^[a-z0-9]+(?:-[a-z0-9]+)*$/;
 
 /** Projected EPSG codes we accept as a working CRS: UTM north/south (WGS 84) and a few equal-area grids. */
-export function isAcceptedWorkingCrs(code: number): boolean {
+function isAcceptedWorkingCrs(code: number): boolean {
 	return (code >= 32601 && code <= 32660) || (code >= 32701 && code <= 32760) || [3035, 6933, 3857, 27700, 2154, 25832, 25833].includes(code);
 }
 
@@ -34,7 +34,7 @@ export const networkPatch = networkInput.partial().extend({
 export type NetworkInput = z.infer<typeof networkInput>;
 export type NetworkPatch = z.infer<typeof networkPatch>;
 
-export function slugify(name: string): string {
+function slugify(name: string): string {
 	return (
 		name
 			.normalize('NFKD')

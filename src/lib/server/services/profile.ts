@@ -5,7 +5,7 @@ import { recordAudit } from '../repositories/audit';
 import { findUserById, updateUser } from '../repositories/users';
 import { ServiceError } from './errors';
 
-export const nameInput = z.string().trim().min(2, 'Enter a name of 2 to 200 characters.').max(200, 'Enter a name of 2 to 200 characters.');
+const nameInput = z.string().trim().min(2, 'Enter a name of 2 to 200 characters.').max(200, 'Enter a name of 2 to 200 characters.');
 
 /** Rename the user, with its audit entry, in one transaction. */
 export async function renameUser(db: Knex, userId: number, name: string): Promise<void> {

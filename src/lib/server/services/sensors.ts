@@ -15,6 +15,7 @@ import {
 	existingCodes,
 	findSensor,
 	insertSensor,
+	insertSensors,
 	listSensors,
 	SENSOR_SORTS,
 	updateSensor,
@@ -79,7 +80,7 @@ export function sensorView(s: SensorRow, crs: number | null): Sensor {
 export const PER_PAGE_CHOICES = [10, 25, 50, 100] as const;
 
 /** Sort, filter and page from URL query parameters; unknown values fall back to defaults. */
-export const sensorListQuery = z.object({
+const sensorListQuery = z.object({
 	sort: z.enum(SENSOR_SORTS).catch('code'),
 	dir: z.enum(['asc', 'desc']).catch('asc'),
 	type: z.coerce.number().int().positive().nullable().catch(null),
@@ -254,8 +255,10 @@ export async function importSensors(db: Knex, network: NetworkRow, actorId: numb
 			return { ok: false as const, errors };
 		}
 		const typeId = new Map(types.map((t) => [t.name, t.id]));
-		for (const r of result.rows) {
-			await insertSensor(trx, network.id, {
+		await insertSensors(
+			trx,
+			network.id,
+			result.rows.map((r) => ({
 				code: r.id,
 				serial: r.serial,
 				sensor_type_id: typeId.get(r.type)!,
@@ -264,8 +267,8 @@ export async function importSensors(db: Knex, network: NetworkRow, actorId: numb
 				status: r.status,
 				installed_on: r.installDate,
 				notes: r.notes ?? ''
-			});
-		}
+			}))
+		);
 		await recordAudit(trx, {
 			organisationId: network.organisation_id,
 			actorUserId: actorId,
@@ -278,7 +281,7 @@ export async function importSensors(db: Knex, network: NetworkRow, actorId: numb
 	});
 }
 
-export async function sensorRecords(db: Knex, networkId: number): Promise<SensorRecord[]> {
+async function sensorRecords(db: Knex, networkId: number): Promise<SensorRecord[]> {
 	const { rows } = await listSensors(db, networkId, { sort: 'code' });
 	return rows.map((s) => ({ id: s.code, serial: s.serial, type: s.type_name, lon: s.lon, lat: s.lat, installDate: s.installed_on, status: s.status, notes: s.notes || null }));
 }

@@ -20,7 +20,7 @@ import {
 	listZoneSets,
 	networkZoneSetId,
 	setNetworkZoneSet,
-	setZoneShare,
+	setZoneShares,
 	type ZoneRow,
 	type ZoneSetKind,
 	type ZoneSetRow
@@ -43,7 +43,7 @@ import { ServiceError } from './errors';
 
 /** Cell sizes offered for grid zones: the SMAP EASE-Grid 2.0 product sizes (FIELD-FACTS.md [S]). */
 export const GRID_PRESETS_M = [1000, 3000, 9000, 36000] as const;
-export const MAX_ZONES = 2500;
+const MAX_ZONES = 2500;
 
 /** The importance on the working grid, with the recipe version it came from. */
 export interface ImportanceSurface {
@@ -234,7 +234,7 @@ export async function measureZoneSet(db: Knex, network: NetworkRow, actorId: num
 		if (!set) throw new ServiceError(404, 'not_found', 'No such zone set.');
 		const zones = await listZones(trx, [set.id]);
 		const shares = importance ? zoneShares(importance.grid, zones.map((z) => z.geometry)) : zones.map(() => null);
-		for (let k = 0; k < zones.length; k++) await setZoneShare(trx, zones[k].id, shares[k]);
+		await setZoneShares(trx, zones.map((z, k) => ({ id: z.id, share: shares[k] })));
 		await trx('zone_sets').where({ id: set.id }).update({ recipe_version_id: importance?.recipeVersionId ?? null });
 		await recordAudit(trx, { organisationId: network.organisation_id, actorUserId: actorId, action: 'zone_set.measure', objectType: 'zone_set', objectId: set.id, after: { recipe_version_id: importance?.recipeVersionId ?? null } });
 	});
@@ -356,7 +356,7 @@ export async function currentZoneSet(db: Knex, networkId: number): Promise<ZoneS
 }
 
 /** Whether a sensor counts as standing in the field: every status but `retired` (a faulty sensor still occupies its site). */
-export function standsInField(s: { status: SensorStatus }): boolean {
+function standsInField(s: { status: SensorStatus }): boolean {
 	return s.status !== 'retired';
 }
 
