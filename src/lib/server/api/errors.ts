@@ -1,18 +1,11 @@
 /** The one error shape of the JSON API: { "error": { "code", "message", "fields"? } }. */
 import { json, isHttpError, isRedirect, type RequestEvent } from '@sveltejs/kit';
 import type { ZodError } from 'zod';
+import { ApiClientError } from '../../api/client';
 import { ServiceError, zodFields } from '../services/errors';
 
-export class ApiError extends Error {
-	constructor(
-		public status: number,
-		public code: string,
-		message: string,
-		public fields?: Record<string, string>
-	) {
-		super(message);
-	}
-}
+/** An error the endpoint answers with: the same shape the typed client raises on the other side. */
+export class ApiError extends ApiClientError {}
 
 export function apiErrorBody(code: string, message: string, fields?: Record<string, string>) {
 	return { error: fields ? { code, message, fields } : { code, message } };

@@ -80,17 +80,7 @@ export async function findLayer(db: Db, networkId: number, id: number): Promise<
 	return row ? parseRow(row) : undefined;
 }
 
-export interface NewLayer {
-	network_id: number;
-	name: string;
-	kind: LayerKind;
-	units: string;
-	acquired_on: string | null;
-	platform: LayerPlatform;
-	band: number;
-	original_name: string;
-	created_by: number | null;
-}
+export type NewLayer = Pick<LayerRow, 'network_id' | 'name' | 'kind' | 'units' | 'acquired_on' | 'platform' | 'band' | 'original_name' | 'created_by'>;
 
 export async function insertLayer(db: Db, f: NewLayer): Promise<number> {
 	const [id] = await db('layers').insert({ ...f, status: 'uploading' });
