@@ -207,4 +207,13 @@ describe('networkMap (service, test database)', () => {
 		expect(page.sensors[0].x).toBeCloseTo(x, 2);
 		expect(page.sensors[0].y).toBeCloseTo(y, 2);
 	});
+
+	it('a map that cannot be drawn is the user\'s to fix (422 map_unavailable), not a server error', async () => {
+		const admin = await makeMember(t.db, 'admin');
+		// A working CRS the app has no definition for (stored before its definition was removed, say).
+		const [id] = await t.db('networks').insert({ organisation_id: admin.organisationId, slug: 'nocrs', name: 'No CRS', description: '', public_text: '', working_epsg: 99999 });
+		const network = (await findNetwork(t.db, id))!;
+		await expect(networkMap(t.db, { network, importance: noImportance, apiBase: '' })).rejects.toMatchObject({ status: 422, code: 'map_unavailable' });
+		await expect(importancePng(t.db, network, noImportance)).rejects.toMatchObject({ status: 422, code: 'map_unavailable' });
+	});
 });

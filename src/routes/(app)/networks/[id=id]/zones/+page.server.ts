@@ -7,6 +7,7 @@ import { formFields, parseForm, serviceFailure } from '$lib/server/forms';
 import { getObjectStore } from '$lib/server/storage/app-store';
 import { areaView, parseAreaUpload, setArea } from '$lib/server/services/areas';
 import { workingCrs } from '$lib/server/services/working-crs';
+import { networkRecipeVersionId } from '$lib/server/repositories/recipes';
 import {
 	computedInput,
 	createComputedZoneSet,
@@ -29,7 +30,6 @@ export const load = (async (event) => {
 	const { network, role } = await networkAccess(event, 'layer.view');
 	const db = getDb();
 	const area = areaView(network);
-	const recipe = await db('networks').select('recipe_version_id').where({ id: network.id }).first();
 	return {
 		area: {
 			version: area.version,
@@ -39,7 +39,7 @@ export const load = (async (event) => {
 		},
 		workingCrs: await workingCrs(db, network),
 		zoneSets: (await zoneSetViews(db, network)).map((s) => ({ ...s, createdAt: s.createdAt.toISOString() })),
-		recipeVersionId: (recipe?.recipe_version_id as number | null) ?? null,
+		recipeVersionId: await networkRecipeVersionId(db, network.id),
 		presetsKm: GRID_PRESETS_M.map((m) => m / 1000),
 		canEditArea: roleAllows(role, 'area.edit'),
 		canEditZones: roleAllows(role, 'zone.edit')
