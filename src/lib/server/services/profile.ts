@@ -9,12 +9,12 @@ const nameInput = z.string().trim().min(2, 'Enter a name of 2 to 200 characters.
 
 /** Rename the user, with its audit entry, in one transaction. */
 export async function renameUser(db: Knex, userId: number, name: string): Promise<void> {
-	const parsed = nameInput.safeParse(name);
-	if (!parsed.success) throw new ServiceError(400, 'invalid_input', parsed.error.issues[0].message, 'name');
+	const parsed = z.object({ name: nameInput }).safeParse({ name });
+	if (!parsed.success) throw ServiceError.fromZod(parsed.error);
 	await db.transaction(async (trx) => {
 		const before = await findUserById(trx, userId);
 		if (!before) throw new ServiceError(404, 'not_found', 'No such user.');
-		await updateUser(trx, userId, { name: parsed.data });
-		await recordAudit(trx, { organisationId: null, actorUserId: userId, action: 'user.rename', objectType: 'user', objectId: userId, before: { name: before.name }, after: { name: parsed.data } });
+		await updateUser(trx, userId, { name: parsed.data.name });
+		await recordAudit(trx, { organisationId: null, actorUserId: userId, action: 'user.rename', objectType: 'user', objectId: userId, before: { name: before.name }, after: { name: parsed.data.name } });
 	});
 }
