@@ -72,6 +72,19 @@ describe('sensors service', () => {
 		expect(jsonValue(audit.after)).toMatchObject({ format: 'csv', count: 14 });
 	});
 
+	it('an import writes its rows in one multi-row INSERT (500 rows a statement), not one per row', async () => {
+		const net = await freshNetwork();
+		await t.db('sensors').where({ network_id: net.id }).delete();
+		const sql: string[] = [];
+		const onQuery = (q: { sql: string }) => sql.push(q.sql);
+		t.db.on('query', onQuery);
+		const r = await importSensors(t.db, net, member.userId, demoCsv, 'csv', 'sensors.csv');
+		t.db.off('query', onQuery);
+		expect(r).toEqual({ ok: true, count: 14 });
+		expect(sql.filter((q) => /^insert into `sensors`/i.test(q))).toHaveLength(1);
+		expect(await t.db('sensors').where({ network_id: net.id })).toHaveLength(14);
+	});
+
 	it('one bad row stores nothing and the report names the row and the field', async () => {
 		const net = await freshNetwork();
 		const lines = demoCsv.trimEnd().split('\n');
