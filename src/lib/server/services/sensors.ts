@@ -33,7 +33,7 @@ import {
 	type SensorRecord
 } from '../inventory';
 import { isoDate, resolvePosition } from '../inventory/sensor-record';
-import { CrsError, transformer } from '../../geo/crs';
+import { transformer } from '../../geo/crs';
 import { workingCrs } from './working-crs';
 import type { Sensor } from '../../api/client';
 import { ServiceError, zodFields } from './errors';

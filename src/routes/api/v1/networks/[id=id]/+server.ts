@@ -1,7 +1,7 @@
 import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
-import { apiHandler, readJson, ApiError } from '$lib/server/api/errors';
+import { apiHandler, readJson } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { roleAllows } from '$lib/server/auth/roles';
 import { networkPatch, publicView, updateNetworkDetails } from '$lib/server/services/networks';
