@@ -6,6 +6,7 @@ import { z } from 'zod';
 import { CrsError, parseEpsg, transformer } from '../../geo/crs';
 
 import { SENSOR_STATUSES, type SensorStatus } from '../../api/client';
+import { zodFields } from '../services/errors';
 
 export { SENSOR_STATUSES, type SensorStatus };
 
@@ -40,7 +41,7 @@ const ID_PATTERN = /^[A-Za-z0-9][A-Za-z0-9._:-]*$/;
 
 const text = (field: string, max: number) =>
 	z
-		.string({ error: `${field} must be text` })
+		.string({ error: (issue) => (issue.input === undefined ? `${field} is required` : `${field} must be text`) })
 		.trim()
 		.min(1, { message: `${field} is required`, abort: true })
 		.max(max, `${field} is longer than ${max} characters`);
@@ -158,11 +159,7 @@ function validateSensor(raw: Record<string, unknown>, row: number, matchType: (n
 		notes: emptyToUndefined(raw.notes)
 	});
 	if (!parsed.success) {
-		for (const issue of parsed.error.issues) {
-			const field = String(issue.path[0] ?? '');
-			const message = issue.code === 'invalid_type' && issue.input === undefined ? `${field} is required` : issue.message;
-			errors.push({ row, field, message });
-		}
+		for (const [field, message] of Object.entries(zodFields(parsed.error))) errors.push({ row, field, message });
 	}
 	// The type is checked whenever it is present, so one pass shows every problem of the row.
 	let type: string | null = null;
