@@ -34,7 +34,32 @@ function demoStudyArea(): unknown | null {
 	return g ?? null;
 }
 
-export async function seed(knex: Knex): Promise<void> {
+/**
+ * Whether the demo users (with their published passwords) may be created: only for a local start,
+ * where ORIGIN is a loopback address, unless SEED_DEMO_USERS=true asks for them explicitly, and
+ * then with a loud warning. SEED_DEMO_USERS=false never creates them.
+ */
+export function demoUsersWanted(origin: string | undefined, env: Record<string, string | undefined>): { users: boolean; warning: string | null } {
+	if (env.SEED_DEMO_USERS === 'false') return { users: false, warning: null };
+	let host = '';
+	try {
+		host = origin ? new URL(origin).hostname.replace(/^\[|\]$/g, '') : '';
+	} catch {
+		host = '';
+	}
+	const loopback = host === 'localhost' || host === '::1' || /^127(\.\d{1,3}){3}$/.test(host);
+	if (loopback) return { users: true, warning: null };
+	if (env.SEED_DEMO_USERS === 'true') {
+		return {
+			users: true,
+			warning: `WARNING: demo users with published passwords are being created on ${origin}, which is not this machine alone. Anyone who reads the README can sign in as an administrator. Remove them before real use.`
+		};
+	}
+	return { users: false, warning: `demo users skipped: ORIGIN ${origin ?? '(unset)'} is not a loopback address (set SEED_DEMO_USERS=true to create them anyway)` };
+}
+
+export async function seed(knex: Knex, opts: { users?: boolean } = {}): Promise<void> {
+	const withUsers = opts.users ?? true;
 	await knex.transaction(async (trx) => {
 		let org = await trx('organisations').select('id').where({ slug: DEMO_ORGANISATION.slug }).first();
 		if (!org) {
@@ -42,7 +67,7 @@ export async function seed(knex: Knex): Promise<void> {
 			org = { id };
 		}
 		const ids: Record<string, number> = {};
-		for (const u of DEMO_USERS) {
+		for (const u of withUsers ? DEMO_USERS : []) {
 			let user = await trx('users').select('id').where({ email: u.email }).first();
 			if (!user) {
 				const [id] = await trx('users').insert({ email: u.email, name: u.name, password_hash: bcrypt.hashSync(u.password, 10), email_verified_at: new Date() });
@@ -61,9 +86,9 @@ export async function seed(knex: Knex): Promise<void> {
 				crs_epsg: null,
 				study_area: area ? JSON.stringify(area) : null,
 				publication: 'published',
-				created_by: ids.admin
+				created_by: ids.admin ?? null
 			});
-			await trx('audit_log').insert({ organisation_id: org.id, actor_user_id: ids.admin, action: 'network.create', object_type: 'network', object_id: String(id), after: JSON.stringify({ seeded: true }) });
+			await trx('audit_log').insert({ organisation_id: org.id, actor_user_id: ids.admin ?? null, action: 'network.create', object_type: 'network', object_id: String(id), after: JSON.stringify({ seeded: true }) });
 		}
 		await seedDemoInventory(trx, (await trx('networks').select('id').where({ organisation_id: org.id, slug: DEMO_NETWORK.slug }).first()).id);
 	});

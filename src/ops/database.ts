@@ -14,11 +14,15 @@ export async function migrateLatest(url: string): Promise<string[]> {
 	}
 }
 
-export async function seedDemo(url: string): Promise<void> {
+/** Loads the demo scenario; its users only for a loopback `origin` unless asked for (see demoUsersWanted). */
+export async function seedDemo(url: string, origin: string): Promise<{ users: boolean }> {
 	const db = createDb(url, 2);
 	try {
-		const { seed } = await import('../../seeds/demo');
-		await seed(db);
+		const { seed, demoUsersWanted } = await import('../../seeds/demo');
+		const { users, warning } = demoUsersWanted(origin, process.env);
+		if (warning) console.warn(users ? `\n${'!'.repeat(78)}\n${warning}\n${'!'.repeat(78)}\n` : warning);
+		await seed(db, { users });
+		return { users };
 	} finally {
 		await db.destroy();
 	}

@@ -78,8 +78,9 @@ try {
 	}
 	const done = await migrateLatest(databaseUrl);
 	log(done.length ? `migrated: ${done.join(', ')}` : 'database schema is up to date');
+	let demoUsers = false;
 	if (process.env.SEED_DEMO !== 'false') {
-		await seedDemo(databaseUrl);
+		demoUsers = (await seedDemo(databaseUrl, origin)).users;
 		log('demo data in place');
 	}
 
@@ -91,12 +92,14 @@ try {
 
 	buildIfChanged();
 
-	app = spawn(process.execPath, [path.join(root, 'build', 'index.js')], {
+	app = spawn(process.execPath, [path.join(root, 'src', 'ops', 'serve.mjs')], {
 		cwd: root,
 		stdio: 'inherit',
 		env: {
 			...process.env,
-			NODE_ENV: 'production',
+			// A local start: not "production", so that the development inbox may be shown (on a loopback ORIGIN only).
+			NODE_ENV: process.env.NODE_ENV ?? 'development',
+			DEV_INBOX: process.env.DEV_INBOX ?? (process.env.SMTP_HOST ? 'false' : 'true'),
 			SHUTDOWN_TIMEOUT: process.env.SHUTDOWN_TIMEOUT ?? '3',
 			PORT: String(port),
 			HOST: host,
@@ -107,6 +110,7 @@ try {
 			SMTP_PORT: String(smtpPort),
 			DEV_MAIL_DIR: process.env.SMTP_HOST ? '' : mailDir,
 			STORAGE_DIR: process.env.STORAGE_DIR ?? path.join(dataDir, 'objects'),
+			// The server's outer bound; each route has its own, smaller one (src/lib/server/http/body-limit.ts).
 			BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? String(600 * 1024 * 1024)
 		}
 	});
@@ -119,8 +123,10 @@ try {
 	const { waitFor } = await import('./system');
 	await waitFor('the app to listen', () => portInUse(port), 30_000);
 	console.log(`\nCairnfield is running at ${origin}\n`);
-	console.log('Demo sign-ins (local development only):');
-	for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(11)} ${u.email.padEnd(28)} ${u.password}`);
+	if (demoUsers) {
+		console.log('Demo sign-ins (local development only):');
+		for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(11)} ${u.email.padEnd(28)} ${u.password}`);
+	}
 	console.log('\nPress Ctrl-C to stop the app and its MariaDB.\n');
 } catch (err) {
 	console.error(`npm start failed: ${err instanceof Error ? err.message : err}`);

@@ -125,14 +125,15 @@ try {
 	}
 
 	if (only !== 'unit') {
-		await seedDemo(databaseUrl);
-		buildIfChanged();
 		const appPort = await freePort();
 		const origin = `http://127.0.0.1:${appPort}`;
-		const app = spawn(process.execPath, [path.join(root, 'build', 'index.js')], {
+		await seedDemo(databaseUrl, origin);
+		buildIfChanged();
+		const app = spawn(process.execPath, [path.join(root, 'src', 'ops', 'serve.mjs')], {
 			cwd: root,
 			stdio: ['ignore', 'ignore', 'inherit'],
-			env: { ...process.env, ...env, NODE_ENV: 'production', SHUTDOWN_TIMEOUT: '3', PORT: String(appPort), HOST: '127.0.0.1', ORIGIN: origin }
+			// As a deployment runs it: production, the server's outer body bound of `npm start` (each route has its own).
+			env: { ...process.env, ...env, NODE_ENV: 'production', SHUTDOWN_TIMEOUT: '3', PORT: String(appPort), HOST: '127.0.0.1', ORIGIN: origin, BODY_SIZE_LIMIT: String(600 * 1024 * 1024) }
 		});
 		cleanups.push(
 			() =>

@@ -21,7 +21,7 @@ test.describe('importance tab', () => {
 	let networkId = 0;
 	test.beforeAll(async () => {
 		const ctx = await contextFor('analyst');
-		const { networks } = (await (await ctx.get('/api/v1/networks', { headers: { accept: 'application/json' } })).json()) as { networks: { id: number; slug: string }[] };
+		const { networks } = (await (await ctx.get('/api/v1/networks?perPage=100', { headers: { accept: 'application/json' } })).json()) as { networks: { id: number; slug: string }[] };
 		networkId = networks.find((n) => n.slug === 'vennarrow-vale')!.id;
 		for (const [file, name, kind] of [
 			['soil-moisture.tif', soilName, 'soil_moisture'],

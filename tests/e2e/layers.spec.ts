@@ -15,7 +15,7 @@ const tag = randomBytes(3).toString('hex');
 
 async function demoNetworkId(): Promise<number> {
 	const ctx = await contextFor('analyst');
-	const res = await ctx.get('/api/v1/networks', { headers: { accept: 'application/json' } });
+	const res = await ctx.get('/api/v1/networks?perPage=100', { headers: { accept: 'application/json' } });
 	const { networks } = (await res.json()) as { networks: { id: number; slug: string }[] };
 	await ctx.dispose();
 	return networks.find((n) => n.slug === 'vennarrow-vale')!.id;

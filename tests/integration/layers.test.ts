@@ -17,7 +17,7 @@ const base = { width: 4, height: 3, bands: [Array.from({ length: 12 }, (_, i) =>
 
 describe('layerLimits', () => {
 	it('defaults to 500 MB and 25 million pixels, reads LAYER_MAX_BYTES and refuses nonsense', () => {
-		expect(layerLimits({})).toEqual({ maxBytes: 524_288_000, maxPixels: 25_000_000 });
+		expect(layerLimits({})).toEqual({ maxBytes: 524_288_000, maxPixels: 25_000_000, decodeHeapMb: 512 });
 		expect(layerLimits({}).maxPixels).toBe(DEFAULT_MAX_PIXELS); // the same default as inspectLayer
 		expect(layerLimits({ LAYER_MAX_BYTES: '1000' }).maxBytes).toBe(1000);
 		expect(() => layerLimits({ LAYER_MAX_BYTES: '-1' })).toThrow(/LAYER_MAX_BYTES/);

@@ -6,13 +6,16 @@ import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpe
 describe('members service', () => {
 	let t: TestDb;
 	beforeAll(async () => {
+		process.env.ORIGIN = 'https://cairnfield.example.org';
 		t = await createTestDatabase();
 	});
 	afterAll(async () => t?.drop());
 
 	it('inviteMember writes the invitation, its e-mail and an audit entry together; acceptInvitation creates the account', async () => {
 		const admin = await makeMember(t.db, 'admin');
-		const { url } = await inviteMember(t.db, { organisationId: admin.organisationId, organisationName: 'Org', inviter: { id: admin.userId, name: 'Ada' }, email: 'New.Person@Example.test', role: 'reviewer', baseUrl: 'http://app' });
+		const { url } = await inviteMember(t.db, { organisationId: admin.organisationId, organisationName: 'Org', inviter: { id: admin.userId, name: 'Ada' }, email: 'New.Person@Example.test', role: 'reviewer' });
+		// Built from ORIGIN, whatever else is going on.
+		expect(url.startsWith('https://cairnfield.example.org/invite/')).toBe(true);
 		const token = url.split('/invite/')[1];
 		const mail = await t.db('outbox_messages').where({ to_address: 'new.person@example.test' }).first();
 		expect(mail.text_body).toContain(url);
@@ -32,7 +35,7 @@ describe('members service', () => {
 		const admin = await makeMember(t.db, 'admin');
 		const other = await makeMember(t.db, 'analyst', admin.organisationId);
 		const before = Number((await t.db('outbox_messages').count({ n: '*' }).first())!.n);
-		await expect(inviteMember(t.db, { organisationId: admin.organisationId, organisationName: 'Org', inviter: { id: admin.userId, name: 'A' }, email: other.email, role: 'analyst', baseUrl: 'http://app' })).rejects.toMatchObject({ code: 'already_member' });
+		await expect(inviteMember(t.db, { organisationId: admin.organisationId, organisationName: 'Org', inviter: { id: admin.userId, name: 'A' }, email: other.email, role: 'analyst' })).rejects.toMatchObject({ code: 'already_member' });
 		expect(Number((await t.db('outbox_messages').count({ n: '*' }).first())!.n)).toBe(before);
 	});
 

@@ -33,6 +33,16 @@ export interface Network {
 	updatedAt: string;
 }
 
+/** A network in a list: no geometry (getNetwork has it). */
+export type NetworkSummary = Omit<Network, 'studyArea' | 'exclusions'> & { hasStudyArea: boolean };
+export interface NetworkList {
+	networks: NetworkSummary[];
+	total: number;
+	page: number;
+	pages: number;
+	perPage: number;
+}
+
 export interface NetworkPatch {
 	version: number;
 	name?: string;
@@ -349,7 +359,8 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		return data as T;
 	}
 	return {
-		listNetworks: () => call<{ networks: Network[] }>('GET', '/networks').then((r) => r.networks),
+		listNetworks: (query: { page?: number; perPage?: 10 | 25 | 50 | 100 } = {}) =>
+			call<NetworkList>('GET', `/networks?${new URLSearchParams(Object.entries(query).map(([k, v]) => [k, String(v)]))}`),
 		getNetwork: (id: number) => call<{ network: Network }>('GET', `/networks/${id}`).then((r) => r.network),
 		createNetwork: (input: { name: string; description?: string; crsEpsg?: number | null; publicText?: string }) =>
 			call<{ network: Network }>('POST', '/networks', input).then((r) => r.network),

@@ -6,6 +6,51 @@
 import type GeoTIFF from 'geotiff';
 import type { GeoTIFFImage } from 'geotiff';
 import { isKnownCrs } from './crs';
+import { tiffBlockProblem } from './tiff-blocks';
+import { BLOCK_OVERFLOW, inflateBounded, lzwDecodeBounded, packBitsDecodeBounded } from './bounded-decoders';
+
+type GeotiffModule = typeof import('geotiff');
+let geotiffModule: Promise<GeotiffModule> | undefined;
+
+/**
+ * The geotiff package, loaded on first use (it pulls in web-worker, which breaks when imported
+ * inside SvelteKit's build-time analysis worker), with its Deflate, LZW and PackBits decoders
+ * replaced by ones that stop at the size the block must decode to (./bounded-decoders): a small
+ * strip that inflates to gigabytes fails at its block's size instead of exhausting memory.
+ */
+function loadGeotiff(): Promise<GeotiffModule> {
+	geotiffModule ??= import('geotiff').then((m) => {
+		const bounded = (codec: (input: Uint8Array, limit: number) => Uint8Array) =>
+			class extends m.BaseDecoder {
+				decodeBlock(buffer: ArrayBufferLike): ArrayBufferLike {
+					const p = this.parameters;
+					const bits = Array.isArray(p.bitsPerSample) || ArrayBuffer.isView(p.bitsPerSample) ? Array.from(p.bitsPerSample as ArrayLike<number>) : [Number(p.bitsPerSample)];
+					// A chunky block holds every sample of its pixels; a planar one fewer: the sum bounds both.
+					const limit = Math.ceil((p.tileWidth * bits.reduce((a, b) => a + b, 0)) / 8) * p.tileHeight;
+					const out = codec(new Uint8Array(buffer as ArrayBuffer), limit);
+					return out.buffer.slice(out.byteOffset, out.byteOffset + out.byteLength);
+				}
+			};
+		const parameters = async (fd: InstanceType<GeotiffModule['ImageFileDirectory']>) => {
+			const tiled = !fd.hasTag('StripOffsets');
+			return {
+				tileWidth: Number(tiled ? await fd.loadValue('TileWidth') : await fd.loadValue('ImageWidth')),
+				tileHeight: Number(tiled ? await fd.loadValue('TileLength') : (await fd.loadValue('RowsPerStrip')) || (await fd.loadValue('ImageLength'))),
+				planarConfiguration: Number(await fd.loadValue('PlanarConfiguration')),
+				bitsPerSample: (await fd.loadValue('BitsPerSample')) as number | number[],
+				predictor: Number((await fd.loadValue('Predictor')) || 1)
+			};
+		};
+		const deflate = bounded(inflateBounded);
+		const lzw = bounded(lzwDecodeBounded);
+		const packBits = bounded(packBitsDecodeBounded);
+		m.addDecoder([8, 32946], () => Promise.resolve(deflate), parameters, false);
+		m.addDecoder(5, () => Promise.resolve(lzw), parameters, false);
+		m.addDecoder(32773, () => Promise.resolve(packBits), parameters, false);
+		return m;
+	});
+	return geotiffModule;
+}
 
 /**
  * Affine geo-transform [a, b, c, d, e, f] of pixel corners:
@@ -52,7 +97,8 @@ export type RasterErrorReason =
 	| 'unknown-crs'
 	| 'band-missing'
 	| 'unsupported'
-	| 'too-large';
+	| 'too-large'
+	| 'unsafe-blocks';
 
 export class RasterError extends Error {
 	readonly file: string;
@@ -157,6 +203,24 @@ function readEpsg(geoKeys: Record<string, unknown> | null, file: string): number
 	throw new RasterError(file, 'unknown-crs', 'the CRS has no EPSG code in the GeoKeys');
 }
 
+async function blockLayout(image: GeoTIFFImage, file: string, width: number, height: number, compression: number, tiled: boolean): Promise<Parameters<typeof tiffBlockProblem>[0]> {
+	try {
+		const bits = toNumbers(await loadTag(image, 'BitsPerSample')) ?? [1];
+		return {
+			width,
+			height,
+			tile: tiled ? { width: Number(await loadTag(image, 'TileWidth')), height: Number(await loadTag(image, 'TileLength')) } : null,
+			rowsPerStrip: Number((await loadTag(image, 'RowsPerStrip')) ?? height),
+			bitsPerSample: bits,
+			planarConfiguration: Number((await loadTag(image, 'PlanarConfiguration')) ?? 1),
+			compression,
+			byteCounts: toNumbers(await loadTag(image, tiled ? 'TileByteCounts' : 'StripByteCounts')) ?? []
+		};
+	} catch (e) {
+		throw new RasterError(file, 'corrupt', `corrupt TIFF directory (${errorText(e)})`);
+	}
+}
+
 /** Read one band of a GeoTIFF held in memory. */
 export async function readGeoTiff(buffer: ArrayBuffer, opts: ReadGeoTiffOptions = {}): Promise<RasterBand> {
 	const file = opts.name ?? 'raster';
@@ -172,9 +236,7 @@ export async function readGeoTiff(buffer: ArrayBuffer, opts: ReadGeoTiffOptions 
 	let tiff: GeoTIFF;
 	let image: GeoTIFFImage;
 	try {
-		// Loaded on first use: geotiff pulls in web-worker, which breaks when imported inside
-		// SvelteKit's build-time analysis worker.
-		tiff = await (await import('geotiff')).fromArrayBuffer(buffer);
+		tiff = await (await loadGeotiff()).fromArrayBuffer(buffer);
 		image = await tiff.getImage(0);
 	} catch (e) {
 		throw new RasterError(file, 'corrupt', `corrupt TIFF (${errorText(e)})`);
@@ -207,6 +269,9 @@ export async function readGeoTiff(buffer: ArrayBuffer, opts: ReadGeoTiffOptions 
 	if (width * height > maxPixels) {
 		throw new RasterError(file, 'too-large', `${width}×${height} pixels is over the limit of ${maxPixels} pixels`);
 	}
+	// Before any block is decoded: tile sizes, and each block's byte count against what it must inflate to.
+	const blockProblem = tiffBlockProblem(await blockLayout(image, file, width, height, compression, tiled));
+	if (blockProblem) throw new RasterError(file, 'unsafe-blocks', blockProblem);
 	if (bandNo > bandCount) {
 		throw new RasterError(file, 'band-missing', `band ${bandNo} is missing (the file has ${bandCount} band${bandCount === 1 ? '' : 's'})`);
 	}
@@ -231,6 +296,9 @@ export async function readGeoTiff(buffer: ArrayBuffer, opts: ReadGeoTiffOptions 
 		raw = (rasters as unknown as ArrayLike<number>[])[0];
 	} catch (e) {
 		const msg = errorText(e);
+		if (msg.includes(BLOCK_OVERFLOW)) {
+			throw new RasterError(file, 'unsafe-blocks', `a compressed block inflates to more than the block can hold: the file is corrupt or built to exhaust memory`);
+		}
 		if (/compression|decoder/i.test(msg)) {
 			throw new RasterError(file, 'unsupported', `unsupported or corrupt compression (Compression ${compression}: ${msg})`);
 		}

@@ -10,9 +10,13 @@ export interface Actor {
 	memberships: MembershipRow[];
 }
 
-export async function loadActor(db: Db, userId: number): Promise<Actor | null> {
+/**
+ * The actor of a session, or null when the user is gone or disabled, or when the session began
+ * before the user's sessions were ended (its version is older than the user's).
+ */
+export async function loadActor(db: Db, userId: number, sessionVersion: number): Promise<Actor | null> {
 	const user = await findUserById(db, userId);
-	if (!user || user.status !== 'active') return null;
+	if (!user || user.status !== 'active' || user.session_version !== sessionVersion) return null;
 	return { id: user.id, email: user.email, name: user.name, memberships: await membershipsOf(db, user.id) };
 }
 

@@ -6,11 +6,12 @@ import type { RequestEvent } from '@sveltejs/kit';
 import { env } from '$env/dynamic/private';
 import { getDb } from '../db';
 import { enqueueMail } from '../repositories/outbox';
-import { findUserByEmail, normaliseEmail } from '../repositories/users';
+import { findUserByEmail, findUserById, normaliseEmail } from '../repositories/users';
 import { kickOutbox } from '../mail/outbox';
-import { signInLinkMail } from '../mail/templates';
+import { signInLinkMail, SIGN_IN_LINK_MINUTES } from '../mail/templates';
+import { publicOrigin, sameOriginPath, signInLinkOnOrigin } from '../http/public-origin';
 import { knexAdapter } from './adapter';
-import { verifyPassword } from './password';
+import { checkPassword } from './credentials';
 import { isSignInBlocked, recordSignInAttempt } from './rate-limit';
 
 class RateLimited extends CredentialsSignin {
@@ -28,6 +29,10 @@ function clientIp(event: RequestEvent): string {
 export function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 	const db = getDb();
 	const ip = clientIp(event);
+	const origin = publicOrigin();
+	// Auth.js builds its own URLs from AUTH_URL when set, and from Host / X-Forwarded-Host when not:
+	// pin it to ORIGIN so that no request header ever chooses where a link or redirect points.
+	env.AUTH_URL = `${origin}/auth`;
 	return {
 		secret: env.AUTH_SECRET,
 		trustHost: true,
@@ -42,15 +47,14 @@ export function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 				name: 'E-mail and password',
 				credentials: { email: { label: 'E-mail', type: 'email' }, password: { label: 'Password', type: 'password' } },
 				async authorize(credentials) {
-					const email = typeof credentials?.email === 'string' ? normaliseEmail(credentials.email) : '';
+					const email = typeof credentials?.email === 'string' ? credentials.email : '';
 					const password = typeof credentials?.password === 'string' ? credentials.password : '';
-					if (!email || !password || email.length > 254 || password.length > 200) return null;
-					if (await isSignInBlocked(db, email, ip)) throw new RateLimited();
-					const user = await findUserByEmail(db, email);
-					const ok = user?.status === 'active' && (await verifyPassword(password, user.password_hash));
-					await recordSignInAttempt(db, email, ip, !!ok);
-					if (!ok || !user) return null;
-					return { id: String(user.id), email: user.email, name: user.name };
+					const result = await checkPassword(db, email, password, ip);
+					if (!result.ok) {
+						if (result.reason === 'throttled') throw new RateLimited();
+						return null;
+					}
+					return { id: String(result.user.id), email: result.user.email, name: result.user.name };
 				}
 			}),
 			Nodemailer({
@@ -58,16 +62,17 @@ export function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 				name: 'E-mail link',
 				server: { host: env.SMTP_HOST ?? '127.0.0.1', port: Number(env.SMTP_PORT ?? 2525) },
 				from: env.MAIL_FROM ?? 'Cairnfield <no-reply@cairnfield.test>',
-				maxAge: 24 * 3600,
+				maxAge: SIGN_IN_LINK_MINUTES * 60,
 				normalizeIdentifier: (id) => normaliseEmail(id),
 				async sendVerificationRequest({ identifier, url }) {
-					// Only existing, active users get a link; the page says the same either way.
+					// Only existing, active users get a link; the page says the same either way, and
+					// delivery is not awaited, so the answer takes as long either way.
 					const user = await findUserByEmail(db, identifier);
 					if (!user || user.status !== 'active') return;
 					await db.transaction(async (trx) => {
-						await enqueueMail(trx, signInLinkMail(identifier, url));
+						await enqueueMail(trx, signInLinkMail(identifier, signInLinkOnOrigin(url, origin)));
 					});
-					await kickOutbox().catch(() => {});
+					void kickOutbox().catch(() => {});
 				}
 			})
 		],
@@ -81,12 +86,20 @@ export function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 				}
 				return true;
 			},
-			jwt({ token, user }) {
-				if (user?.id) token.sub = user.id;
+			redirect({ url }) {
+				return origin + sameOriginPath(url, '/networks', origin);
+			},
+			async jwt({ token, user }) {
+				if (user?.id) {
+					// A session carries the user's session version from when it began (see auth/actor.ts).
+					token.sub = user.id;
+					token.sessionVersion = (await findUserById(db, Number(user.id)))?.session_version ?? -1;
+				}
 				return token;
 			},
 			session({ session, token }) {
 				if (token.sub) session.user.id = token.sub;
+				(session as { sessionVersion?: number }).sessionVersion = typeof token.sessionVersion === 'number' ? token.sessionVersion : -1;
 				return session;
 			}
 		}

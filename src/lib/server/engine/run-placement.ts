@@ -5,19 +5,12 @@
  * tsx (a runtime dependency), from the project's own source tree.
  */
 import { Worker } from 'node:worker_threads';
-import path from 'node:path';
-import { existsSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
+import { workerEntryPath } from '../worker-entry-path';
 import type { HistoryEntry, PlacementOptions, PlacementResult, SensorInput, WorkingGrid, ZoneMap } from '../../engine/types';
 import { EngineInputError } from '../../engine/errors';
 
 function entryPath(): string {
-	// Beside this file in the source tree; from a production build, under the project root.
-	const here = path.join(path.dirname(fileURLToPath(import.meta.url)), 'worker-bootstrap.mjs');
-	if (existsSync(here)) return here;
-	const fromRoot = path.resolve(process.cwd(), 'src/lib/server/engine/worker-bootstrap.mjs');
-	if (existsSync(fromRoot)) return fromRoot;
-	throw new Error('placement worker entry not found (run the server from the project folder)');
+	return workerEntryPath(import.meta.url, 'engine/worker-bootstrap.mjs');
 }
 
 export interface RunPlacementOptions {

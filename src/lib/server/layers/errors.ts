@@ -8,7 +8,8 @@ export type LayerRejectedCode =
 	| 'too-large'
 	| 'corrupt'
 	| 'unsupported'
-	| 'rotated';
+	| 'rotated'
+	| 'unsafe-blocks';
 
 /** An upload that cannot become a layer. `message` is a full sentence for the user. */
 export class LayerRejected extends Error {

@@ -65,7 +65,8 @@ const REASON_CODE: Record<string, LayerRejectedCode> = {
 	'unknown-crs': 'unknown-crs',
 	'band-missing': 'band-missing',
 	unsupported: 'unsupported',
-	'too-large': 'too-large'
+	'too-large': 'too-large',
+	'unsafe-blocks': 'unsafe-blocks'
 };
 
 function toArrayBuffer(input: ArrayBuffer | Uint8Array): ArrayBuffer {

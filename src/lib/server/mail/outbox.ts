@@ -17,7 +17,7 @@ export async function deliverPending(limit = 20): Promise<number> {
 		const rows = await claimPending(trx, limit);
 		for (const row of rows) {
 			try {
-				await getTransport().sendMail({ from: mailFrom(), to: row.to_address, subject: row.subject, text: row.text_body, html: row.html_body ?? undefined });
+				await getTransport().sendMail({ from: mailFrom(), to: row.to_address, subject: row.subject, text: row.text_body ?? '', html: row.html_body ?? undefined });
 				await markSent(trx, row.id);
 				sent++;
 			} catch (err) {

@@ -26,7 +26,10 @@ export function passwordResetMail(to: string, url: string): OutgoingMail {
 	return { to, subject: 'Reset your Cairnfield password', text: `${lines.join('\n\n')}\n\n${url}\n`, html: html(lines, { url, label: 'Choose a new password' }) };
 }
 
+/** How long an e-mailed sign-in link stays valid. */
+export const SIGN_IN_LINK_MINUTES = 15;
+
 export function signInLinkMail(to: string, url: string): OutgoingMail {
-	const lines = ['Open the link below to sign in to Cairnfield. It works once and expires in 24 hours.', 'If you did not ask for it, ignore this message.'];
+	const lines = [`Open the link below to sign in to Cairnfield. It works once and expires in ${SIGN_IN_LINK_MINUTES} minutes.`, 'If you did not ask for it, ignore this message.'];
 	return { to, subject: 'Your Cairnfield sign-in link', text: `${lines.join('\n\n')}\n\n${url}\n`, html: html(lines, { url, label: 'Sign in to Cairnfield' }) };
 }

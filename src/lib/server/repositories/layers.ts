@@ -80,7 +80,10 @@ export async function findLayer(db: Db, networkId: number, id: number): Promise<
 	return row ? parseRow(row) : undefined;
 }
 
-export type NewLayer = Pick<LayerRow, 'network_id' | 'name' | 'kind' | 'units' | 'acquired_on' | 'platform' | 'band' | 'original_name' | 'created_by'>;
+export type NewLayer = Pick<LayerRow, 'network_id' | 'name' | 'kind' | 'units' | 'acquired_on' | 'platform' | 'band' | 'original_name' | 'created_by'> & {
+	/** Known before the upload starts, so that a crash mid-upload leaves a key the sweeper can remove. */
+	storage_key?: string | null;
+};
 
 export async function insertLayer(db: Db, f: NewLayer): Promise<number> {
 	const [id] = await db('layers').insert({ ...f, status: 'uploading' });
@@ -97,4 +100,9 @@ export async function updateLayer(db: Db, id: number, patch: LayerPatch): Promis
 
 export async function deleteLayerRow(db: Db, id: number): Promise<void> {
 	await db('layers').where({ id }).delete();
+}
+
+/** Uploads that never finished (the server stopped mid-way): still uploading or processing since before `before`. */
+export async function abandonedUploads(db: Db, before: Date): Promise<{ id: number; storage_key: string | null; preview_key: string | null }[]> {
+	return db('layers').select('id', 'storage_key', 'preview_key').whereIn('status', ['uploading', 'processing']).andWhere('updated_at', '<', before).orderBy('id');
 }

@@ -25,10 +25,25 @@ function parseJsonColumns(row: Record<string, unknown>): NetworkRow {
 	return { ...(row as unknown as NetworkRow), study_area: parse(row.study_area), exclusions: parse(row.exclusions) };
 }
 
-export async function listNetworks(db: Db, organisationIds: number[]): Promise<NetworkRow[]> {
-	if (organisationIds.length === 0) return [];
-	const rows = await db('networks').select(columns).whereIn('organisation_id', organisationIds).orderBy('name');
-	return rows.map(parseJsonColumns);
+/** A network in a list: no study-area or exclusion geometry (fetch one network for those). */
+export type NetworkSummaryRow = Omit<NetworkRow, 'study_area' | 'exclusions'> & { has_study_area: boolean };
+
+const summaryColumns = ['id', 'organisation_id', 'slug', 'name', 'description', 'crs_epsg', 'publication', 'public_text', 'version', 'created_at', 'updated_at'] as const;
+
+/** One page of the organisations' networks by name, and how many there are in all. */
+export async function listNetworks(db: Db, organisationIds: number[], page: { limit: number; offset: number }): Promise<{ rows: NetworkSummaryRow[]; total: number }> {
+	if (organisationIds.length === 0) return { rows: [], total: 0 };
+	const [rows, count] = await Promise.all([
+		db('networks')
+			.select(...summaryColumns, db.raw('study_area IS NOT NULL AS has_study_area'))
+			.whereIn('organisation_id', organisationIds)
+			.orderBy('name')
+			.orderBy('id')
+			.limit(page.limit)
+			.offset(page.offset),
+		db('networks').whereIn('organisation_id', organisationIds).count({ n: '*' }).first()
+	]);
+	return { rows: rows.map((r: Record<string, unknown>) => ({ ...(r as unknown as NetworkSummaryRow), has_study_area: !!Number(r.has_study_area) })), total: Number(count?.n ?? 0) };
 }
 
 export async function findNetwork(db: Db, id: number, opts: { forUpdate?: boolean } = {}): Promise<NetworkRow | undefined> {

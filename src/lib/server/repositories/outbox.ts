@@ -11,7 +11,8 @@ export interface OutboxRow {
 	id: number;
 	to_address: string;
 	subject: string;
-	text_body: string;
+	/** Cleared (null) once the message was sent: it may hold a sign-in or reset link. */
+	text_body: string | null;
 	html_body: string | null;
 	attempts: number;
 }
@@ -33,8 +34,14 @@ export async function claimPending(db: Db, limit: number): Promise<OutboxRow[]> 
 		.skipLocked();
 }
 
+/** Marks a message sent and clears its body: a sent body may hold a token link and is never needed again. */
 export async function markSent(db: Db, id: number): Promise<void> {
-	await db('outbox_messages').where({ id }).update({ status: 'sent', sent_at: db.fn.now(), attempts: db.raw('attempts + 1') });
+	await db('outbox_messages').where({ id }).update({ status: 'sent', sent_at: db.fn.now(), attempts: db.raw('attempts + 1'), text_body: null, html_body: null });
+}
+
+/** Removes messages that failed for good more than `olderThanDays` ago. */
+export async function purgeFailedMail(db: Db, olderThanDays: number): Promise<number> {
+	return db('outbox_messages').where({ status: 'failed' }).andWhere('created_at', '<', new Date(Date.now() - olderThanDays * 24 * 3600_000)).delete();
 }
 
 export async function markFailed(db: Db, id: number, error: string, giveUp: boolean): Promise<void> {

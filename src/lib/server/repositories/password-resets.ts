@@ -17,3 +17,14 @@ export async function recentResetCount(db: Db, userId: number, sinceMinutes: num
 	const row = await db('password_resets').where({ user_id: userId }).andWhere('created_at', '>=', new Date(Date.now() - sinceMinutes * 60_000)).count({ n: '*' }).first();
 	return Number(row?.n ?? 0);
 }
+
+/** Marks every still-open reset of the user as used: after a reset or a change, older links stop working. */
+export async function closeOpenResets(db: Db, userId: number): Promise<number> {
+	return db('password_resets').where({ user_id: userId }).whereNull('used_at').update({ used_at: db.fn.now() });
+}
+
+/** Removes resets that expired or were used more than `olderThanDays` ago. */
+export async function purgeOldResets(db: Db, olderThanDays: number): Promise<number> {
+	const before = new Date(Date.now() - olderThanDays * 24 * 3600_000);
+	return db('password_resets').where('expires_at', '<', before).delete();
+}

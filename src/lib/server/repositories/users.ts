@@ -8,6 +8,8 @@ export interface UserRow {
 	password_hash: string | null;
 	status: 'active' | 'disabled';
 	email_verified_at: Date | null;
+	/** Raised to end every session of the user at once; each session carries the value it began with. */
+	session_version: number;
 	created_at: Date;
 }
 
@@ -18,7 +20,7 @@ export interface MembershipRow {
 	role: Role;
 }
 
-const userColumns = ['id', 'email', 'name', 'password_hash', 'status', 'email_verified_at', 'created_at'] as const;
+const userColumns = ['id', 'email', 'name', 'password_hash', 'status', 'email_verified_at', 'session_version', 'created_at'] as const;
 
 export function normaliseEmail(email: string): string {
 	return email.trim().toLowerCase();
@@ -39,6 +41,11 @@ export async function insertUser(db: Db, user: { email: string; name: string; pa
 
 export async function updateUser(db: Db, id: number, patch: Partial<Pick<UserRow, 'name' | 'password_hash' | 'status' | 'email_verified_at'>>): Promise<void> {
 	await db('users').where({ id }).update({ ...patch, updated_at: db.fn.now() });
+}
+
+/** Ends every session the user holds: sessions that carry an older version are refused. */
+export async function bumpSessionVersion(db: Db, id: number): Promise<void> {
+	await db('users').where({ id }).update({ session_version: db.raw('session_version + 1'), updated_at: db.fn.now() });
 }
 
 export async function membershipsOf(db: Db, userId: number): Promise<MembershipRow[]> {

@@ -17,6 +17,7 @@ import { Readable } from 'node:stream';
 import type { Knex } from 'knex';
 import { z } from 'zod';
 import { LayerRejected } from '../layers/errors';
+import { decodeLayer } from '../layers/decode';
 import { renderPreview } from '../layers/preview';
 import { newObjectKey, type ObjectStore } from '../storage/object-store';
 import { recordAudit } from '../repositories/audit';
@@ -28,17 +29,13 @@ import { LAYER_KINDS, LAYER_PLATFORMS, type Layer } from '../../api/client';
 /** inspect.ts's default pixel limit (25 million), repeated so that this module loads without geotiff. */
 const DEFAULT_MAX_PIXELS = 25_000_000;
 
-/**
- * The GeoTIFF reader is loaded on first use, not with this module: the geotiff package starts a
- * worker shim when imported inside a worker thread, which is where SvelteKit analyses the build.
- */
-const inspectModule = () => import('../layers/inspect');
-
 const DEFAULT_LAYER_MAX_BYTES = 500 * 1024 * 1024;
 
 export interface LayerLimits {
 	maxBytes: number;
 	maxPixels: number;
+	/** Heap limit of the worker that decodes an upload (MB); default 512. */
+	decodeHeapMb?: number;
 }
 
 function positiveInt(value: string | undefined, fallback: number, name: string): number {
@@ -49,7 +46,11 @@ function positiveInt(value: string | undefined, fallback: number, name: string):
 }
 
 export function layerLimits(env: Record<string, string | undefined>): LayerLimits {
-	return { maxBytes: positiveInt(env.LAYER_MAX_BYTES, DEFAULT_LAYER_MAX_BYTES, 'LAYER_MAX_BYTES'), maxPixels: positiveInt(env.LAYER_MAX_PIXELS, DEFAULT_MAX_PIXELS, 'LAYER_MAX_PIXELS') };
+	return {
+		maxBytes: positiveInt(env.LAYER_MAX_BYTES, DEFAULT_LAYER_MAX_BYTES, 'LAYER_MAX_BYTES'),
+		maxPixels: positiveInt(env.LAYER_MAX_PIXELS, DEFAULT_MAX_PIXELS, 'LAYER_MAX_PIXELS'),
+		decodeHeapMb: positiveInt(env.LAYER_DECODE_HEAP_MB, 512, 'LAYER_DECODE_HEAP_MB')
+	};
 }
 
 /** The upload is larger than LAYER_MAX_BYTES (answered with 413). */
@@ -146,6 +147,7 @@ export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadConte
 		throw ServiceError.fromZod(parsed.error);
 	}
 	const m = parsed.data;
+	const storageKey = newObjectKey('layers');
 	const id = await insertLayer(db, {
 		network_id: ctx.networkId,
 		name: m.name,
@@ -155,9 +157,9 @@ export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadConte
 		platform: m.platform,
 		band: m.band,
 		original_name: m.fileName,
-		created_by: ctx.actorId
+		created_by: ctx.actorId,
+		storage_key: storageKey
 	});
-	const storageKey = newObjectKey('layers');
 	let previewKey: string | null = null;
 	try {
 		const counter = { bytes: 0 };
@@ -165,8 +167,8 @@ export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadConte
 		await updateLayer(db, id, { status: 'processing', storage_key: storageKey, size_bytes: size });
 
 		const bytes = await store.getBuffer(storageKey);
-		const { loadLayer } = await inspectModule();
-		const { metadata, band } = await loadLayer(bytes, { band: m.band, name: m.fileName || m.name, maxPixels: limits.maxPixels });
+		// Decoded in a worker thread with memory limits: a decompression bomb ends that worker, not the server.
+		const { metadata, band } = await decodeLayer(bytes, { band: m.band, name: m.fileName || m.name, maxPixels: limits.maxPixels }, { heapMb: limits.decodeHeapMb });
 		const preview = renderPreview(band);
 		previewKey = newObjectKey('previews');
 		await store.put(previewKey, preview.png, { contentType: 'image/png' });

@@ -9,6 +9,7 @@ import { findInvitationByTokenHash, insertInvitation, markAccepted, revokeInvita
 import { enqueueMail } from '../repositories/outbox';
 import { countAdmins, findUserByEmail, insertUser, membership, normaliseEmail, removeMembership, setMembership } from '../repositories/users';
 import { invitationMail } from '../mail/templates';
+import { publicUrl } from '../http/public-origin';
 import { ServiceError } from './errors';
 
 export const INVITATION_DAYS = 7;
@@ -18,7 +19,7 @@ export const inviteInput = z.object({
 	role: z.enum(ROLES, { message: 'Choose a role.' })
 });
 
-export async function inviteMember(db: Knex, opts: { organisationId: number; organisationName: string; inviter: { id: number; name: string }; email: string; role: Role; baseUrl: string }): Promise<{ invitationId: number; url: string }> {
+export async function inviteMember(db: Knex, opts: { organisationId: number; organisationName: string; inviter: { id: number; name: string }; email: string; role: Role }): Promise<{ invitationId: number; url: string }> {
 	const email = normaliseEmail(opts.email);
 	return db.transaction(async (trx) => {
 		const existing = await findUserByEmail(trx, email);
@@ -29,7 +30,8 @@ export async function inviteMember(db: Knex, opts: { organisationId: number; org
 		const { token, hash } = newToken();
 		const expires = new Date(Date.now() + INVITATION_DAYS * 24 * 3600_000);
 		const invitationId = await insertInvitation(trx, { organisation_id: opts.organisationId, email, role: opts.role, token_hash: hash, invited_by: opts.inviter.id, expires_at: expires });
-		const url = `${opts.baseUrl}/invite/${token}`;
+		// Built from ORIGIN alone, never from the request's host headers.
+		const url = publicUrl(`/invite/${token}`);
 		await enqueueMail(trx, invitationMail(email, opts.organisationName, opts.role, opts.inviter.name, url));
 		await recordAudit(trx, { organisationId: opts.organisationId, actorUserId: opts.inviter.id, action: 'invitation.create', objectType: 'invitation', objectId: invitationId, after: { email, role: opts.role } });
 		return { invitationId, url };
@@ -49,7 +51,10 @@ export async function checkInvitation(db: Knex, token: string): Promise<Invitati
 
 export const acceptInput = z.object({
 	name: z.string().trim().min(2, 'Enter your name.').max(200),
-	password: z.string().refine((p) => passwordProblem(p) === null, { message: 'Use at least 10 characters.' })
+	password: z.string().superRefine((p, ctx) => {
+		const problem = passwordProblem(p);
+		if (problem) ctx.addIssue({ code: 'custom', message: problem });
+	})
 });
 
 /** Accepts an invitation: creates the user (or reuses an existing one) and the membership. */

@@ -2,7 +2,7 @@
 import type { Knex } from 'knex';
 import { z } from 'zod';
 import { recordAudit } from '../repositories/audit';
-import { findNetwork, insertNetwork, slugTaken, updateNetwork, type NetworkRow } from '../repositories/networks';
+import { findNetwork, insertNetwork, listNetworks, slugTaken, updateNetwork, type NetworkRow, type NetworkSummaryRow } from '../repositories/networks';
 import { ServiceError } from './errors';
 import { settleWorkingCrs } from './working-crs';
 
@@ -58,7 +58,8 @@ export async function createNetwork(db: Knex, organisationId: number, actorId: n
 	});
 }
 
-export function publicView(n: NetworkRow) {
+/** The fields a network shows everywhere, lists included. */
+function commonView(n: Omit<NetworkRow, 'study_area' | 'exclusions'>) {
 	return {
 		id: n.id,
 		organisationId: n.organisation_id,
@@ -66,8 +67,6 @@ export function publicView(n: NetworkRow) {
 		name: n.name,
 		description: n.description,
 		crsEpsg: n.crs_epsg,
-		studyArea: n.study_area,
-		exclusions: n.exclusions,
 		publication: n.publication,
 		publicText: n.public_text,
 		version: n.version,
@@ -76,7 +75,28 @@ export function publicView(n: NetworkRow) {
 	};
 }
 
+export function publicView(n: NetworkRow) {
+	return { ...commonView(n), studyArea: n.study_area, exclusions: n.exclusions };
+}
+
 export type NetworkView = ReturnType<typeof publicView>;
+
+/** A network as lists show it: the same fields as publicView without the geometry. */
+export function summaryView(n: NetworkSummaryRow) {
+	return { ...commonView(n), hasStudyArea: n.has_study_area };
+}
+
+export const NETWORKS_PER_PAGE = [10, 25, 50, 100] as const;
+
+/** A page of the networks in the organisations: `{ networks, total, page, pages, perPage }`. */
+export async function networkPage(db: Knex, organisationIds: number[], query: URLSearchParams) {
+	const perPageAsked = Number(query.get('perPage') ?? 50);
+	const perPage = (NETWORKS_PER_PAGE as readonly number[]).includes(perPageAsked) ? perPageAsked : 50;
+	const pageAsked = Number(query.get('page') ?? 1);
+	const page = Number.isInteger(pageAsked) && pageAsked >= 1 ? pageAsked : 1;
+	const { rows, total } = await listNetworks(db, organisationIds, { limit: perPage, offset: (page - 1) * perPage });
+	return { networks: rows.map(summaryView), total, page, pages: Math.max(1, Math.ceil(total / perPage)), perPage };
+}
 
 export async function updateNetworkDetails(db: Knex, networkId: number, actorId: number, patch: NetworkPatch, opts: { mayPublish: boolean }): Promise<NetworkRow> {
 	return db.transaction(async (trx) => {

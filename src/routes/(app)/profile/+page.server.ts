@@ -1,10 +1,11 @@
-import { fail } from '@sveltejs/kit';
+import { fail, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { getDb } from '$lib/server/db';
 import { requireActor } from '$lib/server/auth/guard';
 import { serviceFailure } from '$lib/server/forms';
 import { changePassword } from '$lib/server/services/passwords';
 import { renameUser } from '$lib/server/services/profile';
+import { signOutEverywhere } from '$lib/server/services/sessions';
 
 export const load = (async (event) => {
 	const actor = requireActor(event);
@@ -32,6 +33,12 @@ export const actions = {
 		} catch (err) {
 			return serviceFailure(err);
 		}
-		return { saved: 'password' };
+		// A new password ends every session, this one too.
+		redirect(303, '/signin?ended=password');
+	},
+	signOutEverywhere: async (event) => {
+		const actor = requireActor(event);
+		await signOutEverywhere(getDb(), actor.id);
+		redirect(303, '/signin?ended=everywhere');
 	}
 } satisfies Actions;

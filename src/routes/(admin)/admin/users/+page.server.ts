@@ -1,7 +1,7 @@
 import { fail } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { getDb } from '$lib/server/db';
-import { currentOrganisation } from '$lib/server/auth/guard';
+import { currentOrganisation, organisationsWith } from '$lib/server/auth/guard';
 import { isRole } from '$lib/server/auth/roles';
 import { formFields, parseForm, serviceFailure } from '$lib/server/forms';
 import { kickOutbox } from '$lib/server/mail/outbox';
@@ -13,8 +13,11 @@ export const load = (async (event) => {
 	const { actor, organisationId } = currentOrganisation(event, 'users.manage');
 	const db = getDb();
 	const [members, invitations] = await Promise.all([membersOf(db, organisationId), openInvitations(db, organisationId)]);
+	const current = actor.memberships.find((m) => m.organisation_id === organisationId)!;
 	return {
-		organisation: actor.memberships.find((m) => m.organisation_id === organisationId)!.organisation_name,
+		organisation: current.organisation_name,
+		organisationSlug: current.organisation_slug,
+		organisations: actor.memberships.filter((m) => organisationsWith(actor, 'users.manage').includes(m.organisation_id)).map((m) => ({ slug: m.organisation_slug, name: m.organisation_name })),
 		me: actor.id,
 		members,
 		invitations: invitations.map((i) => ({ id: i.id, email: i.email, role: i.role, expiresAt: i.expires_at }))
@@ -34,11 +37,11 @@ export const actions = {
 		if (!parsed.ok) return parsed.failure;
 		const orgName = actor.memberships.find((m) => m.organisation_id === organisationId)!.organisation_name;
 		try {
-			await inviteMember(getDb(), { organisationId, organisationName: orgName, inviter: actor, email: parsed.data.email, role: parsed.data.role, baseUrl: event.url.origin });
+			await inviteMember(getDb(), { organisationId, organisationName: orgName, inviter: actor, email: parsed.data.email, role: parsed.data.role });
 		} catch (err) {
 			return serviceFailure(err, values);
 		}
-		await kickOutbox().catch(() => {});
+		void kickOutbox().catch(() => {});
 		return { invited: parsed.data.email };
 	},
 	role: async (event) => {

@@ -3,15 +3,17 @@ import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
 import { apiHandler, readJson, ApiError } from '$lib/server/api/errors';
 import { organisationsWith, requireActor, requirePermission } from '$lib/server/auth/guard';
-import { findNetwork, listNetworks } from '$lib/server/repositories/networks';
-import { createNetwork, networkInput, publicView } from '$lib/server/services/networks';
+import { findNetwork } from '$lib/server/repositories/networks';
+import { createNetwork, networkInput, networkPage, publicView } from '$lib/server/services/networks';
 import { z } from 'zod';
 
-/** GET /api/v1/networks: the networks the caller may see. */
+/**
+ * GET /api/v1/networks?page=&perPage=: the networks the caller may see, a page at a time (perPage
+ * 10, 25, 50 or 100; default 50), without geometry: `{ networks, total, page, pages, perPage }`.
+ */
 export const GET: RequestHandler = apiHandler(async (event) => {
 	const actor = requireActor(event);
-	const networks = await listNetworks(getDb(), organisationsWith(actor, 'network.view'));
-	return json({ networks: networks.map(publicView) });
+	return json(await networkPage(getDb(), organisationsWith(actor, 'network.view'), event.url.searchParams));
 });
 
 const createBody = networkInput.extend({ organisationId: z.number().int().positive().optional() });
