@@ -1,13 +1,15 @@
 /**
  * The demo scenario, invented for Cairnfield: one organisation, one network over an invented
- * catchment, one user per role. Idempotent: it checks, then inserts; running it twice changes nothing.
+ * catchment, one user per role, and the network's content from data/demo/ (./demo-network.ts).
+ * Idempotent: it checks, then inserts; running it twice changes nothing.
  * The passwords are for local development only; `npm start` prints them.
  */
 import type { Knex } from 'knex';
 import bcrypt from 'bcryptjs';
-import { existsSync, readFileSync } from 'node:fs';
-import path from 'node:path';
+import { createObjectStore } from '../src/lib/server/storage/create-object-store';
+import type { ObjectStore } from '../src/lib/server/storage/object-store';
 import { seedDemoInventory } from './demo-inventory';
+import { seedDemoNetwork } from './demo-network';
 
 export const DEMO_ORGANISATION = { slug: 'fellside-hydrology', name: 'Fellside Hydrology Co-operative' };
 
@@ -25,14 +27,6 @@ export const DEMO_NETWORK = {
 		'Soil-moisture probes and two cosmic-ray neutron sensors across the invented Vennarrow Vale catchment: sandy heath, pine stands, the Vennarrow Water reservoir and the valley floor along the beck.',
 	public_text: 'A demonstration network in an invented catchment. All data are generated.'
 };
-
-function demoStudyArea(): unknown | null {
-	const file = path.resolve('data/demo/study-area.geojson');
-	if (!existsSync(file)) return null;
-	const fc = JSON.parse(readFileSync(file, 'utf8'));
-	const g = fc.type === 'FeatureCollection' ? fc.features[0]?.geometry : fc.type === 'Feature' ? fc.geometry : fc;
-	return g ?? null;
-}
 
 /**
  * Whether the demo users (with their published passwords) may be created: only for a local start,
@@ -58,9 +52,15 @@ export function demoUsersWanted(origin: string | undefined, env: Record<string, 
 	return { users: false, warning: `demo users skipped: ORIGIN ${origin ?? '(unset)'} is not a loopback address (set SEED_DEMO_USERS=true to create them anyway)` };
 }
 
-export async function seed(knex: Knex, opts: { users?: boolean } = {}): Promise<void> {
+/**
+ * `opts.users`: whether the demo users are created (see demoUsersWanted). `opts.store` is where the
+ * demo rasters go: the app's object store (STORAGE_* of the environment unless given), so that the
+ * app finds them.
+ */
+export async function seed(knex: Knex, opts: { users?: boolean; store?: ObjectStore } = {}): Promise<void> {
 	const withUsers = opts.users ?? true;
-	await knex.transaction(async (trx) => {
+	const store = opts.store ?? createObjectStore(process.env);
+	const actors = await knex.transaction(async (trx) => {
 		let org = await trx('organisations').select('id').where({ slug: DEMO_ORGANISATION.slug }).first();
 		if (!org) {
 			const [id] = await trx('organisations').insert(DEMO_ORGANISATION);
@@ -79,17 +79,20 @@ export async function seed(knex: Knex, opts: { users?: boolean } = {}): Promise<
 		}
 		const net = await trx('networks').select('id').where({ organisation_id: org.id, slug: DEMO_NETWORK.slug }).first();
 		if (!net) {
-			const area = demoStudyArea();
 			const [id] = await trx('networks').insert({
 				...DEMO_NETWORK,
 				organisation_id: org.id,
 				crs_epsg: null,
-				study_area: area ? JSON.stringify(area) : null,
+				study_area: null,
 				publication: 'published',
 				created_by: ids.admin ?? null
 			});
 			await trx('audit_log').insert({ organisation_id: org.id, actor_user_id: ids.admin ?? null, action: 'network.create', object_type: 'network', object_id: String(id), after: JSON.stringify({ seeded: true }) });
 		}
-		await seedDemoInventory(trx, (await trx('networks').select('id').where({ organisation_id: org.id, slug: DEMO_NETWORK.slug }).first()).id);
+		const networkId: number = (await trx('networks').select('id').where({ organisation_id: org.id, slug: DEMO_NETWORK.slug }).first()).id;
+		await seedDemoInventory(trx, networkId);
+		return { organisationId: org.id as number, networkId, analystId: ids.analyst ?? null };
 	});
+	// After the commit: each service opens its own transaction, as it does for an upload.
+	await seedDemoNetwork(knex, store, actors);
 }

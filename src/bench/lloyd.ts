@@ -114,6 +114,6 @@ export async function run(args: string[]): Promise<void> {
 	for (const strategy of ['lloyd', 'range-limited'] as const) {
 		t = performance.now();
 		const r = place(grid, null, [], { strategy, count: 256, radius: 300, seed: 1, maxIterations: 50, tolerance: 0 });
-		console.log(`place(1000x1000, greenfield 256, ${strategy}, 50 updates): ${(performance.now() - t).toFixed(0)} ms in all (${r.iterations} updates)`);
+		console.log(`place(1000x1000, 256 new sensors, ${strategy}, 50 updates): ${(performance.now() - t).toFixed(0)} ms in all (${r.iterations} updates)`);
 	}
 }

@@ -20,6 +20,8 @@ export interface PlaceArgs {
 	count: number | null;
 	strategy: Strategy;
 	radius: number | null;
+	minSpacing: number | null;
+	maxTravel: number | null;
 	zones: string | null;
 	zoneGrid: { cols: number; rows: number } | null;
 	studyArea: string | null;
@@ -41,10 +43,15 @@ Places sensors over an importance raster and writes a GeoJSON FeatureCollection 
                         projected, otherwise the UTM zone of the area's centre
   --sensors FILE        GeoJSON FeatureCollection of Points (WGS 84 lon/lat) with properties
                         id (string), optional radius_m and mobility (fixed|relocatable|mobile)
-  --count N             greenfield: place N new sensors instead
+  --count N             place N new sensors on ground that has none yet, instead
   --strategy S          lloyd | range-limited | zone-balanced (default range-limited)
-  --radius M            sensing radius in metres for sensors without radius_m (and for --count)
-  --zones FILE          GeoJSON zone polygons with property id
+  --radius M            sensing radius in metres for sensors without radius_m (and for --count);
+                        lloyd does not need it: coverage is then not reported
+  --min-spacing M       no sensor ends up closer than M metres to another
+  --max-travel M        no existing sensor ends up farther than M metres from where it stands
+  --zones FILE          GeoJSON zone polygons with property id; the zones' union bounds the
+                        placement: importance outside every zone is left out, and a warning
+                        says so when the zones hold less than 95 % of it
   --zone-grid CxR       or a regular grid of C columns by R rows of zones
   --study-area FILE     GeoJSON polygon(s): cells outside get no importance and no sensor
   --exclusions FILE     GeoJSON polygon(s): cells inside get no importance and no sensor
@@ -52,10 +59,11 @@ Places sensors over an importance raster and writes a GeoJSON FeatureCollection 
   --max-iterations N    default 500
   --tolerance M         stop when no sensor moved more than M metres in an iteration
                         (default 1 % of a cell); 0 runs every iteration
-  --seed N              seed of the greenfield seeding (default 1)
+  --seed N              seed of the random first positions of new sensors (default 1)
   --out FILE            write the result there (default: standard output)
   --help                show this text
 
+Warnings go to stderr as lines starting "cairnfield: warning:" and into placement.warnings.
 Exit codes: 0 done, 2 bad input (one line on stderr, nothing written), 1 unexpected failure.`;
 
 function positiveInt(name: string, v: string | undefined, min: number): number | null {
@@ -92,6 +100,8 @@ export function parsePlaceArgs(argv: string[]): PlaceArgs | 'help' {
 				count: { type: 'string' },
 				strategy: { type: 'string' },
 				radius: { type: 'string' },
+				'min-spacing': { type: 'string' },
+				'max-travel': { type: 'string' },
 				zones: { type: 'string' },
 				'zone-grid': { type: 'string' },
 				'study-area': { type: 'string' },
@@ -129,7 +139,13 @@ export function parsePlaceArgs(argv: string[]): PlaceArgs | 'help' {
 	if (!STRATEGIES.includes(strategy)) throw new CliError(`--strategy must be one of ${STRATEGIES.join(', ')}, got "${strategy}"`);
 
 	const radius = number('radius', str('radius'), { positive: true });
-	if (count !== null && radius === null) throw new CliError('--count needs --radius M (the sensing radius of the new sensors)');
+	// Lloyd's step moves each sensor to the centroid of its whole Voronoi cell: the radius plays no part.
+	if (count !== null && radius === null && strategy !== 'lloyd') {
+		throw new CliError(`--count needs --radius M (the sensing radius of the new sensors) with --strategy ${strategy}`);
+	}
+	const minSpacing = number('min-spacing', str('min-spacing'), {});
+	const maxTravel = number('max-travel', str('max-travel'), {});
+	if (maxTravel !== null && !sensors) throw new CliError('--max-travel limits how far existing sensors move: give --sensors FILE');
 
 	const zones = str('zones') ?? null;
 	const gridText = str('zone-grid');
@@ -153,6 +169,8 @@ export function parsePlaceArgs(argv: string[]): PlaceArgs | 'help' {
 		count,
 		strategy,
 		radius,
+		minSpacing,
+		maxTravel,
 		zones,
 		zoneGrid,
 		studyArea: str('study-area') ?? null,

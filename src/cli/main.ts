@@ -67,6 +67,7 @@ export async function main(argv: string[], io: Io = processIo): Promise<number> 
 			return 0;
 		}
 		const doc = await runPlace(args);
+		for (const w of doc.placement.warnings as string[]) io.stderr(`cairnfield: warning: ${oneLine(w)}\n`);
 		const text = `${JSON.stringify(doc)}\n`;
 		if (args.out) await writeAtomically(args.out, text);
 		else io.stdout(text);

@@ -4,7 +4,7 @@
  * caller's job, so nothing is written when anything fails).
  */
 import { readFile } from 'node:fs/promises';
-import { place, zoneGrid, type PlacementResult, type SensorInput, type ZoneMap } from '../lib/engine';
+import { place, zoneGrid, type PlacementResult, type SensorInput, type WorkingGrid, type ZoneMap } from '../lib/engine';
 import { rasterizeZones } from '../lib/engine/rasterize';
 import { assignMoves, routeLength, routeOrder, type Point } from '../lib/engine/moves';
 import { readGeoTiff } from '../lib/geo/geotiff';
@@ -43,6 +43,32 @@ export interface PlaceOutput {
 	placement: Record<string, unknown>;
 }
 
+/** Below this share of the importance inside the zones, the command warns that the rest is left out. */
+export const ZONE_SHARE_WARNING = 0.95;
+
+/**
+ * The zones' union bounds the placement: cells in no zone lose their importance and may hold no
+ * sensor, as outside a study area. Returns the clipped grid and the share of the importance that
+ * the zones held before (1 when the grid holds none).
+ */
+export function clipToZones(grid: WorkingGrid, zones: ZoneMap): { grid: WorkingGrid; shareInZones: number } {
+	const mass = new Float64Array(grid.mass.length);
+	const feasible = new Uint8Array(grid.feasible.length);
+	let total = 0;
+	let inside = 0;
+	for (let k = 0; k < mass.length; k++) {
+		total += grid.mass[k];
+		if (zones.cellZone[k] < 0) continue;
+		inside += grid.mass[k];
+		mass[k] = grid.mass[k];
+		feasible[k] = grid.feasible[k];
+	}
+	if (inside > 0) for (let k = 0; k < mass.length; k++) mass[k] /= inside;
+	return { grid: { ...grid, mass, feasible }, shareInZones: total > 0 ? inside / total : 1 };
+}
+
+const percent = (share: number) => `${Math.round(share * 1000) / 10} %`;
+
 export async function runPlace(args: PlaceArgs): Promise<PlaceOutput> {
 	const raster = await readGeoTiff(await readBytes(args.importance), { band: args.band, name: args.importance });
 	const studyDoc = args.studyArea ? readPolygons(await readJson(args.studyArea), args.studyArea) : null;
@@ -51,7 +77,8 @@ export async function runPlace(args: PlaceArgs): Promise<PlaceOutput> {
 	const sensorDoc = args.sensors ? readSensors(await readJson(args.sensors), args.sensors) : null;
 	if (sensorDoc && sensorDoc.length === 0) throw new GeoJsonError(`${args.sensors}: no sensors`);
 
-	const { grid, epsg } = buildWorkingGrid(raster, {
+	const warnings: string[] = [];
+	let { grid, epsg } = buildWorkingGrid(raster, {
 		crs: args.crs,
 		cellSize: args.cellSize ?? undefined,
 		studyArea: studyDoc ?? undefined,
@@ -63,6 +90,15 @@ export async function runPlace(args: PlaceArgs): Promise<PlaceOutput> {
 	let zones: ZoneMap | null = null;
 	if (zoneDoc) {
 		zones = rasterizeZones(grid, zoneDoc.map((z) => ({ id: z.id, rings: projectRings(z.rings, toWork, grid.cellSize * 4) })));
+		const clipped = clipToZones(grid, zones);
+		if (!clipped.grid.feasible.some((v) => v === 1)) throw new CliError(`${args.zones}: no valid cell of the raster lies inside the zones`);
+		if (clipped.shareInZones < ZONE_SHARE_WARNING) {
+			warnings.push(
+				`the zones hold ${percent(clipped.shareInZones)} of the importance; the ${percent(1 - clipped.shareInZones)} outside every zone is left out` +
+					(args.studyArea ? '' : ' (give --study-area to bound the raster to the area the zones divide)')
+			);
+		}
+		grid = clipped.grid;
 	} else if (args.zoneGrid) {
 		const { cols, rows } = args.zoneGrid;
 		if (cols > grid.width || rows > grid.height) {
@@ -71,15 +107,21 @@ export async function runPlace(args: PlaceArgs): Promise<PlaceOutput> {
 		zones = zoneGrid(grid, cols, rows);
 	}
 
+	// Lloyd's step ignores the radius, so lloyd runs without one; the engine still wants a number for
+	// its coverage figure, which is then meaningless and left out of the output.
+	const standIn = grid.cellSize;
+	const withoutRadius = new Set<string>();
 	let sensors: SensorInput[] = [];
 	if (sensorDoc) {
 		sensors = sensorDoc.map((s) => {
-			const radius = s.radius ?? args.radius;
+			let radius = s.radius ?? args.radius;
 			if (radius === null || radius === undefined) {
-				throw new CliError(`${args.sensors}: sensor "${s.id}" has no radius_m and no --radius was given`);
+				if (args.strategy !== 'lloyd') throw new CliError(`${args.sensors}: sensor "${s.id}" has no radius_m and no --radius was given`);
+				withoutRadius.add(s.id);
+				radius = standIn;
 			}
 			const [x, y] = toWork(s.lon, s.lat);
-			return { id: s.id, x, y, radius, mobility: s.mobility };
+			return { id: s.id, x, y, radius, mobility: s.mobility, ...(args.maxTravel !== null ? { maxTravel: args.maxTravel } : {}) };
 		});
 	}
 
@@ -89,13 +131,16 @@ export async function runPlace(args: PlaceArgs): Promise<PlaceOutput> {
 		tolerance: args.tolerance ?? undefined,
 		seed: args.seed,
 		count: args.count ?? undefined,
-		radius: args.radius ?? undefined
+		radius: args.count !== null ? (args.radius ?? standIn) : (args.radius ?? undefined),
+		minSpacing: args.minSpacing ?? undefined
 	});
+	if (args.count !== null && args.radius === null) for (const s of result.sensors) withoutRadius.add(s.id);
+	const coverage = (c: number) => (withoutRadius.size === 0 ? c : null);
 
 	const features = result.sensors.map((s) => ({
 		type: 'Feature',
 		geometry: { type: 'Point', coordinates: toLonLat(s.x, s.y) },
-		properties: { id: s.id, x: s.x, y: s.y, zone: s.zone, moved_m: s.movedM, radius_m: s.radius, mobility: s.mobility }
+		properties: { id: s.id, x: s.x, y: s.y, zone: s.zone, moved_m: s.movedM, radius_m: withoutRadius.has(s.id) ? null : s.radius, mobility: s.mobility }
 	}));
 
 	const placement: Record<string, unknown> = {
@@ -104,11 +149,12 @@ export async function runPlace(args: PlaceArgs): Promise<PlaceOutput> {
 		iterations: result.iterations,
 		converged: result.converged,
 		cost: result.cost,
-		coverage: result.coverage,
+		coverage: coverage(result.coverage),
 		p95_distance_m: result.p95DistanceM,
 		cell_size_m: grid.cellSize,
 		zones: result.zones.map((z) => ({ id: z.id, mass: z.mass, sensors: z.sensors, sigma: z.sigma })),
-		history: result.history.map((h) => ({ iteration: h.iteration, cost: h.cost, coverage: h.coverage }))
+		history: result.history.map((h) => ({ iteration: h.iteration, cost: h.cost, coverage: coverage(h.coverage) })),
+		warnings
 	};
 	if (sensors.length > 0) placement.moves = planMoves(sensors, result, toLonLat);
 	return { type: 'FeatureCollection', features, placement };

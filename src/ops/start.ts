@@ -78,9 +78,10 @@ try {
 	}
 	const done = await migrateLatest(databaseUrl);
 	log(done.length ? `migrated: ${done.join(', ')}` : 'database schema is up to date');
+	const storageDir = process.env.STORAGE_DIR ?? path.join(dataDir, 'objects');
 	let demoUsers = false;
 	if (process.env.SEED_DEMO !== 'false') {
-		demoUsers = (await seedDemo(databaseUrl, origin)).users;
+		demoUsers = (await seedDemo(databaseUrl, origin, { ...process.env, STORAGE_DIR: storageDir })).users;
 		log('demo data in place');
 	}
 
@@ -109,7 +110,7 @@ try {
 			SMTP_HOST: process.env.SMTP_HOST ?? '127.0.0.1',
 			SMTP_PORT: String(smtpPort),
 			DEV_MAIL_DIR: process.env.SMTP_HOST ? '' : mailDir,
-			STORAGE_DIR: process.env.STORAGE_DIR ?? path.join(dataDir, 'objects'),
+			STORAGE_DIR: storageDir,
 			// The server's outer bound; each route has its own, smaller one (src/lib/server/http/body-limit.ts).
 			BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? String(600 * 1024 * 1024)
 		}

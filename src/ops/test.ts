@@ -127,7 +127,7 @@ try {
 	if (only !== 'unit') {
 		const appPort = await freePort();
 		const origin = `http://127.0.0.1:${appPort}`;
-		await seedDemo(databaseUrl, origin);
+		await seedDemo(databaseUrl, origin, { ...process.env, ...env });
 		buildIfChanged();
 		const app = spawn(process.execPath, [path.join(root, 'src', 'ops', 'serve.mjs')], {
 			cwd: root,

@@ -1,5 +1,5 @@
 import { expect, test } from '@playwright/test';
-import { demoUser, linkIn, signInPage, waitForMail } from './support';
+import { demoUser, linkIn, signInPage, waitForMail, gotoHydrated, waitForHydration } from './support';
 
 test.describe('signing in and out', () => {
 	test('an analyst signs in with e-mail and password, sees the networks, and signs out', async ({ page }) => {
@@ -10,12 +10,12 @@ test.describe('signing in and out', () => {
 		await expect(page.getByRole('link', { name: 'Users' })).toHaveCount(0);
 		await page.getByRole('button', { name: 'Sign out' }).click();
 		await expect(page).toHaveURL(/\/signin/);
-		await page.goto('/networks');
+		await gotoHydrated(page, '/networks');
 		await expect(page).toHaveURL(/\/signin\?redirectTo=%2Fnetworks/);
 	});
 
 	test('a wrong password is refused with a clear message', async ({ page }) => {
-		await page.goto('/signin');
+		await gotoHydrated(page, '/signin');
 		await page.getByLabel('E-mail').first().fill(demoUser('reviewer').email);
 		await page.getByLabel('Password').fill('not the password');
 		await page.getByRole('button', { name: 'Sign in', exact: true }).click();
@@ -23,7 +23,7 @@ test.describe('signing in and out', () => {
 	});
 
 	test('sign-in returns to the page asked for', async ({ page }) => {
-		await page.goto('/profile');
+		await gotoHydrated(page, '/profile');
 		await expect(page).toHaveURL(/redirectTo=%2Fprofile/);
 		const u = demoUser('technician');
 		await page.getByLabel('E-mail').first().fill(u.email);
@@ -36,12 +36,12 @@ test.describe('signing in and out', () => {
 	test('an e-mail sign-in link signs the reviewer in', async ({ page }) => {
 		const u = demoUser('reviewer');
 		const t0 = Date.now() - 1000;
-		await page.goto('/signin');
+		await gotoHydrated(page, '/signin');
 		await page.locator('form[action="?/link"]').getByLabel('E-mail').fill(u.email);
 		await page.getByRole('button', { name: 'Send me a link' }).click();
 		await expect(page.getByText('a sign-in link is on its way')).toBeVisible();
 		const mail = await waitForMail(u.email, /sign-in link/, t0);
-		await page.goto(linkIn(mail));
+		await gotoHydrated(page, linkIn(mail));
 		await expect(page).toHaveURL(/\/networks/);
 		await expect(page.getByText(u.name)).toBeVisible();
 	});
@@ -64,7 +64,7 @@ test.describe.serial('invitation, role change and password reset', () => {
 
 		const ctx = await browser.newContext();
 		const p2 = await ctx.newPage();
-		await p2.goto(linkIn(mail));
+		await gotoHydrated(p2, linkIn(mail));
 		await expect(p2.getByText('as field technician')).toBeVisible();
 		await p2.getByLabel('Your name').fill('Wren Hollis');
 		await p2.getByLabel(/Choose a password/).fill(firstPassword);
@@ -73,10 +73,11 @@ test.describe.serial('invitation, role change and password reset', () => {
 		await signInPage(p2, email, firstPassword);
 		await expect(p2.getByText('Wren Hollis')).toBeVisible();
 		await p2.goto('/admin/users');
-		await expect(p2.getByRole('heading', { name: 'Not for you' })).toBeVisible();
+		await expect(p2.getByRole('heading', { name: 'No access' })).toBeVisible();
 
 		// A role change takes effect on the very next request, without signing in again.
 		await page.reload();
+		await waitForHydration(page);
 		const row = page.getByRole('row', { name: /Wren Hollis/ });
 		await row.getByRole('combobox').selectOption('admin');
 		// Wait for the action's answer: the select shows the new value before the server has it.
@@ -94,21 +95,21 @@ test.describe.serial('invitation, role change and password reset', () => {
 
 	test('the invited technician resets a forgotten password by e-mail', async ({ page }) => {
 		const t0 = Date.now() - 1000;
-		await page.goto('/signin');
+		await gotoHydrated(page, '/signin');
 		await page.getByRole('link', { name: 'Forgot your password?' }).click();
 		await expect(page).toHaveURL(/\/reset$/);
 		await page.getByLabel('E-mail').fill(email);
 		await page.getByRole('button', { name: 'Send the link' }).click();
 		await expect(page.getByText('we have sent a link')).toBeVisible();
 		const mail = await waitForMail(email, /Reset your Cairnfield password/, t0);
-		await page.goto(linkIn(mail));
+		await gotoHydrated(page, linkIn(mail));
 		await page.getByLabel(/New password/).fill('second-password-456');
 		await page.getByLabel('The same again').fill('second-password-456');
 		await page.getByRole('button', { name: 'Save the new password' }).click();
 		await expect(page).toHaveURL(/\/signin/);
 		await signInPage(page, email, 'second-password-456');
 		// The link works once.
-		await page.goto(linkIn(mail));
+		await gotoHydrated(page, linkIn(mail));
 		await expect(page.getByText('This reset link is no longer valid.')).toBeVisible();
 	});
 });

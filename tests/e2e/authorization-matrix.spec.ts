@@ -65,7 +65,7 @@ const checks: Check[] = [
 	{ name: 'API network map', method: 'GET', path: '/api/v1/networks/1/map', expect: api(401, 200, 200, 200, 200) },
 	{ name: 'API map of a missing network', method: 'GET', path: '/api/v1/networks/999999/map', expect: api(401, 404, 404, 404, 404) },
 	// The demo network has no importance recipe yet: every member gets the 404 that says so.
-	{ name: 'API map importance PNG (none yet)', method: 'GET', path: '/api/v1/networks/1/map/importance.png', expect: api(401, 404, 404, 404, 404) },
+	{ name: 'API map importance PNG (the seeded demo recipe)', method: 'GET', path: '/api/v1/networks/1/map/importance.png', expect: api(401, 200, 200, 200, 200) },
 	// (map rows end)
 
 	// Layers and importance (layer.view: admin, analyst, reviewer; layer.edit and recipe.edit: analyst)

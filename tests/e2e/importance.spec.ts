@@ -7,7 +7,7 @@ import { randomBytes } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test } from '@playwright/test';
-import { contextFor, demoUser, signInPage } from './support';
+import { contextFor, demoUser, signInPage, gotoHydrated } from './support';
 
 const demo = (f: string) => path.resolve(import.meta.dirname, '../../data/demo', f);
 const tag = randomBytes(3).toString('hex');
@@ -39,7 +39,7 @@ test.describe('importance tab', () => {
 	test('an analyst previews a two-layer recipe, saves v1, changes a weight, saves v2 and uses it', async ({ page }) => {
 		const u = demoUser('analyst');
 		await signInPage(page, u.email, u.password);
-		await page.goto(`/networks/${networkId}/importance`);
+		await gotoHydrated(page, `/networks/${networkId}/importance`);
 		await expect(page.getByRole('heading', { name: 'Importance', exact: true })).toBeVisible();
 
 		await page.getByLabel(`Use ${soilName}`).check();
@@ -52,7 +52,7 @@ test.describe('importance tab', () => {
 		await expect(preview).toBeVisible();
 		await expect.poll(() => preview.evaluate((el) => (el as HTMLImageElement).naturalWidth)).toBeGreaterThan(0);
 		// The finest layer sets the grid: the 30 m vegetation raster, 200 × 150 cells (data/demo/README.md).
-		await expect(page.getByTestId('recipe-preview')).toContainText('200 × 150 cells of 30 m, EPSG:32632');
+		await expect(page.getByTestId('recipe-preview')).toContainText('200 × 150 cells of 30 m, EPSG:32754');
 		await page.screenshot({ path: '/tmp/layers-app-importance.png', fullPage: true });
 
 		await page.getByLabel('Recipe name').fill(recipeName);
@@ -67,8 +67,8 @@ test.describe('importance tab', () => {
 
 		const versions = page.getByRole('table', { name: `Versions of ${recipeName}` });
 		await expect(versions.getByTestId('recipe-version')).toHaveCount(2);
-		await expect(versions.getByTestId('recipe-version').nth(0)).toContainText(`${vegName}: as is, weight 3`);
-		await expect(versions.getByTestId('recipe-version').nth(1)).toContainText(`${vegName}: as is, weight 1`);
+		await expect(versions.getByTestId('recipe-version').nth(0)).toContainText(`${vegName}: scaled 0–1, weight 3`);
+		await expect(versions.getByTestId('recipe-version').nth(1)).toContainText(`${vegName}: scaled 0–1, weight 1`);
 		await expect(versions.getByTestId('recipe-version').nth(1)).toContainText('first try');
 
 		await versions.getByTestId('recipe-version').nth(0).getByRole('button', { name: 'Use this version for the network' }).click();
@@ -80,7 +80,7 @@ test.describe('importance tab', () => {
 	test('a reviewer sees the versions but cannot change them; a technician is refused', async ({ page }) => {
 		const r = demoUser('reviewer');
 		await signInPage(page, r.email, r.password);
-		await page.goto(`/networks/${networkId}/importance`);
+		await gotoHydrated(page, `/networks/${networkId}/importance`);
 		await expect(page.getByRole('table', { name: `Versions of ${recipeName}` }).getByTestId('recipe-version')).toHaveCount(2);
 		await expect(page.getByText('You can look at the recipes and their versions; analysts change them.')).toBeVisible();
 		await expect(page.getByRole('button', { name: 'Preview' })).toHaveCount(0);

@@ -8,7 +8,7 @@ import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test, type Page } from '@playwright/test';
 import { encodeTiff } from '../../src/bench/support/tiff-writer';
-import { contextFor, demoUser, signInPage } from './support';
+import { contextFor, demoUser, signInPage, gotoHydrated, waitForHydration } from './support';
 
 const demo = (f: string) => path.resolve(import.meta.dirname, '../../data/demo', f);
 const tag = randomBytes(3).toString('hex');
@@ -37,7 +37,7 @@ test.describe('layers tab', () => {
 	test('an analyst uploads the demo soil moisture and vegetation rasters and sees both phases and the previews', async ({ page }) => {
 		const u = demoUser('analyst');
 		await signInPage(page, u.email, u.password);
-		await page.goto(`/networks/${networkId}/layers`);
+		await gotoHydrated(page, `/networks/${networkId}/layers`);
 		await expect(page.getByRole('heading', { name: 'Layers', exact: true })).toBeVisible();
 
 		for (const [file, name, kind] of [
@@ -55,7 +55,7 @@ test.describe('layers tab', () => {
 		}
 		const details = page.getByTestId('layer-details');
 		await expect(details).toContainText('200 × 150 cells');
-		await expect(details).toContainText('EPSG:32632');
+		await expect(details).toContainText('EPSG:32754');
 		await expect(details).toContainText('30 m');
 		await page.screenshot({ path: '/tmp/layers-app-layers.png', fullPage: true });
 
@@ -71,7 +71,7 @@ test.describe('layers tab', () => {
 	test('a file that is not a TIFF and a TIFF without georeferencing are refused with the reason, and nothing is listed', async ({ page }) => {
 		const u = demoUser('analyst');
 		await signInPage(page, u.email, u.password);
-		await page.goto(`/networks/${networkId}/layers`);
+		await gotoHydrated(page, `/networks/${networkId}/layers`);
 		await upload(page, { name: 'notes.txt', mimeType: 'text/plain', buffer: Buffer.from('site,lon,lat\nA,9.1,52.3\n') }, `Not a raster ${tag}`, 'Other');
 		await expect(page.getByRole('alert')).toContainText('notes.txt: not a TIFF');
 		await expect(page.getByTestId('processing-phase')).toHaveText('refused');
@@ -80,6 +80,7 @@ test.describe('layers tab', () => {
 		await upload(page, { name: 'scan.tif', mimeType: 'image/tiff', buffer: plain }, `No georeferencing ${tag}`, 'Other');
 		await expect(page.getByRole('alert')).toContainText('no georeferencing');
 		await page.reload();
+		await waitForHydration(page);
 		await expect(page.getByRole('cell', { name: `Not a raster ${tag}`, exact: true })).toHaveCount(0);
 		await expect(page.getByRole('cell', { name: `No georeferencing ${tag}`, exact: true })).toHaveCount(0);
 	});
@@ -87,7 +88,7 @@ test.describe('layers tab', () => {
 	test('a reviewer sees the layers but no upload form; a technician is refused', async ({ page }) => {
 		const r = demoUser('reviewer');
 		await signInPage(page, r.email, r.password);
-		await page.goto(`/networks/${networkId}/layers`);
+		await gotoHydrated(page, `/networks/${networkId}/layers`);
 		await expect(page.getByRole('heading', { name: 'Layers', exact: true })).toBeVisible();
 		await expect(page.getByText('You can look at the layers; analysts upload and delete them.')).toBeVisible();
 		await expect(page.getByLabel('GeoTIFF file')).toHaveCount(0);

@@ -10,7 +10,7 @@ import { expect, test } from '@playwright/test';
 import type { Knex } from 'knex';
 import { createDb } from '../../src/lib/server/db/knex';
 import { seedDemoInventory } from '../../seeds/demo-inventory';
-import { contextFor, demoUser, signInPage } from './support';
+import { contextFor, demoUser, signInPage, gotoHydrated } from './support';
 
 const demo = (f: string) => path.resolve(import.meta.dirname, '../../data/demo', f);
 
@@ -65,7 +65,7 @@ async function insertDemoMapRows(db: Knex, networkId: number): Promise<number> {
 	return sensors.length;
 }
 
-test('the Map tab draws the importance raster, sensors, legend, toggles and cursor coordinates', async ({ page }) => {
+test('the Map tab draws the importance map, sensors, legend, toggles and cursor coordinates', async ({ page }) => {
 	const url = process.env.DATABASE_URL;
 	if (!url) throw new Error('DATABASE_URL is not set: run through npm test');
 	const admin = await contextFor('admin');
@@ -97,7 +97,7 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	// The API document, as any member sees it.
 	const tech = await contextFor('technician');
 	const doc = (await (await tech.get(`/api/v1/networks/${networkId}/map`)).json()).map;
-	expect(doc.crs.epsg).toBe(32632);
+	expect(doc.crs.epsg).toBe(32754);
 	expect(doc.sensors).toHaveLength(sensorCount);
 	expect(doc.backdrop.kind).toBe('importance');
 	expect(doc.contours.length).toBeGreaterThan(0);
@@ -109,7 +109,7 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	const t = demoUser('technician');
 	await page.setViewportSize({ width: 1400, height: 900 });
 	await signInPage(page, t.email, t.password);
-	await page.goto(`/networks/${networkId}/map`);
+	await gotoHydrated(page, `/networks/${networkId}/map`);
 	const mapEl = page.getByTestId('network-map');
 	await expect(mapEl).toHaveClass(/leaflet-container/);
 	await expect(page.locator('.cf-sensor')).toHaveCount(sensorCount);
@@ -140,8 +140,8 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2);
 	await page.mouse.move(box.x + box.width / 2 + 10, box.y + box.height / 2 + 5);
 	const coords = page.getByTestId('cursor-coords');
-	await expect(coords).toContainText(/\d+\.\d{5}° N, \d+\.\d{5}° E/);
-	await expect(coords).toContainText(/EPSG:32632 x [\d\u2009]+ m, y [\d\u2009]+ m/);
+	await expect(coords).toContainText(/lon \d+\.\d{5}° E, lat \d+\.\d{5}° S/);
+	await expect(coords).toContainText(/EPSG:32754 x [\d\u2009]+ m, y [\d\u2009]+ m/);
 	await page.screenshot({ path: '/tmp/map-app-map.png' });
 
 	// A popup on a sensor.
@@ -163,7 +163,7 @@ test('the Map tab draws the importance raster, sensors, legend, toggles and curs
 	await page.screenshot({ path: '/tmp/map-app-zoomed.png' });
 
 	// The overview's small map.
-	await page.goto(`/networks/${networkId}`);
+	await gotoHydrated(page, `/networks/${networkId}`);
 	await expect(page.getByTestId('network-map')).toHaveClass(/leaflet-container/);
 	await expect(page.locator('.cf-sensor')).toHaveCount(sensorCount);
 	await page.screenshot({ path: '/tmp/map-app-overview.png' });
@@ -190,7 +190,7 @@ test('an analyst draws a named exclusion on the map; a technician has no Draw co
 	const t = demoUser('technician');
 	await page.setViewportSize({ width: 1400, height: 900 });
 	await signInPage(page, t.email, t.password);
-	await page.goto(`/networks/${networkId}/map`);
+	await gotoHydrated(page, `/networks/${networkId}/map`);
 	await expect(page.getByTestId('network-map')).toHaveClass(/leaflet-container/);
 	await expect(page.getByTestId('map-legend')).toBeVisible();
 	await expect(page.getByTestId('map-draw')).toHaveCount(0);
@@ -200,13 +200,13 @@ test('an analyst draws a named exclusion on the map; a technician has no Draw co
 	// The analyst draws a triangle named "test pit".
 	const a = demoUser('analyst');
 	await signInPage(page, a.email, a.password);
-	await page.goto(`/networks/${networkId}/map`);
+	await gotoHydrated(page, `/networks/${networkId}/map`);
 	const mapEl = page.getByTestId('network-map');
 	await expect(mapEl).toHaveClass(/leaflet-container/);
 	const draw = page.getByTestId('map-draw');
 	await draw.getByRole('button', { name: 'Draw exclusion' }).click();
 	await draw.getByLabel('Name of the exclusion').fill('test pit');
-	const finish = draw.getByRole('button', { name: 'Finish' });
+	const finish = draw.getByRole('button', { name: 'Close the outline' });
 	await expect(finish).toBeDisabled();
 	const box = (await mapEl.boundingBox())!;
 	const cx = box.x + box.width / 2;
@@ -214,14 +214,14 @@ test('an analyst draws a named exclusion on the map; a technician has no Draw co
 	await page.mouse.click(cx - 60, cy + 40);
 	await page.mouse.click(cx + 70, cy + 50);
 	await expect(page.locator('path.cf-draft-vertex')).toHaveCount(2);
-	// Undo takes the last point back; it is clicked again.
-	await draw.getByRole('button', { name: 'Undo last point' }).click();
+	// Removing the last corner takes it back; it is clicked again.
+	await draw.getByRole('button', { name: 'Remove the last corner' }).click();
 	await expect(page.locator('path.cf-draft-vertex')).toHaveCount(1);
 	await page.mouse.click(cx + 70, cy + 50);
 	await page.mouse.click(cx + 10, cy - 70);
 	await expect(page.locator('path.cf-draft-vertex')).toHaveCount(3);
 	await expect(page.locator('path.cf-draft-outline')).toHaveCount(1);
-	await expect(draw).toContainText('3 points so far');
+	await expect(draw).toContainText('3 corners so far');
 	await page.screenshot({ path: '/tmp/map-app-draw.png' });
 	await finish.click();
 	await expect(draw.getByRole('status').filter({ hasText: 'saved' })).toContainText('Exclusion “test pit” saved (2 exclusions in all)');
@@ -237,4 +237,29 @@ test('an analyst draws a named exclusion on the map; a technician has no Draw co
 	const docAfter = (await (await analyst.get(`/api/v1/networks/${networkId}/map`)).json()).map;
 	expect(docAfter.exclusions).toHaveLength(ringsBefore + 1);
 	await page.screenshot({ path: '/tmp/map-app-drawn.png' });
+});
+
+test('the demo network opens on a living map: importance, the four sub-catchments, the water storage and the 14 sensors', async ({ page }) => {
+	const t = demoUser('technician');
+	const tech = await contextFor('technician');
+	const { networks } = (await (await tech.get('/api/v1/networks')).json()) as { networks: { id: number; slug: string }[] };
+	const networkId = networks.find((n) => n.slug === 'vennarrow-vale')!.id;
+	const doc = (await (await tech.get(`/api/v1/networks/${networkId}/map`)).json()).map;
+	await tech.dispose();
+	// data/demo/README.md: 14 sensors, four sub-catchments, one exclusion; the seed puts a recipe in use.
+	expect(doc.crs.epsg).toBe(32754);
+	expect(doc.backdrop.kind).toBe('importance');
+	expect(doc.sensors).toHaveLength(14);
+	expect(doc.zones).toHaveLength(4);
+	for (const z of doc.zones) expect(z.importanceShare).toBeGreaterThan(0);
+
+	await page.setViewportSize({ width: 1400, height: 900 });
+	await signInPage(page, t.email, t.password);
+	await gotoHydrated(page, `/networks/${networkId}/map`);
+	await expect(page.getByTestId('network-map')).toHaveClass(/leaflet-container/);
+	await expect(page.locator('.cf-sensor')).toHaveCount(14);
+	await expect(page.locator('path.cf-zone')).toHaveCount(4);
+	await expect(page.locator('path.cf-exclusion')).toHaveCount(1);
+	await expect.poll(() => page.locator('img.cf-backdrop').evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth > 0)).toBe(true);
+	await page.screenshot({ path: '/tmp/map-demo-network.png' });
 });

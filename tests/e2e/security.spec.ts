@@ -8,7 +8,7 @@ import { randomBytes } from 'node:crypto';
 import { expect, test } from '@playwright/test';
 import { createDb } from '../../src/lib/server/db/knex';
 import type { CapturedMail } from '../../src/lib/server/mail/dev-inbox';
-import { baseURL, contextFor, demoUser, signInPage, waitForMail } from './support';
+import { baseURL, contextFor, demoUser, gotoHydrated, signInPage, waitForMail } from './support';
 
 const FORGED = { host: 'evil.example', 'x-forwarded-host': 'evil.example', 'x-forwarded-proto': 'https', 'x-forwarded-for': '203.0.113.66' };
 
@@ -187,7 +187,7 @@ test('the users page acts on the organisation it shows', async ({ page }) => {
 		await db('memberships').insert({ organisation_id: orgId, user_id: adminId, role: 'admin' });
 
 		await signInPage(page, admin.email, admin.password);
-		await page.goto(`/admin/users?org=${slug}`);
+		await gotoHydrated(page, `/admin/users?org=${slug}`);
 		await expect(page.getByRole('heading', { name: /Users of Zz Second/ })).toBeVisible();
 		const email = `second.org.${Date.now()}@example.test`;
 		await page.getByLabel('E-mail').fill(email);

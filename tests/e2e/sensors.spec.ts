@@ -6,7 +6,7 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test, type APIRequestContext } from '@playwright/test';
-import { contextFor, demoDir, freshNetwork, demoUser, signInPage } from './support';
+import { contextFor, demoDir, freshNetwork, demoUser, signInPage, gotoHydrated } from './support';
 
 
 
@@ -24,7 +24,7 @@ test.beforeAll(async () => {
 test('the analyst imports, sorts, filters, pages, edits and exports sensors', async ({ page }) => {
 	const u = demoUser('analyst');
 	await signInPage(page, u.email, u.password);
-	await page.goto(`/networks/${networkId}/sensors`);
+	await gotoHydrated(page, `/networks/${networkId}/sensors`);
 	await expect(page.getByText('Get the landowner’s permission before entering private land.')).toBeVisible();
 	await page.locator('input[name="file"]').setInputFiles(path.join(demoDir, 'sensors.csv'));
 	await page.getByRole('button', { name: 'Import', exact: true }).click();
@@ -34,11 +34,11 @@ test('the analyst imports, sorts, filters, pages, edits and exports sensors', as
 	await expect(rows).toHaveCount(14);
 	await page.screenshot({ path: '/tmp/inventory-sensors.png', fullPage: true });
 
-	// Sort by longitude, westernmost first (VV-P09 at 10.066561°E in data/demo/sensors.csv), then the other way.
-	await page.getByRole('link', { name: 'Lon / lat' }).click();
+	// Sort by longitude, westernmost first (VV-P09 at 143.454455°E in data/demo/sensors.csv), then the other way.
+	await page.getByRole('link', { name: 'Lon, lat (WGS 84)' }).click();
 	await expect(page).toHaveURL(/sort=lon&dir=asc/);
 	await expect(rows.first().locator('td').first()).toHaveText('VV-P09');
-	await page.getByRole('link', { name: /Lon \/ lat/ }).click();
+	await page.getByRole('link', { name: /Lon, lat \(WGS 84\)/ }).click();
 	await expect(page).toHaveURL(/dir=desc/);
 	await expect(rows.first().locator('td').first()).toHaveText('VV-P06');
 
@@ -54,7 +54,7 @@ test('the analyst imports, sorts, filters, pages, edits and exports sensors', as
 	await expect(rows).toHaveCount(2);
 
 	// Pages of 10, sorted by id.
-	await page.goto(`/networks/${networkId}/sensors?perPage=10`);
+	await gotoHydrated(page, `/networks/${networkId}/sensors?perPage=10`);
 	await expect(page.getByTestId('page-info')).toHaveText('Page 1 of 2');
 	await expect(rows).toHaveCount(10);
 	await page.getByRole('link', { name: 'Next →' }).click();
@@ -71,12 +71,12 @@ test('the analyst imports, sorts, filters, pages, edits and exports sensors', as
 	await expect(rows.filter({ hasText: 'VV-P12' })).toContainText('Moved 5 m after the hedge was cut');
 
 	// A bad form entry names the field.
-	await page.goto(`/networks/${networkId}/sensors`);
+	await gotoHydrated(page, `/networks/${networkId}/sensors`);
 	const form = page.locator('#sensor-form');
 	await form.getByLabel('Id').fill('VV-X1');
 	await form.getByLabel('Serial number').fill('S-1');
-	await form.getByLabel('Longitude (°E)').fill('200');
-	await form.getByLabel('Latitude (°N)').fill('52.9');
+	await form.getByLabel('Longitude (° east, negative west)').fill('200');
+	await form.getByLabel('Latitude (° north, negative south)').fill('-32.1');
 	await page.getByRole('button', { name: 'Add sensor' }).click();
 	await expect(form.getByText('Lon 200 is outside −180…180.')).toBeVisible();
 
@@ -92,7 +92,7 @@ test('the analyst imports, sorts, filters, pages, edits and exports sensors', as
 test('a CSV with a bad row shows the per-row report and stores nothing', async ({ page }) => {
 	const u = demoUser('analyst');
 	await signInPage(page, u.email, u.password);
-	await page.goto(`/networks/${networkId}/sensors`);
+	await gotoHydrated(page, `/networks/${networkId}/sensors`);
 	const before = (await page.getByTestId('sensor-total').textContent())!;
 	const csv = 'id,serial,type,lon,lat,install_date,status\nBAD-1,S1,soil moisture probe,10.1,52.9,2025-01-01,active\nBAD-2,S2,rain gauge,10.1,52.9,2025-02-30,active\n';
 	await page.locator('input[name="file"]').setInputFiles({ name: 'bad.csv', mimeType: 'text/csv', buffer: Buffer.from(csv) });
@@ -104,16 +104,16 @@ test('a CSV with a bad row shows the per-row report and stores nothing', async (
 	await expect(report.locator('tbody tr').first().locator('td').nth(0)).toHaveText('3');
 	await expect(report).toContainText('install_date');
 	await page.screenshot({ path: '/tmp/inventory-import-report.png', fullPage: true });
-	await page.goto(`/networks/${networkId}/sensors?q=BAD-`);
+	await gotoHydrated(page, `/networks/${networkId}/sensors?q=BAD-`);
 	await expect(page.getByTestId('sensor-total')).toHaveText('(0)');
-	await page.goto(`/networks/${networkId}/sensors`);
+	await gotoHydrated(page, `/networks/${networkId}/sensors`);
 	await expect(page.getByTestId('sensor-total')).toHaveText(before);
 });
 
 test('a technician sees the sensors but cannot change them', async ({ page }) => {
 	const u = demoUser('technician');
 	await signInPage(page, u.email, u.password);
-	await page.goto(`/networks/${networkId}/sensors`);
+	await gotoHydrated(page, `/networks/${networkId}/sensors`);
 	await expect(page.getByTestId('sensor-table')).toBeVisible();
 	await expect(page.getByText('Before installing or moving a sensor in the field')).toBeVisible();
 	await expect(page.getByRole('heading', { name: 'Import sensors' })).toHaveCount(0);

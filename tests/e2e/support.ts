@@ -12,8 +12,23 @@ export function demoUser(role: DemoRole) {
 	return DEMO_USERS.find((u) => u.role === role)!;
 }
 
+/**
+ * Waits until the page's scripts have hydrated it (the root layout sets data-hydrated on <html>).
+ * Forms work and keep what was typed before that, but a test that types into a page still loading
+ * its scripts tests the network's speed, not the page.
+ */
+export async function waitForHydration(page: Page): Promise<void> {
+	await page.locator('html[data-hydrated]').waitFor({ state: 'attached' });
+}
+
+/** page.goto, then wait for hydration: use it before typing into the page. */
+export async function gotoHydrated(page: Page, url: string): Promise<void> {
+	await page.goto(url);
+	await waitForHydration(page);
+}
+
 export async function signInPage(page: Page, email: string, password: string): Promise<void> {
-	await page.goto('/signin');
+	await gotoHydrated(page, '/signin');
 	await page.getByLabel('E-mail').first().fill(email);
 	await page.getByLabel('Password').fill(password);
 	await page.getByRole('button', { name: 'Sign in', exact: true }).click();

@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test, type APIRequestContext } from '@playwright/test';
-import { contextFor, demoDir, freshNetwork, demoUser, signInPage } from './support';
+import { contextFor, demoDir, freshNetwork, demoUser, signInPage, gotoHydrated, waitForHydration } from './support';
 
 
 
@@ -21,18 +21,18 @@ test('the analyst uploads the study area, exclusions and zones, lays a 3 km grid
 	const u = demoUser('analyst');
 	await signInPage(page, u.email, u.password);
 	// Sensors first, so the zones have something to count.
-	await page.goto(`/networks/${networkId}/sensors`);
+	await gotoHydrated(page, `/networks/${networkId}/sensors`);
 	await page.locator('input[name="file"]').setInputFiles(path.join(demoDir, 'sensors.csv'));
 	await page.getByRole('button', { name: 'Import', exact: true }).click();
 	await expect(page.getByText('Imported 14 sensors from sensors.csv.')).toBeVisible();
 
-	await page.goto(`/networks/${networkId}/zones`);
+	await gotoHydrated(page, `/networks/${networkId}/zones`);
 	await expect(page.getByTestId('study-area-state')).toHaveText('Not outlined yet');
 	await page.getByLabel('Study area file (GeoJSON or KML, WGS 84)').setInputFiles(path.join(demoDir, 'study-area.geojson'));
 	await page.getByRole('button', { name: 'Upload study area' }).click();
 	await expect(page.getByText('Study area taken from study-area.geojson.')).toBeVisible();
 	await expect(page.getByTestId('study-area-state')).toHaveText('Outlined (1 polygon)');
-	await expect(page.getByText('EPSG:32632')).toBeVisible();
+	await expect(page.getByText('EPSG:32754')).toBeVisible();
 
 	await page.getByLabel(/Exclusions file/).setInputFiles(path.join(demoDir, 'exclusions.geojson'));
 	await page.getByRole('button', { name: 'Upload exclusions' }).click();
@@ -81,6 +81,7 @@ test('the analyst uploads the study area, exclusions and zones, lays a 3 km grid
 	const cur = await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId: (await rec.json()).version.id }, headers: { accept: 'application/json' } });
 	expect(cur.status(), await cur.text()).toBe(200);
 	await page.reload();
+	await waitForHydration(page);
 	const uploadedSet = page.getByTestId('zone-set').filter({ hasText: 'uploaded polygons' });
 	await expect(uploadedSet.getByText('Shares not measured with the current importance recipe')).toBeVisible();
 	await uploadedSet.getByRole('button', { name: 'Measure shares' }).click();

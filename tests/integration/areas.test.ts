@@ -22,8 +22,8 @@ describe('study area and exclusions', () => {
 		const a = await setArea(t.db, id, m.userId, 1, parseAreaUpload('studyArea', demo('study-area.geojson'), 'study-area.geojson'));
 		expect(a.version).toBe(2);
 		expect((a.study_area as { type: string }).type).toBe('MultiPolygon');
-		// Saving the study area settles the working CRS: the demo area near 10.2°E, 52.9°N lies in UTM zone 32N.
-		expect(a.working_epsg).toBe(32632);
+		// Saving the study area settles the working CRS: the demo area near 143.55°E, 32.15°S lies in UTM zone 54S.
+		expect(a.working_epsg).toBe(32754);
 		const b = await setArea(t.db, id, m.userId, 2, parseAreaUpload('exclusions', demo('exclusions.geojson'), 'exclusions.geojson'));
 		expect(areaView(b).exclusions.map((f) => f.properties.name)).toEqual(['Vennarrow Water (reservoir)']);
 		await expect(setArea(t.db, id, m.userId, 2, { exclusions: null })).rejects.toMatchObject({ status: 409, code: 'stale' });

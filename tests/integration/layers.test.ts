@@ -59,8 +59,8 @@ for (const makeStore of STORES) {
 			const bytes = await demoFile('soil-moisture.tif');
 			const layer = await uploadLayer(t.db, s.store, ctx, meta(), streamOf(bytes), limits);
 			expect(layer.status).toBe('ready');
-			// data/demo/README.md: 40 × 30 cells of 1 km, EPSG:32632, nodata −9999, values 0.02–0.17.
-			expect([layer.width, layer.height, layer.epsg, layer.nodata]).toEqual([40, 30, 32632, -9999]);
+			// data/demo/README.md: 40 × 30 cells of 1 km, EPSG:32754, nodata −9999, values 0.02–0.17.
+			expect([layer.width, layer.height, layer.epsg, layer.nodata]).toEqual([40, 30, 32754, -9999]);
 			expect(layer.resolution).toEqual({ x: 1000, y: 1000 });
 			expect(layer.sizeBytes).toBe(bytes.length);
 			expect(layer.stats!.min).toBeGreaterThanOrEqual(0.02 - 1e-6);

@@ -88,7 +88,7 @@ for (const makeStore of STORES) {
 					{ layerId: String(veg.id), transform: 'minmax', weight: 1 }
 				]
 			});
-			expect(p.grid).toMatchObject({ epsg: 32632, width: 200, height: 150, dx: 30, dy: 30 });
+			expect(p.grid).toMatchObject({ epsg: 32754, width: 200, height: 150, dx: 30, dy: 30 }); // data/demo/README.md: the demo rasters are in EPSG:32754
 			expect(p.validCount).toBeGreaterThan(0);
 			expect(p.validCount).toBeLessThan(200 * 150); // the unflown corner is nodata
 		});

@@ -67,7 +67,7 @@ describe('sensors service', () => {
 			expect(Number(row.srid)).toBe(4326);
 		}
 		const p01 = rows.find((x: { code: string }) => x.code === 'VV-P01');
-		expect(Number(p01.lon)).toBeCloseTo(10.107736, 9);
+		expect(Number(p01.lon)).toBeCloseTo(143.485353, 9);
 		const audit = await t.db('audit_log').where({ action: 'sensor.import', object_id: String(net.id) }).first();
 		expect(jsonValue(audit.after)).toMatchObject({ format: 'csv', count: 14 });
 	});
@@ -88,7 +88,7 @@ describe('sensors service', () => {
 	it('one bad row stores nothing and the report names the row and the field', async () => {
 		const net = await freshNetwork();
 		const lines = demoCsv.trimEnd().split('\n');
-		lines[5] = lines[5].replace('10.182842', 'east-ish'); // line 6 of the file (VV-P05)
+		lines[5] = lines[5].replace('143.538715', 'east-ish'); // line 6 of the file (VV-P05)
 		const r = await importSensors(t.db, net, member.userId, lines.join('\n'), 'csv');
 		expect(r.ok).toBe(false);
 		if (!r.ok) expect(r.errors).toEqual([{ row: 6, field: 'lon', message: 'lon must be a number' }]);
@@ -140,7 +140,7 @@ describe('sensors service', () => {
 		const p2 = await q('perPage=10&page=2');
 		expect(p2.sensors.map((s) => s.code)).toEqual(['VV-P09', 'VV-P10', 'VV-P11', 'VV-P12']);
 		const byLonDesc = await q('sort=lon&dir=desc&perPage=10');
-		expect(byLonDesc.sensors[0].code).toBe('VV-P06'); // 10.324907 is the easternmost in data/demo/sensors.csv
+		expect(byLonDesc.sensors[0].code).toBe('VV-P06'); // 143.638876 is the easternmost in data/demo/sensors.csv
 		const types = await sensorTypesOf(t.db, net.id);
 		const neutron = types.find((x) => x.name === 'cosmic-ray neutron sensor')!;
 		expect((await q(`type=${neutron.id}`)).sensors.map((s) => s.code)).toEqual(['VV-N1', 'VV-N2']);
@@ -152,18 +152,19 @@ describe('sensors service', () => {
 
 	it('positions entered in the working CRS (UTM of the study area centre) are stored as lon/lat and shown in both', async () => {
 		const net = await freshNetwork();
-		expect(await workingCrs(t.db, net)).toBe(32632); // the demo area lies near 10.2°E, 52.9°N: UTM zone 32N
+		expect(await workingCrs(t.db, net)).toBe(32754); // the demo area lies near 143.55°E, 32.15°S: UTM zone 54S
 		const types = await sensorTypesOf(t.db, net.id);
-		// 500000 m E is the zone's central meridian 9°E (UTM definition); 5 860 000 m N ≈ 52.88°N.
-		const f = await validateSensorInput(t.db, net, { code: 'XY-1', serial: 's', typeId: String(types[0].id), positionMode: 'xy', x: '500000', y: '5860000', installedOn: '', status: 'active', notes: '' });
-		expect(f.lon).toBeCloseTo(9, 9);
-		expect(f.lat).toBeGreaterThan(52.8);
-		expect(f.lat).toBeLessThan(52.95);
+		// 500000 m E is the zone's central meridian 141°E (UTM definition); 6 440 000 m N ≈ 32.16°S
+		// (southern zones count northings from 10 000 000 m at the equator, UTM definition).
+		const f = await validateSensorInput(t.db, net, { code: 'XY-1', serial: 's', typeId: String(types[0].id), positionMode: 'xy', x: '500000', y: '6440000', installedOn: '', status: 'active', notes: '' });
+		expect(f.lon).toBeCloseTo(141, 9);
+		expect(f.lat).toBeGreaterThan(-32.3);
+		expect(f.lat).toBeLessThan(-32.0);
 		const id = await createSensor(t.db, net, member.userId, f);
 		const page = await sensorPage(t.db, net, parseListQuery(new URLSearchParams()));
 		const s = page.sensors.find((x) => x.id === id)!;
 		expect(s.x).toBeCloseTo(500000, 1);
-		expect(s.y).toBeCloseTo(5860000, 1);
+		expect(s.y).toBeCloseTo(6440000, 1);
 	});
 
 	it('form validation names each bad field', async () => {
@@ -179,17 +180,17 @@ describe('sensors service', () => {
 		const net = await freshNetwork();
 		await importSensors(t.db, net, member.userId, demoCsv, 'csv');
 		const row = await t.db('sensors').where({ network_id: net.id, code: 'VV-P03' }).first();
-		const fields = { code: 'VV-P03', serial: row.serial, sensor_type_id: row.sensor_type_id, lon: 10.25, lat: 52.97, status: 'retired' as const, installed_on: null, notes: 'moved' };
+		const fields = { code: 'VV-P03', serial: row.serial, sensor_type_id: row.sensor_type_id, lon: 143.6, lat: -32.1, status: 'retired' as const, installed_on: null, notes: 'moved' };
 		const after = await editSensor(t.db, net, member.userId, row.id, row.version, fields);
 		expect(after.version).toBe(row.version + 1);
 		const pos = await t.db('sensors').select(t.db.raw('ST_X(position) as px')).where({ id: row.id }).first();
-		expect(Number(pos.px)).toBeCloseTo(10.25, 9);
+		expect(Number(pos.px)).toBeCloseTo(143.6, 9);
 		await expect(editSensor(t.db, net, member.userId, row.id, row.version, { ...fields, notes: 'second writer' })).rejects.toMatchObject({ status: 409, code: 'stale' });
 		expect((await t.db('sensors').where({ id: row.id }).first()).notes).toBe('moved');
 		const audit = await t.db('audit_log').where({ action: 'sensor.update', object_id: String(row.id) });
 		expect(audit).toHaveLength(1);
-		expect(jsonValue(audit[0].before)).toMatchObject({ status: 'active', lon: 10.234272 });
-		expect(jsonValue(audit[0].after)).toMatchObject({ status: 'retired', lon: 10.25 });
+		expect(jsonValue(audit[0].before)).toMatchObject({ status: 'active', lon: 143.574347 });
+		expect(jsonValue(audit[0].after)).toMatchObject({ status: 'retired', lon: 143.6 });
 		await expect(removeSensor(t.db, net, member.userId, row.id, row.version)).rejects.toMatchObject({ code: 'stale' });
 		await removeSensor(t.db, net, member.userId, row.id, after.version);
 		expect(await t.db('audit_log').where({ action: 'sensor.delete', object_id: String(row.id) })).toHaveLength(1);

@@ -43,7 +43,7 @@ describe('zone shares on the network importance', () => {
 	it('is null before a recipe is chosen, and a working grid in the UTM zone once it is', async () => {
 		const imp = await importanceForZones(t.db, s.store, net);
 		expect(imp).not.toBeNull();
-		expect(imp!.grid.crs).toBe('EPSG:32632');
+		expect(imp!.grid.crs).toBe('EPSG:32754');
 		const sum = imp!.grid.mass.reduce((a, b) => a + b, 0);
 		expect(sum).toBeCloseTo(1, 9);
 	});

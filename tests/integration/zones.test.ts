@@ -26,17 +26,17 @@ import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpe
 const demo = (f: string) => readFileSync(path.resolve(import.meta.dirname, '../../data/demo', f), 'utf8');
 const studyArea: MultiPolygonGeometry = { type: 'MultiPolygon', coordinates: [JSON.parse(demo('study-area.geojson')).features[0].geometry.coordinates] };
 
-/** Planar area in m² of a lon/lat MultiPolygon, measured in UTM 32N. */
-function areaM2(g: MultiPolygonGeometry): number {
-	const f = transformer(4326, 32632).forward;
+/** Planar area in m² of a lon/lat MultiPolygon, measured in a UTM zone (54S, the demo's, unless given). */
+function areaM2(g: MultiPolygonGeometry, epsg = 32754): number {
+	const f = transformer(4326, epsg).forward;
 	let a = 0;
 	for (const poly of g.coordinates) poly.forEach((ring) => (a += ringArea2(ring.map(([x, y]) => f(x, y))) / 2));
 	return a;
 }
 
-/** An importance grid over the demo area in UTM 32N: mass rising eastwards, 500 m cells. */
+/** An importance grid over the demo area in UTM 54S: mass rising eastwards, 500 m cells. */
 function demoImportance(): ImportanceSurface {
-	const f = transformer(4326, 32632).forward;
+	const f = transformer(4326, 32754).forward;
 	const pts = studyArea.coordinates[0][0].map(([x, y]) => f(x, y));
 	const x0 = Math.floor(Math.min(...pts.map((p) => p[0])) / 500) * 500 - 500;
 	const y0 = Math.ceil(Math.max(...pts.map((p) => p[1])) / 500) * 500 + 500;
@@ -44,7 +44,7 @@ function demoImportance(): ImportanceSurface {
 	const height = Math.ceil((y0 - Math.min(...pts.map((p) => p[1]))) / 500) + 1;
 	const mass = new Float64Array(width * height);
 	const feasible = new Uint8Array(width * height);
-	const inv = transformer(32632, 4326).forward;
+	const inv = transformer(32754, 4326).forward;
 	let total = 0;
 	for (let r = 0; r < height; r++)
 		for (let c = 0; c < width; c++) {
@@ -55,7 +55,7 @@ function demoImportance(): ImportanceSurface {
 			total += 1 + c;
 		}
 	for (let i = 0; i < mass.length; i++) mass[i] /= total;
-	return { grid: { crs: 'EPSG:32632', width, height, x0, y0, cellSize: 500, mass, feasible }, recipeVersionId: null };
+	return { grid: { crs: 'EPSG:32754', width, height, x0, y0, cellSize: 500, mass, feasible }, recipeVersionId: null };
 }
 
 describe('zone geometry', () => {
@@ -74,12 +74,12 @@ describe('zone geometry', () => {
 	});
 
 	it('a 3 km grid covers the study area: the cells sum to its area and each point lies in exactly one cell', () => {
-		const zones = gridZones(studyArea, 32632, 3000);
+		const zones = gridZones(studyArea, 32754, 3000);
 		const total = zones.reduce((s, z) => s + areaM2(z.geometry), 0);
 		expect(total / areaM2(studyArea)).toBeCloseTo(1, 3);
-		const f = transformer(32632, 4326).forward;
-		const g = transformer(4326, 32632).forward;
-		const [cx, cy] = g(10.2, 52.95);
+		const f = transformer(32754, 4326).forward;
+		const g = transformer(4326, 32754).forward;
+		const [cx, cy] = g(143.55, -32.15);
 		let checked = 0;
 		for (let i = -20; i <= 20; i++)
 			for (let j = -20; j <= 20; j++) {
@@ -101,13 +101,13 @@ describe('zone geometry', () => {
 			expect(g.coordinates[0]).toHaveLength(1);
 			expect(g.coordinates[0][0]).toHaveLength(5); // corners only: collinear vertices dropped
 			expect(ringArea2(g.coordinates[0][0])).toBeGreaterThan(0); // RFC 7946: exterior counter-clockwise
-			expect(areaM2(g) / 4e6).toBeCloseTo(1, 3);
+			expect(areaM2(g, 32632) / 4e6).toBeCloseTo(1, 3);
 		}
 	});
 
 	it('shares of a covering partition sum to 1', () => {
 		const imp = demoImportance();
-		const shares = zoneShares(imp.grid, gridZones(studyArea, 32632, 3000).map((z) => z.geometry));
+		const shares = zoneShares(imp.grid, gridZones(studyArea, 32754, 3000).map((z) => z.geometry));
 		expect(shares.reduce((s, v) => s! + v!, 0)).toBeCloseTo(1, 9);
 	});
 });
@@ -183,7 +183,7 @@ describe('zones on a network whose study area is a bare Polygon', () => {
 			const net = (await findNetwork(t.db, id))!;
 			const setId = await createGridZoneSet(t.db, net, m.userId, '', 9, null);
 			const set = (await zoneSetViews(t.db, net)).find((s) => s.id === setId)!;
-			expect(set.zones.length).toBe(gridZones(studyArea, 32632, 9000).length);
+			expect(set.zones.length).toBe(gridZones(studyArea, 32754, 9000).length);
 		} finally {
 			await t.drop();
 		}

@@ -119,7 +119,7 @@ export interface MapLegendStop {
 }
 
 export interface MapBackdrop {
-	/** 'importance' = the network's current importance surface; 'layer' = a layer preview. */
+	/** 'importance' = the network's current importance map; 'layer' = a layer preview. */
 	kind: 'importance' | 'layer';
 	label: string;
 	url: string;

@@ -67,7 +67,7 @@ export function validatePlacementInput(
 			throw new EngineInputError('sensors', 'no sensors given and no options.count: nothing to place');
 		}
 		if (options.radius === undefined) {
-			throw new EngineInputError('options.radius', 'greenfield placement (no sensors) needs a sensing radius');
+			throw new EngineInputError('options.radius', 'placing new sensors where none stand yet needs a sensing radius');
 		}
 		let feasibleCells = 0;
 		for (let k = 0; k < cells; k++) feasibleCells += grid.feasible[k] ? 1 : 0;

@@ -137,6 +137,12 @@ function isValid(v: number, nodata: number | null): boolean {
 }
 
 /** Resample a raster band into a WorkingGrid. Pure: the raster is not modified. */
+function hasValidCell(raster: RasterBand): boolean {
+	const nodata = storedNodata(raster);
+	for (let i = 0; i < raster.data.length; i++) if (isValid(raster.data[i], nodata)) return true;
+	return false;
+}
+
 export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = {}): WorkingGridResult {
 	const sampling = opts.sampling ?? 'bilinear';
 	const maxCells = opts.maxCells ?? 64_000_000;
@@ -221,6 +227,7 @@ export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = 
 
 	// Sample the raster.
 	const n = width * height;
+	if (!hasValidCell(raster)) throw new WorkingGridError('the raster has no valid cells: every cell is nodata, NaN or negative');
 	const mass = new Float64Array(n);
 	const feasible = new Uint8Array(n);
 	const { data } = raster;

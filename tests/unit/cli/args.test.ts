@@ -18,8 +18,16 @@ describe('parsePlaceArgs', () => {
 			seed: 1,
 			out: null,
 			zones: null,
-			zoneGrid: null
+			zoneGrid: null,
+			minSpacing: null,
+			maxTravel: null
 		});
+	});
+	it('lets lloyd run without --radius (its step does not use one)', () => {
+		expect(parsePlaceArgs([...base, '--count', '5', '--strategy', 'lloyd'])).toMatchObject({ strategy: 'lloyd', radius: null });
+	});
+	it('reads --min-spacing and --max-travel', () => {
+		expect(parsePlaceArgs([...base, '--sensors', 's.geojson', '--min-spacing', '250', '--max-travel', '1200.5'])).toMatchObject({ minSpacing: 250, maxTravel: 1200.5 });
 	});
 	it('reads every option', () => {
 		const a = parsePlaceArgs([
@@ -39,7 +47,9 @@ describe('parsePlaceArgs', () => {
 		['no importance', ['--count', '3', '--radius', '1'], /--importance FILE is required/],
 		['neither sensors nor count', [...base], /--sensors FILE or --count N/],
 		['both sensors and count', [...base, '--sensors', 's', '--count', '3', '--radius', '1'], /not both/],
-		['count without radius', [...base, '--count', '3'], /--count needs --radius/],
+		['count without radius', [...base, '--count', '3'], /--count needs --radius M \(the sensing radius of the new sensors\) with --strategy range-limited/],
+		['negative min spacing', [...base, '--count', '3', '--radius', '1', '--min-spacing=-5'], /--min-spacing must be a number >= 0/],
+		['max travel for new sensors', [...base, '--count', '3', '--radius', '1', '--max-travel', '100'], /--max-travel limits how far existing sensors move: give --sensors FILE/],
 		['count of zero', [...base, '--count', '0', '--radius', '1'], /--count must be an integer >= 1/],
 		['fractional count', [...base, '--count', '2.5', '--radius', '1'], /--count must be an integer/],
 		['negative radius', [...base, '--count', '2', '--radius=-4'], /--radius must be a number > 0/],

@@ -4,6 +4,7 @@ import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'no
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import proj4 from 'proj4';
+import { Geodesic } from 'geographiclib-geodesic';
 import { encodeTiff } from '../../../src/bench/support/tiff-writer';
 import { main } from '../../../src/cli/main';
 
@@ -44,6 +45,7 @@ beforeAll(() => {
 	const geo = { tiepoint: [0, 0, 0, 15.4, 48.25, 0], pixelScale: [0.001, 0.001, 0], geoKeys: [[1024, 2], [1025, 1], [2048, 4326]] as Array<[number, number]> };
 	writeFileSync(f('imp.tif'), new Uint8Array(encodeTiff({ width: w, height: h, bands: [data], sampleFormat: 3, bitsPerSample: 32, geo, nodata: '-9999' })));
 	writeFileSync(f('not-a-tiff.tif'), 'hello, I am text');
+	writeFileSync(f('all-nodata.tif'), new Uint8Array(encodeTiff({ width: 4, height: 3, bands: [new Array(12).fill(-9999)], sampleFormat: 3, bitsPerSample: 32, geo, nodata: '-9999' })));
 	const pt = (id: string, lon: number, lat: number, extra: Record<string, unknown> = {}) => ({
 		type: 'Feature', geometry: { type: 'Point', coordinates: [lon, lat] }, properties: { id, ...extra }
 	});
@@ -54,6 +56,10 @@ beforeAll(() => {
 	const box = (id: string, w0: number, s0: number, e0: number, n0: number) => ({
 		type: 'Feature', properties: { id }, geometry: { type: 'Polygon', coordinates: [[[w0, s0], [e0, s0], [e0, n0], [w0, n0], [w0, s0]]] }
 	});
+	// Twelve sensors on a 4 × 3 lattice about 1000 m apart (0.0135° of longitude ≈ 1001 m at 48.24°N,
+	// 0.009° of latitude ≈ 1001 m; GeographicLib figures checked in the tests below).
+	writeFileSync(f('lattice.geojson'), JSON.stringify({ type: 'FeatureCollection', features: Array.from({ length: 12 }, (_, k) => pt(`L${k}`, 15.405 + (k % 4) * 0.0135, 48.245 - Math.floor(k / 4) * 0.009)) }));
+	writeFileSync(f('west-zone.geojson'), JSON.stringify({ type: 'FeatureCollection', features: [box('west', 15.4, 48.21, 15.43, 48.25)] }));
 	writeFileSync(f('zones.geojson'), JSON.stringify({ type: 'FeatureCollection', features: [box('west', 15.4, 48.21, 15.43, 48.25), box('east', 15.43, 48.21, 15.46, 48.25)] }));
 	writeFileSync(f('exclusions.geojson'), JSON.stringify(box('lake', 15.435, 48.23, 15.445, 48.24)));
 	writeFileSync(f('study.geojson'), JSON.stringify({ type: 'FeatureCollection', features: [box('field', 15.41, 48.22, 15.45, 48.245)] }));
@@ -167,6 +173,78 @@ describe.concurrent('cairnfield place (greenfield and not-a-TIFF spawn node src/
 		}
 	});
 
+	it('--strategy lloyd runs without --radius and then reports no coverage', async () => {
+		const r = await runHere(['place', '--importance', f('imp.tif'), '--count', '4', '--strategy', 'lloyd']);
+		expect(r.stderr).toBe('');
+		expect(r.code).toBe(0);
+		const doc = JSON.parse(r.stdout);
+		expect(doc.features).toHaveLength(4);
+		expect(doc.placement.coverage).toBeNull();
+		expect(doc.placement.cost).toBeGreaterThan(0);
+		for (const h of doc.placement.history) expect(h.coverage).toBeNull();
+		for (const feat of doc.features) expect(feat.properties.radius_m).toBeNull();
+		// Lloyd's step ignores the radius (Lloyd 1982; Du, Faber & Gunzburger 1999, SIAM Review): the same
+		// seed gives the same sites with any radius.
+		const withRadius = JSON.parse((await runHere(['place', '--importance', f('imp.tif'), '--count', '4', '--strategy', 'lloyd', '--radius', '300'])).stdout);
+		expect(withRadius.features.map((x: { geometry: unknown }) => x.geometry)).toEqual(doc.features.map((x: { geometry: unknown }) => x.geometry));
+		expect(withRadius.placement.coverage).toBeGreaterThan(0);
+	});
+
+	it('--min-spacing keeps every pair of sensors at least that far apart (GeographicLib distances)', async () => {
+		const minPair = (doc: { features: { geometry: { coordinates: [number, number] } }[] }) => {
+			const pts = doc.features.map((x) => x.geometry.coordinates);
+			let min = Infinity;
+			for (let i = 0; i < pts.length; i++)
+				for (let j = i + 1; j < pts.length; j++) min = Math.min(min, Geodesic.WGS84.Inverse(pts[i][1], pts[i][0], pts[j][1], pts[j][0]).s12!);
+			return min;
+		};
+		const args = ['place', '--importance', f('imp.tif'), '--sensors', f('lattice.geojson'), '--strategy', 'lloyd'];
+		const free = JSON.parse((await runHere(args)).stdout);
+		expect(minPair(free)).toBeLessThan(950); // without the option the peak pulls two sensors closer
+		const r = await runHere([...args, '--min-spacing', '950']);
+		expect(r.code).toBe(0);
+		// UTM distances are geodesic ones times a scale factor below 1 near the central meridian
+		// (0.9996 on it, Snyder 1987, Map Projections: A Working Manual, p. 58), so 950 m planar is at least 950 m true.
+		expect(minPair(JSON.parse(r.stdout))).toBeGreaterThanOrEqual(950);
+	});
+
+	it('--max-travel keeps every sensor within that distance of where it stood (GeographicLib distances)', async () => {
+		const input = JSON.parse(readFileSync(f('lattice.geojson'), 'utf8')).features as { properties: { id: string }; geometry: { coordinates: [number, number] } }[];
+		const travel = (doc: { features: { properties: { id: string }; geometry: { coordinates: [number, number] } }[] }) =>
+			doc.features.map((x) => {
+				const from = input.find((s) => s.properties.id === x.properties.id)!.geometry.coordinates;
+				const [lon, lat] = x.geometry.coordinates;
+				return Geodesic.WGS84.Inverse(from[1], from[0], lat, lon).s12!;
+			});
+		const args = ['place', '--importance', f('imp.tif'), '--sensors', f('lattice.geojson'), '--strategy', 'lloyd'];
+		expect(Math.max(...travel(JSON.parse((await runHere(args)).stdout)))).toBeGreaterThan(300);
+		const r = await runHere([...args, '--max-travel', '300']);
+		expect(r.code).toBe(0);
+		const moved = travel(JSON.parse(r.stdout));
+		// planar 300 m is at most 300 / 0.9996 m on the ellipsoid (UTM scale factor, Snyder 1987 p. 58)
+		for (const m of moved) expect(m).toBeLessThanOrEqual(300 / 0.9996 + 1e-6);
+		expect(Math.max(...moved)).toBeGreaterThan(299);
+	});
+
+	it('zones that hold under 95 % of the importance: a warning on stderr, and the sites stay inside the zones', async () => {
+		const r = await runHere(['place', '--importance', f('imp.tif'), '--count', '3', '--radius', '300', '--strategy', 'zone-balanced', '--zones', f('west-zone.geojson')]);
+		expect(r.code).toBe(0);
+		// The peak sits at column 40 of 60 (15.44°E), east of the one zone (15.40–15.43°E): most importance lies outside it.
+		expect(r.stderr).toMatch(/^cairnfield: warning: the zones hold \d+(\.\d)? % of the importance; the \d+(\.\d)? % outside every zone is left out/);
+		expect(r.stderr.trimEnd().split('\n')).toHaveLength(1);
+		const doc = JSON.parse(r.stdout);
+		expect(doc.placement.warnings).toHaveLength(1);
+		expect(doc.placement.zones.map((z: { mass: number }) => z.mass)).toEqual([expect.closeTo(1, 9)]);
+		for (const feat of doc.features) {
+			expect(feat.properties.zone).toBe('west');
+			expect(feat.geometry.coordinates[0]).toBeLessThan(15.43);
+		}
+		// Zones that cover the raster give no warning.
+		const quiet = await runHere(['place', '--importance', f('imp.tif'), '--count', '3', '--radius', '300', '--strategy', 'zone-balanced', '--zones', f('zones.geojson')]);
+		expect(quiet.stderr).toBe('');
+		expect(JSON.parse(quiet.stdout).placement.warnings).toEqual([]);
+	});
+
 	it('--help prints the usage and exits 0', async () => {
 		const r = await runHere(['place', '--help']);
 		expect(r.code).toBe(0);
@@ -194,6 +272,8 @@ describe('cairnfield place bad input (in process through main)', () => {
 		['broken JSON', () => ['--importance', f('imp.tif'), '--sensors', f('broken.geojson'), '--radius', '100'], /broken\.geojson: not valid JSON/],
 		['a bad mobility', () => ['--importance', f('imp.tif'), '--sensors', f('bad-sensors.geojson'), '--radius', '100'], /mobility must be one of fixed, relocatable, mobile/],
 		['a sensor without radius', () => ['--importance', f('imp.tif'), '--sensors', f('sensors.geojson')], /sensor "B" has no radius_m and no --radius/],
+		['a raster with no valid cell', () => ['--importance', f('all-nodata.tif'), '--count', '3', '--radius', '100'], /the raster has no valid cells: every cell is nodata, NaN or negative/],
+		['a sensor without radius under lloyd is fine, but not under range-limited', () => ['--importance', f('imp.tif'), '--sensors', f('sensors.geojson'), '--strategy', 'range-limited'], /sensor "B" has no radius_m/],
 		['more sensors than feasible cells', () => ['--importance', f('imp.tif'), '--count', '100000', '--radius', '100'], /options\.count/],
 		['an unknown option', () => ['--importance', f('imp.tif'), '--count', '2', '--radius', '100', '--speed', '3'], /Unknown option '--speed'/]
 	];

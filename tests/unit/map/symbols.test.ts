@@ -27,8 +27,9 @@ describe('map symbols', () => {
 	});
 
 	it('formatters', () => {
-		expect(formatLonLat(-3.1883, 55.9533)).toBe('55.95330° N, 3.18830° W');
-		expect(formatLonLat(10.1, -0.5)).toBe('0.50000° S, 10.10000° E');
+		expect(formatLonLat(-3.1883, 55.9533)).toBe('lon 3.18830° W, lat 55.95330° N');
+		expect(formatLonLat(10.1, -0.5)).toBe('lon 10.10000° E, lat 0.50000° S');
+		expect(formatLonLat(143.4853531, -32.1376472, 6)).toBe('lon 143.485353° E, lat 32.137647° S');
 		expect(formatMetres(5864732.4)).toBe('5\u2009864\u2009732');
 		expect(formatMetres(512)).toBe('512');
 		expect(formatShare(0.256)).toBe('25.6 %');

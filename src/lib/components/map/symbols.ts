@@ -62,10 +62,13 @@ export function sensorSymbolSvg(style: TypeStyle, status: SensorStatus, size = 2
 	return `<svg xmlns="http://www.w3.org/2000/svg" width="${size}" height="${size}" viewBox="0 0 20 20" aria-hidden="true">${halo}${body}</svg>`;
 }
 
-/** Lon/lat as degrees with 5 decimals (about a metre) and hemisphere letters. */
-export function formatLonLat(lon: number, lat: number): string {
-	const f = (v: number, pos: string, neg: string) => `${Math.abs(v).toFixed(5)}° ${v >= 0 ? pos : neg}`;
-	return `${f(lat, 'N', 'S')}, ${f(lon, 'E', 'W')}`;
+/**
+ * A WGS 84 position in the one order Cairnfield uses everywhere, as its files do (RFC 7946): lon
+ * first, then lat, each labelled, in degrees with hemisphere letters. 5 decimals is about a metre.
+ */
+export function formatLonLat(lon: number, lat: number, decimals = 5): string {
+	const f = (v: number, pos: string, neg: string) => `${Math.abs(v).toFixed(decimals)}° ${v >= 0 ? pos : neg}`;
+	return `lon ${f(lon, 'E', 'W')}, lat ${f(lat, 'N', 'S')}`;
 }
 
 /** Working-CRS metres with no decimals and a thin-space thousands separator. */

@@ -1,12 +1,15 @@
 /**
- * Demo data for Cairnfield: the invented "Vennarrow Vale" catchment on sandy lowland heath.
+ * Demo data for Cairnfield: the invented "Vennarrow Vale" catchment. The names are invented; the
+ * numbers sit on unremarkable open grazing country of sandy red plains in the far west of New South
+ * Wales (about 32.15° S, 143.55° E, UTM zone 54S), tens of kilometres from the nearest town, and
+ * every feature is placed relative to one centre, so the scenario can be moved by changing it.
  * Everything here is generated from smooth deterministic functions (seeded value noise), so the
  * files in data/demo/ can be rebuilt byte for byte:
  *
  *   npx tsx src/lib/server/layers/demo-data.ts [outDir]      (default data/demo)
  *
- * Files: soil-moisture.tif (1 km, 40×30, EPSG:32632), vegetation-index.tif (30 m, 200×150,
- * EPSG:32632), study-area.geojson, exclusions.geojson, zones.geojson and sensors.csv.
+ * Files: soil-moisture.tif (1 km, 40×30, EPSG:32754), vegetation-index.tif (30 m, 200×150,
+ * EPSG:32754), study-area.geojson, exclusions.geojson, zones.geojson and sensors.csv.
  */
 import { writeArrayBuffer } from 'geotiff';
 import { mkdir, writeFile } from 'node:fs/promises';
@@ -16,7 +19,7 @@ import { transformer } from '../../geo/crs';
 import { exportSensorsCsv, type SensorRecord } from '../inventory';
 import { mulberry32 } from '../../engine/prng';
 
-export const DEMO_EPSG = 32632; // WGS 84 / UTM zone 32N
+export const DEMO_EPSG = 32754; // WGS 84 / UTM zone 54S
 export const DEMO_NODATA = -9999;
 /** Sensor type names the demo sensors use; seed these types before importing sensors.csv. */
 export const DEMO_SENSOR_TYPES = ['soil moisture probe', 'cosmic-ray neutron sensor'] as const;
@@ -36,11 +39,15 @@ export interface DemoGrid {
 	height: number;
 }
 
-export const MOISTURE_GRID: DemoGrid = { x0: 560_000, y0: 5_880_000, cell: 1000, width: 40, height: 30 };
-export const VEGETATION_GRID: DemoGrid = { x0: 575_000, y0: 5_868_000, cell: 30, width: 200, height: 150 };
+/** Centre of the catchment in EPSG:32754 metres (about 32.15° S, 143.55° E); everything else is placed from it. */
+export const DEMO_CENTRE: readonly [number, number] = [740_000, 6_440_000];
+const [CX, CY] = DEMO_CENTRE;
 
-const CENTRE: [number, number] = [580_000, 5_865_000];
-const RESERVOIR = { x: 586_500, y: 5_861_000, a: 1600, b: 750, angle: 0.45 };
+export const MOISTURE_GRID: DemoGrid = { x0: CX - 20_000, y0: CY + 15_000, cell: 1000, width: 40, height: 30 };
+export const VEGETATION_GRID: DemoGrid = { x0: CX - 5000, y0: CY + 3000, cell: 30, width: 200, height: 150 };
+
+const CENTRE: [number, number] = [CX, CY];
+const RESERVOIR = { x: CX + 6500, y: CY - 4000, a: 1600, b: 750, angle: 0.45 };
 
 /** Smooth 2-D value noise in about −1..1: a lattice of seeded values, smoothstep-interpolated, octaves summed. */
 export function valueNoise(seed: number, octaves = 4): (x: number, y: number) => number {
@@ -75,7 +82,7 @@ export function valueNoise(seed: number, octaves = 4): (x: number, y: number) =>
 
 /** Distance in metres from (x, y) to the main beck, a gentle curve running west to east. */
 function distanceToBeck(x: number, y: number): number {
-	const beckY = 5_864_000 + 2500 * Math.sin((x - 560_000) / 7000);
+	const beckY = CY - 1000 + 2500 * Math.sin((x - CX + 20_000) / 7000);
 	return Math.abs(y - beckY);
 }
 
@@ -111,14 +118,14 @@ export function moistureValues(): Float32Array {
 				continue;
 			}
 			const valley = Math.exp(-((distanceToBeck(x, y) / 4000) ** 2));
-			const v = 0.075 + 0.06 * valley + 0.022 * noise(x / 9000, y / 9000);
+			const v = 0.075 + 0.06 * valley + 0.022 * noise((x - CX) / 9000, (y - CY) / 9000);
 			out[r * g.width + c] = Math.min(0.165, Math.max(0.025, v));
 		}
 	}
 	return out;
 }
 
-/** Vegetation index (NDVI-like, −1..1): heath 0.3–0.5, pine stands to 0.8, a bare track; an unflown corner is nodata. */
+/** Vegetation index (NDVI-like, −1..1): saltbush plain 0.3–0.5, cypress-pine stands to 0.8, a bare track; an unflown corner is nodata. */
 export function vegetationValues(): Float32Array {
 	const g = VEGETATION_GRID;
 	const noise = valueNoise(23, 5);
@@ -132,16 +139,16 @@ export function vegetationValues(): Float32Array {
 				continue;
 			}
 			const [x, y] = cellCentre(g, r, c);
-			const forest = Math.min(1, Math.max(0, (stands(x / 2500, y / 2500) + 0.3) * 2.5));
-			const track = Math.exp(-(((x - 577_300 - (y - 5_866_000) * 0.3) / 25) ** 2));
-			const v = 0.36 + 0.4 * forest + 0.06 * noise(x / 600, y / 600) - 0.3 * track;
+			const forest = Math.min(1, Math.max(0, (stands((x - CX) / 2500, (y - CY) / 2500) + 0.3) * 2.5));
+			const track = Math.exp(-(((x - CX + 2700 - (y - CY - 1000) * 0.3) / 25) ** 2));
+			const v = 0.36 + 0.4 * forest + 0.06 * noise((x - CX) / 600, (y - CY) / 600) - 0.3 * track;
 			out[i] = Math.min(0.88, Math.max(0.05, v));
 		}
 	}
 	return out;
 }
 
-/** A single-band Float32 GeoTIFF in EPSG:32632 with GDAL_NODATA. */
+/** A single-band Float32 GeoTIFF in the demo's EPSG (UTM 54S) with GDAL_NODATA. */
 export function encodeDemoTiff(values: Float32Array, g: DemoGrid): ArrayBuffer {
 	return writeArrayBuffer(values, {
 		width: g.width,
@@ -254,8 +261,8 @@ export function demoSensors(): SensorRecord[] {
 	}
 	// The two neutron sensors stand in the flown area, where the vegetation index helps explain them.
 	const crns: [number, number][] = [
-		[577_400, 5_866_900],
-		[579_600, 5_864_600]
+		[CX - 2600, CY + 1900],
+		[CX - 400, CY - 400]
 	];
 	crns.forEach(([x, y], k) => {
 		const [lon, lat] = forward(x, y);
@@ -267,7 +274,7 @@ export function demoSensors(): SensorRecord[] {
 			lat: round(lat),
 			installDate: k === 0 ? '2024-10-14' : '2025-03-20',
 			status: 'active',
-			notes: k === 0 ? 'Mast on the heath near the track' : null
+			notes: k === 0 ? 'Mast on the open plain near the track' : null
 		});
 	});
 	return sensors;

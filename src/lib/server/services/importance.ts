@@ -7,7 +7,7 @@
  * layer (smallest cell area in metres; ties: the first listed), coarsened by an integer factor
  * when it would exceed MAX_SURFACE_CELLS. Layers in another CRS are reprojected (nearest
  * neighbour, reprojectToGrid), layers in the same CRS are aligned (alignToGrid). Cells outside a
- * layer's footprint are nodata, and nodata in any layer is nodata in the surface (combineLayers).
+ * layer's extent are nodata, and nodata in any layer is nodata in the surface (combineLayers).
  *
  * Stored surface ("surface_key" of a version): a compact binary, see encodeSurface.
  */

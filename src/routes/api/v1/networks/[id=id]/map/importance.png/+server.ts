@@ -10,6 +10,6 @@ import { importanceSource } from '../importance-source';
 export const GET: RequestHandler = apiHandler(async (event) => {
 	const { network } = await networkAccess(event, 'network.view');
 	const png = await importancePng(getDb(), network, importanceSource(), getObjectStore());
-	if (!png) throw new ApiError(404, 'not_found', 'This network has no importance surface yet.');
+	if (!png) throw new ApiError(404, 'not_found', 'This network has no importance map yet.');
 	return new Response(new Uint8Array(png), { headers: { 'content-type': 'image/png', 'cache-control': 'private, no-store' } });
 });
