@@ -10,6 +10,7 @@ import { createObjectStore } from '../src/lib/server/storage/create-object-store
 import type { ObjectStore } from '../src/lib/server/storage/object-store';
 import { seedDemoInventory } from './demo-inventory';
 import { seedDemoNetwork } from './demo-network';
+import { seedDemoProposals } from './demo-proposals';
 
 export const DEMO_ORGANISATION = { slug: 'fellside-hydrology', name: 'Fellside Hydrology Co-operative' };
 
@@ -53,11 +54,11 @@ export function demoUsersWanted(origin: string | undefined, env: Record<string, 
 }
 
 /**
- * `opts.users`: whether the demo users are created (see demoUsersWanted). `opts.store` is where the
- * demo rasters go: the app's object store (STORAGE_* of the environment unless given), so that the
- * app finds them.
+ * `opts.users`: whether to create the demo users (see demoUsersWanted); `opts.store`: where the demo
+ * rasters go, the app's object store (STORAGE_* of the environment unless given); `opts.origin`:
+ * the origin of links in the demo's e-mail (ORIGIN, else the local default).
  */
-export async function seed(knex: Knex, opts: { users?: boolean; store?: ObjectStore } = {}): Promise<void> {
+export async function seed(knex: Knex, opts: { users?: boolean; store?: ObjectStore; origin?: string } = {}): Promise<void> {
 	const withUsers = opts.users ?? true;
 	const store = opts.store ?? createObjectStore(process.env);
 	const actors = await knex.transaction(async (trx) => {
@@ -95,4 +96,15 @@ export async function seed(knex: Knex, opts: { users?: boolean; store?: ObjectSt
 	});
 	// After the commit: each service opens its own transaction, as it does for an upload.
 	await seedDemoNetwork(knex, store, actors);
+	if (withUsers) await seedDemoProposalStage(knex, store, opts.origin);
+	else console.log('demo proposals skipped: they need the demo users');
+}
+
+/** The proposals stage (./demo-proposals), after everything the network holds. */
+async function seedDemoProposalStage(knex: Knex, store: ObjectStore, originOpt: string | undefined): Promise<void> {
+	const org = await knex('organisations').select('id').where({ slug: DEMO_ORGANISATION.slug }).first();
+	const net = await knex('networks').select('id').where({ organisation_id: org.id, slug: DEMO_NETWORK.slug }).first();
+	const user = (role: string) => knex('users').select('id', 'name').where({ email: DEMO_USERS.find((u) => u.role === role)!.email }).first();
+	const origin = (originOpt ?? process.env.ORIGIN ?? `http://127.0.0.1:${process.env.PORT ?? 3000}`).replace(/\/$/, '');
+	await seedDemoProposals(knex, store, { networkId: net.id, analyst: await user('analyst'), reviewer: await user('reviewer') }, origin);
 }

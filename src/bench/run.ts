@@ -6,7 +6,8 @@ export {};
  */
 const suites: Record<string, () => Promise<{ run: (args: string[]) => Promise<void> }>> = {
 	lloyd: () => import('./lloyd'),
-	ingest: () => import('./ingest')
+	ingest: () => import('./ingest'),
+	jobs: () => import('./jobs')
 };
 
 const wanted = process.argv.slice(2).filter((a) => !a.startsWith('-'));

@@ -6,12 +6,11 @@
 import { readFile } from 'node:fs/promises';
 import { place, zoneGrid, type PlacementResult, type SensorInput, type WorkingGrid, type ZoneMap } from '../lib/engine';
 import { rasterizeZones } from '../lib/engine/rasterize';
-import { assignMoves, routeLength, routeOrder, type Point } from '../lib/engine/moves';
 import { readGeoTiff } from '../lib/geo/geotiff';
 import { GeoJsonError, projectRings, readPolygons, readSensors, readZones } from '../lib/geo/geojson';
 import { transformer } from '../lib/geo/crs';
 import { buildWorkingGrid } from '../lib/geo/working-grid';
-import { geodesicDistance } from '../lib/geo/geodesic';
+import { planMoves } from '../lib/geo/move-plan';
 import { CliError, type PlaceArgs } from './args';
 
 async function readBytes(file: string): Promise<ArrayBuffer> {
@@ -156,56 +155,18 @@ export async function runPlace(args: PlaceArgs): Promise<PlaceOutput> {
 		history: result.history.map((h) => ({ iteration: h.iteration, cost: h.cost, coverage: coverage(h.coverage) })),
 		warnings
 	};
-	if (sensors.length > 0) placement.moves = planMoves(sensors, result, toLonLat);
+	if (sensors.length > 0) placement.moves = movesOutput(sensors, result, toLonLat);
 	return { type: 'FeatureCollection', features, placement };
 }
 
-/**
- * Moves for the field crew: which sensor goes to which final position (optimal assignment within
- * each sensor type), and the order to do them in. A job is "go to the sensor, carry it to its
- * target"; jobs are ordered by a route through their midpoints, and the reported lengths follow
- * the actual path from_1 → to_1 → from_2 → to_2 → … (planar in the working CRS, and geodesic).
- */
-function planMoves(sensors: SensorInput[], result: PlacementResult, toLonLat: (x: number, y: number) => [number, number]) {
-	const movable = result.sensors.filter((s) => s.mobility !== 'fixed');
-	const assignment = assignMoves(
-		sensors.map((s) => ({ id: s.id, x: s.x, y: s.y, mobility: s.mobility, radius: s.radius })),
-		movable.map((s) => ({ x: s.x, y: s.y, radius: s.radius }))
-	);
-	const jobs = assignment.moves.filter((m) => m.distance > 1e-6);
-	const mid: Point[] = jobs.map((m) => [(m.fromX + m.toX) / 2, (m.fromY + m.toY) / 2]);
-	const order = routeOrder(null, mid).order;
-	const path: Point[] = order.flatMap((k) => [[jobs[k].fromX, jobs[k].fromY] as Point, [jobs[k].toX, jobs[k].toY] as Point]);
-	const pathLonLat = path.map(([x, y]) => toLonLat(x, y));
-	let geodesicPath = 0;
-	for (let i = 1; i < pathLonLat.length; i++) {
-		geodesicPath += geodesicDistance(pathLonLat[i - 1][0], pathLonLat[i - 1][1], pathLonLat[i][0], pathLonLat[i][1]);
-	}
-	const planarPath = routeLength(null, path, path.map((_, i) => i));
-	let geodesicTotal = 0;
-	const assigned = assignment.moves.map((m) => {
-		const from = toLonLat(m.fromX, m.fromY);
-		const to = toLonLat(m.toX, m.toY);
-		const g = geodesicDistance(from[0], from[1], to[0], to[1]);
-		geodesicTotal += g;
-		return {
-			id: m.id,
-			target: movable[m.target].id,
-			from: { x: m.fromX, y: m.fromY, lon: from[0], lat: from[1] },
-			to: { x: m.toX, y: m.toY, lon: to[0], lat: to[1] },
-			planar_m: m.distance,
-			geodesic_m: g
-		};
-	});
+/** The CLI's snake_case form of the move plan. */
+function movesOutput(sensors: SensorInput[], result: PlacementResult, toLonLat: (x: number, y: number) => [number, number]) {
+	const plan = planMoves(sensors, result, toLonLat);
 	return {
-		assignment: assigned,
-		total_planar_m: assignment.total,
-		total_geodesic_m: geodesicTotal,
-		fixed: assignment.fixed,
-		route: {
-			order: order.map((k) => jobs[k].id),
-			planar_m: planarPath,
-			geodesic_m: geodesicPath
-		}
+		assignment: plan.assignment.map((m) => ({ id: m.id, target: m.target, from: m.from, to: m.to, planar_m: m.planarM, geodesic_m: m.geodesicM })),
+		total_planar_m: plan.totalPlanarM,
+		total_geodesic_m: plan.totalGeodesicM,
+		fixed: plan.fixed,
+		route: { order: plan.route.order, planar_m: plan.route.planarM, geodesic_m: plan.route.geodesicM }
 	};
 }

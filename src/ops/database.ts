@@ -19,13 +19,13 @@ export async function migrateLatest(url: string): Promise<string[]> {
  * demoUsersWanted). `storageEnv` names the app's object store (STORAGE_BACKEND, STORAGE_DIR, S3_*):
  * the demo rasters go there.
  */
-export async function seedDemo(url: string, origin: string, storageEnv: Record<string, string | undefined>): Promise<{ users: boolean }> {
+export async function seedDemo(url: string, origin: string, storageEnv: Record<string, string | undefined> = process.env): Promise<{ users: boolean }> {
 	const db = createDb(url, 2);
 	try {
 		const [{ seed, demoUsersWanted }, { createObjectStore }] = await Promise.all([import('../../seeds/demo'), import('../lib/server/storage/create-object-store')]);
 		const { users, warning } = demoUsersWanted(origin, process.env);
 		if (warning) console.warn(users ? `\n${'!'.repeat(78)}\n${warning}\n${'!'.repeat(78)}\n` : warning);
-		await seed(db, { users, store: createObjectStore(storageEnv) });
+		await seed(db, { users, store: createObjectStore(storageEnv), origin });
 		return { users };
 	} finally {
 		await db.destroy();

@@ -13,6 +13,7 @@ import { migrateLatest, seedDemo } from './database';
 import { startFakeSmtp } from './fake-smtp';
 import { createAppDatabase, startMariaDb, type MariaDbServer } from './mariadb';
 import { log, portInUse } from './system';
+import { startWorkerProcess, type WorkerProcess } from './worker-process';
 
 const root = path.resolve(import.meta.dirname, '../..');
 const dataDir = path.join(root, 'data');
@@ -36,6 +37,7 @@ const origin = process.env.ORIGIN ?? `http://${host === '0.0.0.0' ? '127.0.0.1' 
 let mariadb: MariaDbServer | null = null;
 let smtp: { close(): Promise<void> } | null = null;
 let app: ReturnType<typeof spawn> | null = null;
+let worker: WorkerProcess | null = null;
 let stopping = false;
 
 let stopped: Promise<never> | null = null;
@@ -53,6 +55,7 @@ function stopAll(code: number): Promise<never> {
 			await exited;
 			clearTimeout(t);
 		}
+		await worker?.stop().catch(() => {});
 		await smtp?.close().catch(() => {});
 		await mariadb?.stop().catch(() => {});
 		log('stopped');
@@ -93,10 +96,7 @@ try {
 
 	buildIfChanged();
 
-	app = spawn(process.execPath, [path.join(root, 'src', 'ops', 'serve.mjs')], {
-		cwd: root,
-		stdio: 'inherit',
-		env: {
+	const appEnv: NodeJS.ProcessEnv = {
 			...process.env,
 			// A local start: not "production", so that the development inbox may be shown (on a loopback ORIGIN only).
 			NODE_ENV: process.env.NODE_ENV ?? 'development',
@@ -113,8 +113,18 @@ try {
 			STORAGE_DIR: storageDir,
 			// The server's outer bound; each route has its own, smaller one (src/lib/server/http/body-limit.ts).
 			BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? String(600 * 1024 * 1024)
-		}
-	});
+	};
+	app = spawn(process.execPath, [path.join(root, 'src', 'ops', 'serve.mjs')], { cwd: root, stdio: 'inherit', env: appEnv });
+	// One job worker beside the app (layer processing, placements, …); `npm run worker` adds more anywhere.
+	if (process.env.JOBS_WORKER !== 'false') {
+		worker = startWorkerProcess({ ...appEnv, NODE_ENV: 'production' });
+		worker.child.on('exit', (code) => {
+			if (!stopping) {
+				console.error(`the job worker stopped (exit ${code})`);
+				void stopAll(code ?? 1);
+			}
+		});
+	}
 	app.on('exit', (code) => {
 		if (!stopping) {
 			console.error(`the app stopped (exit ${code})`);

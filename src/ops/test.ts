@@ -16,6 +16,7 @@ import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { buildIfChanged } from './build';
+import { startWorkerProcess } from './worker-process';
 import { migrateLatest, seedDemo } from './database';
 import { startFakeSmtp } from './fake-smtp';
 import { createAppDatabase, startMariaDb, type MariaDbServer } from './mariadb';
@@ -147,6 +148,8 @@ try {
 					app.kill('SIGTERM');
 				})
 		);
+		const worker = startWorkerProcess({ ...env, JOBS_POLL_MS: '200' }, ['ignore', 'ignore', 'inherit']);
+		cleanups.push(() => worker.stop(10_000));
 		await waitFor('the app to listen', () => portInUse(appPort), 30_000);
 		log(`end-to-end tests (Playwright, /usr/bin/chromium) against ${origin}`);
 		const report = path.join(tmp, 'playwright.json');

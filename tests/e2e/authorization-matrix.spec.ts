@@ -87,6 +87,10 @@ const checks: Check[] = [
 	{ name: 'API versions of missing recipe', method: 'GET', path: '/api/v1/networks/1/recipes/999999/versions', expect: api(401, 404, 404, 404, 403) },
 	{ name: 'API add version (no definition)', method: 'POST', path: '/api/v1/networks/1/recipes/999999/versions', json: {}, expect: api(401, 403, 400, 403, 403) },
 	// (layers and importance rows end)
+	{ name: 'API get missing job', method: 'GET', path: '/api/v1/networks/1/jobs/999999', expect: api(401, 404, 404, 404, 403) },
+	{ name: 'API cancel missing job', method: 'DELETE', path: '/api/v1/networks/1/jobs/999999', expect: api(401, 404, 404, 404, 403) },
+	{ name: 'API get job of a missing network', method: 'GET', path: '/api/v1/networks/999999/jobs/1', expect: api(401, 404, 404, 404, 404) },
+	// (jobs rows end)
 
 	// Sensors, study area and zones (sensor.view / sensor.edit; layer.view / area.edit / zone.edit)
 	{ name: 'sensors page', method: 'GET', path: '/networks/1/sensors', expect: signedIn(200) },
@@ -124,6 +128,35 @@ const checks: Check[] = [
 	{ name: 'API use zone set', method: 'POST', path: '/api/v1/networks/1/zone-sets/999999', json: { inUse: 'x' }, expect: api(401, 403, 400, 403, 403) },
 	{ name: 'API get area', method: 'GET', path: '/api/v1/networks/1/area', expect: api(401, 200, 200, 200, 200) },
 	{ name: 'API set area', method: 'POST', path: '/api/v1/networks/1/area', json: { version: 'x' }, expect: api(401, 400, 400, 403, 403) },
+	// (sensors rows end)
+
+	// Proposals, revisions, review, plan (proposal.view: admin, analyst, reviewer; proposal.edit: analyst;
+	// revision.review: admin, reviewer; plan.view: everyone). Actions on a missing proposal: an allowed
+	// caller's invalid form is refused, then the page it would render does not exist (404).
+	{ name: 'proposals page', method: 'GET', path: '/networks/1/proposals', expect: page(303, 200, 200, 200, 403) },
+	{ name: 'missing proposal page', method: 'GET', path: '/networks/1/proposals/999999', expect: page(303, 404, 404, 404, 403) },
+	{ name: 'missing revision page', method: 'GET', path: '/networks/1/proposals/999999/revisions/999999', expect: page(303, 404, 404, 404, 403) },
+	{ name: 'compare page of a missing proposal', method: 'GET', path: '/networks/1/proposals/999999/compare?r=1', expect: page(303, 404, 404, 404, 403) },
+	{ name: 'history page', method: 'GET', path: '/networks/1/history', expect: signedIn(200) },
+	{ name: 'create proposal action', method: 'POST', path: '/networks/1/proposals?/create', form: { title: '' }, expect: page(303, 403, 400, 403, 403) },
+	{ name: 'run action (no strategy)', method: 'POST', path: '/networks/1/proposals/999999?/run', form: { maxIterations: 'x' }, expect: page(303, 403, 404, 403, 403) },
+	{ name: 'run all action (bad iterations)', method: 'POST', path: '/networks/1/proposals/999999?/runAll', form: { maxIterations: '-1' }, expect: page(303, 403, 404, 403, 403) },
+	{ name: 'cancel run action', method: 'POST', path: '/networks/1/proposals/999999?/cancel', form: { runId: 'x' }, expect: page(303, 403, 404, 403, 403) },
+	{ name: 'submit revision action (note too long)', method: 'POST', path: '/networks/1/proposals/999999/revisions/999999?/submit', form: { note: 'x'.repeat(5001) }, expect: page(303, 403, 404, 403, 403) },
+	{ name: 'review action (no decision)', method: 'POST', path: '/networks/1/proposals/999999/revisions/999999?/review', form: { decision: 'x' }, expect: page(303, 404, 403, 404, 403) },
+	{ name: 'choice note action (no note)', method: 'POST', path: '/networks/1/proposals/999999/compare?/note', form: {}, expect: page(303, 403, 404, 403, 403) },
+	{ name: 'API list proposals', method: 'GET', path: '/api/v1/networks/1/proposals', expect: api(401, 200, 200, 200, 403) },
+	{ name: 'API create proposal (no title)', method: 'POST', path: '/api/v1/networks/1/proposals', json: { title: '' }, expect: api(401, 403, 400, 403, 403) },
+	{ name: 'API get missing proposal', method: 'GET', path: '/api/v1/networks/1/proposals/999999', expect: api(401, 404, 404, 404, 403) },
+	{ name: 'API runs of a missing proposal', method: 'GET', path: '/api/v1/networks/1/proposals/999999/runs', expect: api(401, 404, 404, 404, 403) },
+	{ name: 'API queue run (no strategy)', method: 'POST', path: '/api/v1/networks/1/proposals/999999/runs', json: {}, expect: api(401, 403, 400, 403, 403) },
+	{ name: 'API get missing run', method: 'GET', path: '/api/v1/networks/1/runs/999999', expect: api(401, 404, 404, 404, 403) },
+	{ name: 'API cancel missing run', method: 'DELETE', path: '/api/v1/networks/1/runs/999999', expect: api(401, 403, 404, 403, 403) },
+	{ name: 'API get missing revision', method: 'GET', path: '/api/v1/networks/1/revisions/999999', expect: api(401, 404, 404, 404, 403) },
+	{ name: 'API submit revision (note too long)', method: 'POST', path: '/api/v1/networks/1/revisions/999999/submit', json: { note: 'x'.repeat(5001) }, expect: api(401, 403, 400, 403, 403) },
+	{ name: 'API review revision (no decision)', method: 'POST', path: '/api/v1/networks/1/revisions/999999/reviews', json: { decision: 'x' }, expect: api(401, 400, 403, 400, 403) },
+	{ name: 'API plan of a missing network', method: 'GET', path: '/api/v1/networks/999999/plan', expect: api(401, 404, 404, 404, 404) },
+	// (proposals rows end)
 
 	// Last: it ends every session of each role (the contexts above are done with by then).
 	{ name: 'sign out everywhere action', method: 'POST', path: '/profile?/signOutEverywhere', form: {}, expect: signedIn(303) }

@@ -7,7 +7,7 @@ import { randomBytes } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test } from '@playwright/test';
-import { contextFor, demoUser, signInPage, gotoHydrated } from './support';
+import { contextFor, demoUser, signInPage, uploadLayerViaApi, gotoHydrated } from './support';
 
 const demo = (f: string) => path.resolve(import.meta.dirname, '../../data/demo', f);
 const tag = randomBytes(3).toString('hex');
@@ -27,11 +27,7 @@ test.describe('importance tab', () => {
 			['soil-moisture.tif', soilName, 'soil_moisture'],
 			['vegetation-index.tif', vegName, 'vegetation_index']
 		]) {
-			const res = await ctx.post(`/api/v1/networks/${networkId}/layers?${new URLSearchParams({ name, kind, fileName: file })}`, {
-				data: readFileSync(demo(file)),
-				headers: { 'content-type': 'application/octet-stream', accept: 'application/json' }
-			});
-			expect(res.status(), await res.text()).toBe(201);
+			await uploadLayerViaApi(ctx, networkId, { name, kind, fileName: file }, readFileSync(demo(file)));
 		}
 		await ctx.dispose();
 	});

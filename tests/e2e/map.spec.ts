@@ -10,7 +10,7 @@ import { expect, test } from '@playwright/test';
 import type { Knex } from 'knex';
 import { createDb } from '../../src/lib/server/db/knex';
 import { seedDemoInventory } from '../../seeds/demo-inventory';
-import { contextFor, demoUser, signInPage, gotoHydrated } from './support';
+import { contextFor, demoUser, saveRecipeViaApi, signInPage, uploadLayerViaApi, gotoHydrated } from './support';
 
 const demo = (f: string) => path.resolve(import.meta.dirname, '../../data/demo', f);
 
@@ -75,15 +75,8 @@ test('the Map tab draws the importance map, sensors, legend, toggles and cursor 
 
 	// The importance surface through the layers API, as an analyst makes it.
 	const analyst = await contextFor('analyst');
-	const up = await analyst.post(`/api/v1/networks/${networkId}/layers?name=Soil%20moisture&kind=soil_moisture&units=m3%2Fm3&fileName=soil-moisture.tif`, {
-		data: readFileSync(demo('soil-moisture.tif')),
-		headers: { 'content-type': 'application/octet-stream', accept: 'application/json' }
-	});
-	expect(up.status()).toBe(201);
-	const layerId = (await up.json()).layer.id as number;
-	const recipe = await analyst.post(`/api/v1/networks/${networkId}/recipes`, { data: { name: 'Wetness', definition: { layers: [{ layerId: String(layerId), transform: 'minmax', weight: 1 }] } } });
-	expect(recipe.status()).toBe(201);
-	const versionId = (await recipe.json()).version.id as number;
+	const layerId = (await uploadLayerViaApi(analyst, networkId, { name: 'Soil moisture', kind: 'soil_moisture', units: 'm3/m3', fileName: 'soil-moisture.tif' }, readFileSync(demo('soil-moisture.tif')))).id;
+	const versionId = (await saveRecipeViaApi(analyst, networkId, { name: 'Wetness', definition: { layers: [{ layerId: String(layerId), transform: 'minmax', weight: 1 }] } })).id;
 	expect((await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId } })).ok()).toBe(true);
 
 	const db = createDb(url, 1);

@@ -85,3 +85,42 @@ export async function freshNetwork(admin: APIRequestContext, label: string): Pro
 	}
 	return network.id;
 }
+
+/**
+ * Uploads a GeoTIFF through the API (202 with the processing job), follows the job until it ends
+ * and returns the ready layer. The query holds name, kind and the other metadata.
+ */
+export async function uploadLayerViaApi(ctx: APIRequestContext, networkId: number, query: Record<string, string>, data: Buffer): Promise<{ id: number; name: string; status: string }> {
+	const up = await ctx.post(`/api/v1/networks/${networkId}/layers?${new URLSearchParams(query)}`, { data, headers: { 'content-type': 'application/octet-stream', accept: 'application/json' } });
+	expect(up.status(), await up.text()).toBe(202);
+	const { layer, job } = (await up.json()) as { layer: { id: number }; job: { id: number } };
+	await expect
+		.poll(async () => ((await (await ctx.get(`/api/v1/networks/${networkId}/jobs/${job.id}`, { headers: { accept: 'application/json' } })).json()) as { job: { state: string } }).job.state, { timeout: 60_000, intervals: [200, 500] })
+		.toBe('finished');
+	const res = await ctx.get(`/api/v1/networks/${networkId}/layers/${layer.id}`, { headers: { accept: 'application/json' } });
+	expect(res.status()).toBe(200);
+	const ready = (await res.json()).layer;
+	expect(ready.status).toBe('ready');
+	return ready;
+}
+
+/** Follows a job through the API until it ends; returns it (its state says how it ended). */
+export async function jobOutcome(ctx: APIRequestContext, networkId: number, jobId: number): Promise<{ state: string; result: unknown; error: string | null }> {
+	let job: { state: string; result: unknown; error: string | null } = { state: 'queued', result: null, error: null };
+	await expect
+		.poll(async () => {
+			job = ((await (await ctx.get(`/api/v1/networks/${networkId}/jobs/${jobId}`, { headers: { accept: 'application/json' } })).json()) as { job: typeof job }).job;
+			return ['finished', 'failed', 'cancelled'].includes(job.state);
+		}, { timeout: 60_000, intervals: [200, 500] })
+		.toBe(true);
+	return job;
+}
+
+/** Saves a recipe version through the API (202 with the job that computes its surface) and returns the version. */
+export async function saveRecipeViaApi(ctx: APIRequestContext, networkId: number, body: { name: string; definition: unknown }): Promise<{ id: number; version: number }> {
+	const res = await ctx.post(`/api/v1/networks/${networkId}/recipes`, { data: body, headers: { accept: 'application/json' } });
+	expect(res.status(), await res.text()).toBe(202);
+	const done = await jobOutcome(ctx, networkId, ((await res.json()) as { job: { id: number } }).job.id);
+	expect(done.state, done.error ?? '').toBe('finished');
+	return (done.result as { version: { id: number; version: number } }).version;
+}

@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test, type APIRequestContext } from '@playwright/test';
-import { contextFor, demoDir, freshNetwork, demoUser, signInPage, gotoHydrated, waitForHydration } from './support';
+import { contextFor, demoDir, freshNetwork, demoUser, saveRecipeViaApi, signInPage, uploadLayerViaApi, gotoHydrated, waitForHydration } from './support';
 
 
 
@@ -70,15 +70,9 @@ test('the analyst uploads the study area, exclusions and zones, lays a 3 km grid
 
 	// With an importance recipe (the demo soil moisture, inverted: drier = more important), the shares are measured.
 	const analyst: APIRequestContext = await contextFor('analyst');
-	const up = await analyst.post(`/api/v1/networks/${networkId}/layers?name=soil&kind=soil_moisture&fileName=soil-moisture.tif`, {
-		data: readFileSync(path.join(demoDir, 'soil-moisture.tif')),
-		headers: { accept: 'application/json', 'content-type': 'application/octet-stream' }
-	});
-	expect(up.status(), await up.text()).toBe(201);
-	const layer = (await up.json()).layer;
-	const rec = await analyst.post(`/api/v1/networks/${networkId}/recipes`, { data: { name: 'Dry', definition: { layers: [{ layerId: String(layer.id), transform: 'invert', weight: 1 }] } }, headers: { accept: 'application/json' } });
-	expect(rec.status(), await rec.text()).toBe(201);
-	const cur = await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId: (await rec.json()).version.id }, headers: { accept: 'application/json' } });
+	const layer = await uploadLayerViaApi(analyst, networkId, { name: 'soil', kind: 'soil_moisture', fileName: 'soil-moisture.tif' }, readFileSync(path.join(demoDir, 'soil-moisture.tif')));
+	const rec = await saveRecipeViaApi(analyst, networkId, { name: 'Dry', definition: { layers: [{ layerId: String(layer.id), transform: 'invert', weight: 1 }] } });
+	const cur = await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId: rec.id }, headers: { accept: 'application/json' } });
 	expect(cur.status(), await cur.text()).toBe(200);
 	await page.reload();
 	await waitForHydration(page);

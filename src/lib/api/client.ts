@@ -139,6 +139,42 @@ export interface MapContour {
 
 // (map types end)
 
+// ---- Background jobs (types) ------------------------------------------------------------
+export type JobState = 'queued' | 'running' | 'finished' | 'failed' | 'cancelled';
+
+/** A job of the durable queue, as GET /api/v1/networks/:id/jobs/:jobId returns it. */
+export interface Job {
+	id: number;
+	kind: string;
+	networkId: number | null;
+	state: JobState;
+	/** What the job last reported: e.g. {iteration, maxIterations, cost, coverage} for a placement. */
+	progress: Record<string, unknown> | null;
+	/** Set once the job finished. */
+	result: unknown;
+	/** Why it failed or was cancelled (or the last error before a retry). */
+	error: string | null;
+	attempts: number;
+	maxAttempts: number;
+	cancelRequested: boolean;
+	createdAt: string;
+	startedAt: string | null;
+	finishedAt: string | null;
+}
+
+/** A fraction 0..1 of the work done, when the progress says so. */
+export function jobFraction(job: Pick<Job, 'state' | 'progress'>): number | null {
+	if (job.state === 'finished') return 1;
+	const p = job.progress;
+	if (!p) return null;
+	if (typeof p.iteration === 'number' && typeof p.maxIterations === 'number' && p.maxIterations > 0) return Math.min(1, p.iteration / p.maxIterations);
+	if (typeof p.fraction === 'number') return Math.max(0, Math.min(1, p.fraction));
+	return null;
+}
+
+export const JOB_ENDED: readonly JobState[] = ['finished', 'failed', 'cancelled'];
+// (jobs types end)
+
 // ---- Layers and importance recipes (types) ----------------------------------------------
 export const LAYER_KINDS = ['soil_moisture', 'vegetation_index', 'elevation', 'other'] as const;
 export type LayerKind = (typeof LAYER_KINDS)[number];
@@ -358,7 +394,30 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		}
 		return data as T;
 	}
+	const getJob = (networkId: number, jobId: number) => call<{ job: Job }>('GET', `/networks/${networkId}/jobs/${jobId}`).then((r) => r.job);
+	/** Polls a job until it finished, failed or was cancelled; `onProgress` sees every poll. */
+	async function waitForJob(networkId: number, jobId: number, opts: { intervalMs?: number; timeoutMs?: number; onProgress?: (job: Job) => void } = {}): Promise<Job> {
+		const end = Date.now() + (opts.timeoutMs ?? 10 * 60_000);
+		for (;;) {
+			const job = await getJob(networkId, jobId);
+			opts.onProgress?.(job);
+			if (JOB_ENDED.includes(job.state)) return job;
+			if (Date.now() > end) throw new ApiClientError(504, 'timeout', `Job ${jobId} did not end in time.`);
+			await new Promise((r) => setTimeout(r, opts.intervalMs ?? 500));
+		}
+	}
+	async function savedVersion(networkId: number, queued: Promise<{ job: Job }>): Promise<RecipeVersion> {
+		const { job } = await queued;
+		const done = await waitForJob(networkId, job.id, { intervalMs: 250 });
+		if (done.state !== 'finished') throw new ApiClientError(422, done.state === 'cancelled' ? 'cancelled' : 'recipe_failed', done.error ?? 'The version could not be saved.', { layers: done.error ?? '' });
+		return (done.result as { version: RecipeVersion }).version;
+	}
 	return {
+		// Jobs
+		getJob,
+		waitForJob,
+		cancelJob: (networkId: number, jobId: number) => call<{ job: Job }>('DELETE', `/networks/${networkId}/jobs/${jobId}`).then((r) => r.job),
+		// (jobs calls end)
 		listNetworks: (query: { page?: number; perPage?: 10 | 25 | 50 | 100 } = {}) =>
 			call<NetworkList>('GET', `/networks?${new URLSearchParams(Object.entries(query).map(([k, v]) => [k, String(v)]))}`),
 		getNetwork: (id: number) => call<{ network: Network }>('GET', `/networks/${id}`).then((r) => r.network),
@@ -372,7 +431,11 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		listLayers: (networkId: number) => call<{ layers: Layer[] }>('GET', `/networks/${networkId}/layers`).then((r) => r.layers),
 		getLayer: (networkId: number, layerId: number) => call<{ layer: Layer }>('GET', `/networks/${networkId}/layers/${layerId}`).then((r) => r.layer),
 		deleteLayer: (networkId: number, layerId: number) => call<null>('DELETE', `/networks/${networkId}/layers/${layerId}`),
-		/** Whole-body upload through fetch (scripts, tests); the page uses XMLHttpRequest for progress. */
+		/**
+		 * Whole-body upload through fetch (scripts, tests), then follows the processing job: resolves
+		 * with the ready layer, or throws 422 with the reason the raster was refused. The page uses
+		 * XMLHttpRequest for upload progress and follows the job itself.
+		 */
 		uploadLayer: async (networkId: number, meta: LayerUploadMeta, file: Blob | Uint8Array) => {
 			const res = await fetchFn(`${base}/networks/${networkId}/layers?${layerUploadQuery(meta)}`, { method: 'POST', headers: { accept: 'application/json', 'content-type': 'application/octet-stream' }, body: file as BodyInit });
 			const data = await res.json().catch(() => null);
@@ -380,17 +443,26 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 				const e = (data as ApiErrorBody | null)?.error;
 				throw new ApiClientError(res.status, e?.code ?? 'http_error', e?.message ?? res.statusText, e?.fields);
 			}
-			return (data as { layer: Layer }).layer;
+			const { layer, job } = data as { layer: Layer; job: Job };
+			const done = await waitForJob(networkId, job.id);
+			if (done.state !== 'finished') throw new ApiClientError(422, done.state === 'cancelled' ? 'cancelled' : 'rejected', done.error ?? 'The layer could not be processed.', { file: done.error ?? '' });
+			return call<{ layer: Layer }>('GET', `/networks/${networkId}/layers/${layer.id}`).then((r) => r.layer);
 		},
 		listRecipes: (networkId: number) => call<{ recipes: Recipe[]; currentVersionId: number | null }>('GET', `/networks/${networkId}/recipes`),
 		getRecipe: (networkId: number, recipeId: number) => call<{ recipe: Recipe }>('GET', `/networks/${networkId}/recipes/${recipeId}`).then((r) => r.recipe),
 		listRecipeVersions: (networkId: number, recipeId: number) => call<{ versions: RecipeVersion[] }>('GET', `/networks/${networkId}/recipes/${recipeId}/versions`).then((r) => r.versions),
-		createRecipe: (networkId: number, input: { name: string; definition: RecipeDefinition; note?: string }) =>
-			call<{ version: RecipeVersion }>('POST', `/networks/${networkId}/recipes`, input).then((r) => r.version),
+		/** Both queue a job that saves the version with its importance surface (202 {job}); followed here until the version exists. */
+		createRecipe: (networkId: number, input: { name: string; definition: RecipeDefinition; note?: string }) => savedVersion(networkId, call<{ job: Job }>('POST', `/networks/${networkId}/recipes`, input)),
 		addRecipeVersion: (networkId: number, recipeId: number, input: { definition: RecipeDefinition; note?: string }) =>
-			call<{ version: RecipeVersion }>('POST', `/networks/${networkId}/recipes/${recipeId}/versions`, input).then((r) => r.version),
+			savedVersion(networkId, call<{ job: Job }>('POST', `/networks/${networkId}/recipes/${recipeId}/versions`, input)),
 		deleteRecipe: (networkId: number, recipeId: number) => call<null>('DELETE', `/networks/${networkId}/recipes/${recipeId}`),
-		previewRecipe: (networkId: number, definition: RecipeDefinition) => call<{ preview: RecipePreview }>('POST', `/networks/${networkId}/recipes/preview`, { definition }).then((r) => r.preview),
+		/** Queues the preview job (202 {job}), follows it and resolves with the preview; 422 with the reason if it failed. */
+		previewRecipe: async (networkId: number, definition: RecipeDefinition, opts: { onProgress?: (job: Job) => void } = {}) => {
+			const { job } = await call<{ job: Job }>('POST', `/networks/${networkId}/recipes/preview`, { definition });
+			const done = await waitForJob(networkId, job.id, { intervalMs: 250, onProgress: opts.onProgress });
+			if (done.state !== 'finished') throw new ApiClientError(422, done.state === 'cancelled' ? 'cancelled' : 'preview_failed', done.error ?? 'The preview could not be computed.');
+			return (done.result as { preview: RecipePreview }).preview;
+		},
 		useRecipeVersion: (networkId: number, versionId: number) => call<{ versionId: number }>('POST', `/networks/${networkId}/recipes/current`, { versionId }),
 		// ---- (layers and recipes end) ----
 		// ---- Sensors, study area and zones ----
@@ -412,7 +484,14 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		setArea: (networkId: number, input: { version: number; studyArea?: unknown; exclusions?: unknown[] }) => call<{ area: NetworkArea }>('POST', `/networks/${networkId}/area`, input).then((r) => r.area),
 		listZoneSets: (networkId: number, opts: { geometry?: boolean } = {}) => call<{ zoneSets: ZoneSet[] }>('GET', `/networks/${networkId}/zone-sets${opts.geometry ? '?geometry=1' : ''}`).then((r) => r.zoneSets),
 		getZoneSet: (networkId: number, zoneSetId: number) => call<{ zoneSet: ZoneSet }>('GET', `/networks/${networkId}/zone-sets/${zoneSetId}`).then((r) => r.zoneSet),
-		createZoneSet: (networkId: number, input: ZoneSetInput) => call<{ zoneSet: ZoneSet }>('POST', `/networks/${networkId}/zone-sets`, input).then((r) => r.zoneSet),
+		/** Computed zones come from a job (202 {job}): followed here until the zone set exists. */
+		createZoneSet: async (networkId: number, input: ZoneSetInput) => {
+			const r = await call<{ zoneSet?: ZoneSet; job?: Job }>('POST', `/networks/${networkId}/zone-sets`, input);
+			if (r.zoneSet) return r.zoneSet;
+			const done = await waitForJob(networkId, r.job!.id);
+			if (done.state !== 'finished') throw new ApiClientError(422, 'zones_failed', done.error ?? 'The zones could not be computed.', { k: done.error ?? '' });
+			return call<{ zoneSet: ZoneSet }>('GET', `/networks/${networkId}/zone-sets/${(done.result as { zoneSetId: number }).zoneSetId}`).then((x) => x.zoneSet);
+		},
 		useZoneSet: (networkId: number, zoneSetId: number, inUse = true) => call<{ zoneSet: ZoneSet }>('POST', `/networks/${networkId}/zone-sets/${zoneSetId}`, { inUse }).then((r) => r.zoneSet),
 		deleteZoneSet: (networkId: number, zoneSetId: number) => call<null>('DELETE', `/networks/${networkId}/zone-sets/${zoneSetId}`),
 		// ---- (sensors and zones end) ----

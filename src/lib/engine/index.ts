@@ -2,3 +2,4 @@ export { place } from './place';
 export { zoneGrid, computeZones } from './zones';
 export { EngineInputError } from './errors';
 export * from './types';
+export { addedSites } from './added-sites';

@@ -17,6 +17,10 @@ export const PERMISSIONS = {
 	'zone.edit': ['analyst'],
 	'sensor.view': everyone,
 	'sensor.edit': ['admin', 'analyst'],
+	'proposal.view': ['admin', 'analyst', 'reviewer'],
+	'proposal.edit': ['analyst'],
+	'revision.review': ['admin', 'reviewer'],
+	'plan.view': everyone,
 	'users.manage': ['admin'],
 	'audit.view': ['admin']
 } as const satisfies Record<string, readonly Role[]>;

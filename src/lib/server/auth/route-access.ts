@@ -41,6 +41,10 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/networks/[id=id]/recipes/[recipeId=id]/versions': 'signed-in',
 	// (layers routes end)
 
+	// Background jobs
+	'/api/v1/networks/[id=id]/jobs/[jobId=id]': 'signed-in',
+	// (jobs routes end)
+
 	// Sensors, study area and zones
 	'/(app)/networks/[id=id]/sensors': 'signed-in',
 	'/(app)/networks/[id=id]/zones': 'signed-in',
@@ -50,6 +54,22 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/networks/[id=id]/sensors/[sensorId=id]': 'signed-in',
 	'/api/v1/networks/[id=id]/zone-sets': 'signed-in',
 	'/api/v1/networks/[id=id]/zone-sets/[zoneSetId=id]': 'signed-in',
-	'/api/v1/networks/[id=id]/area': 'signed-in'
+	'/api/v1/networks/[id=id]/area': 'signed-in',
 	// (sensors routes end)
+
+	// Proposals, revisions, review and the plan
+	'/(app)/networks/[id=id]/proposals': 'signed-in',
+	'/(app)/networks/[id=id]/proposals/[proposalId=id]': 'signed-in',
+	'/(app)/networks/[id=id]/proposals/[proposalId=id]/revisions/[revisionId=id]': 'signed-in',
+	'/(app)/networks/[id=id]/proposals/[proposalId=id]/compare': 'signed-in',
+	'/(app)/networks/[id=id]/history': 'signed-in',
+	'/api/v1/networks/[id=id]/proposals': 'signed-in',
+	'/api/v1/networks/[id=id]/proposals/[proposalId=id]': 'signed-in',
+	'/api/v1/networks/[id=id]/proposals/[proposalId=id]/runs': 'signed-in',
+	'/api/v1/networks/[id=id]/runs/[runId=id]': 'signed-in',
+	'/api/v1/networks/[id=id]/revisions/[revisionId=id]': 'signed-in',
+	'/api/v1/networks/[id=id]/revisions/[revisionId=id]/submit': 'signed-in',
+	'/api/v1/networks/[id=id]/revisions/[revisionId=id]/reviews': 'signed-in',
+	'/api/v1/networks/[id=id]/plan': 'signed-in'
+	// (proposals routes end)
 };

@@ -1,31 +1,18 @@
 /**
  * Delivers queued outbox messages. Writers enqueue inside their transaction and then call
- * `kickOutbox()`; a timer retries what failed. Delivery happens after commit, never inside it.
+ * `kickOutbox()`; a timer retries what failed, with exponential backoff (see ./deliver). Delivery
+ * happens after commit, never inside it. While SMTP is down nothing is lost: a message stays
+ * pending with the time of its next attempt.
  */
 import { getDb } from '../db';
-import { claimPending, markFailed, markSent } from '../repositories/outbox';
+import { deliverOutbox } from './deliver';
 import { getTransport, mailFrom } from './transport';
 
-const MAX_ATTEMPTS = 5;
 let running: Promise<number> | null = null;
 let timer: NodeJS.Timeout | null = null;
 
 export async function deliverPending(limit = 20): Promise<number> {
-	const db = getDb();
-	let sent = 0;
-	await db.transaction(async (trx) => {
-		const rows = await claimPending(trx, limit);
-		for (const row of rows) {
-			try {
-				await getTransport().sendMail({ from: mailFrom(), to: row.to_address, subject: row.subject, text: row.text_body ?? '', html: row.html_body ?? undefined });
-				await markSent(trx, row.id);
-				sent++;
-			} catch (err) {
-				await markFailed(trx, row.id, err instanceof Error ? err.message : String(err), row.attempts + 1 >= MAX_ATTEMPTS);
-			}
-		}
-	});
-	return sent;
+	return deliverOutbox(getDb(), (row) => getTransport().sendMail({ from: mailFrom(), to: row.to_address, subject: row.subject, text: row.text_body ?? '', html: row.html_body ?? undefined }), limit);
 }
 
 /** Starts a delivery pass now (coalesced with one already running). */

@@ -33,3 +33,33 @@ export function signInLinkMail(to: string, url: string): OutgoingMail {
 	const lines = [`Open the link below to sign in to Cairnfield. It works once and expires in ${SIGN_IN_LINK_MINUTES} minutes.`, 'If you did not ask for it, ignore this message.'];
 	return { to, subject: 'Your Cairnfield sign-in link', text: `${lines.join('\n\n')}\n\n${url}\n`, html: html(lines, { url, label: 'Sign in to Cairnfield' }) };
 }
+
+export interface RevisionMailContext {
+	networkName: string;
+	proposalTitle: string;
+	revisionNumber: number;
+	strategy: string;
+	/** Absolute link built from the configured origin. */
+	url: string;
+}
+
+const revisionLabel = (c: RevisionMailContext) => `revision ${c.revisionNumber} (${c.strategy}) of "${c.proposalTitle}"`;
+
+export function revisionSubmittedMail(to: string, c: RevisionMailContext, submitter: string, note: string): OutgoingMail {
+	const lines = [
+		`${submitter} submitted ${revisionLabel(c)} in ${c.networkName} for review.`,
+		...(note ? [`Why this one: ${note}`] : []),
+		'Open the revision to compare it and approve or reject it. You cannot review a revision you wrote yourself.'
+	];
+	return { to, subject: `Review wanted: ${c.proposalTitle}, revision ${c.revisionNumber}`, text: `${lines.join('\n\n')}\n\n${c.url}\n`, html: html(lines, { url: c.url, label: 'Open the revision' }) };
+}
+
+export function revisionDecidedMail(to: string, c: RevisionMailContext, reviewer: string, decision: 'approve' | 'reject', comment: string): OutgoingMail {
+	const verb = decision === 'approve' ? 'approved' : 'rejected';
+	const lines = [
+		`${reviewer} ${verb} ${revisionLabel(c)} in ${c.networkName}.`,
+		...(comment ? [`Comment: ${comment}`] : []),
+		decision === 'approve' ? 'It is now the network’s plan; the earlier plan is kept as superseded.' : 'Run again or submit another revision when you are ready.'
+	];
+	return { to, subject: `Revision ${c.revisionNumber} of ${c.proposalTitle} ${verb}`, text: `${lines.join('\n\n')}\n\n${c.url}\n`, html: html(lines, { url: c.url, label: 'Open the revision' }) };
+}

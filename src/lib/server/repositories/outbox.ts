@@ -28,6 +28,7 @@ export async function claimPending(db: Db, limit: number): Promise<OutboxRow[]> 
 	return db('outbox_messages')
 		.select('id', 'to_address', 'subject', 'text_body', 'html_body', 'attempts')
 		.where('status', 'pending')
+		.andWhere((q) => q.whereNull('next_attempt_at').orWhere('next_attempt_at', '<=', db.raw('CURRENT_TIMESTAMP(3)')))
 		.orderBy('id')
 		.limit(limit)
 		.forUpdate()
@@ -44,8 +45,14 @@ export async function purgeFailedMail(db: Db, olderThanDays: number): Promise<nu
 	return db('outbox_messages').where({ status: 'failed' }).andWhere('created_at', '<', new Date(Date.now() - olderThanDays * 24 * 3600_000)).delete();
 }
 
-export async function markFailed(db: Db, id: number, error: string, giveUp: boolean): Promise<void> {
+/** Records a failed attempt; the message waits `retryInMs` before the next one (or gives up). */
+export async function markFailed(db: Db, id: number, error: string, giveUp: boolean, retryInMs = 0): Promise<void> {
 	await db('outbox_messages')
 		.where({ id })
-		.update({ status: giveUp ? 'failed' : 'pending', last_error: error.slice(0, 2000), attempts: db.raw('attempts + 1') });
+		.update({
+			status: giveUp ? 'failed' : 'pending',
+			last_error: error.slice(0, 2000),
+			attempts: db.raw('attempts + 1'),
+			next_attempt_at: db.raw('CURRENT_TIMESTAMP(3) + INTERVAL ? MICROSECOND', [Math.max(0, Math.round(retryInMs)) * 1000])
+		});
 }

@@ -68,6 +68,11 @@ export interface NetworkImportance {
 	max: number;
 }
 
+/** The layer ids a recipe definition cites (recipe steps carry them as strings). */
+export function recipeLayerIds(recipe: Recipe): number[] {
+	return [...new Set(recipe.layers.map((l) => Number(l.layerId)))];
+}
+
 async function readyLayer(db: Knex, networkId: number, layerId: string): Promise<LayerRow> {
 	const id = Number(layerId);
 	const layer = Number.isInteger(id) && id > 0 ? await findLayer(db, networkId, id) : undefined;
@@ -164,6 +169,16 @@ export interface RecipePreview {
 	max: number;
 	mean: number;
 	legend: LegendStop[];
+}
+
+/**
+ * The cheap checks of a recipe, for a request that queues its computation: the definition parses
+ * and every layer it names exists in the network and is ready. Throws ServiceError 400/422.
+ */
+export async function checkRecipe(db: Knex, networkId: number, definition: unknown): Promise<Recipe> {
+	const recipe = parseOrFail(definition);
+	for (const id of new Set(recipe.layers.map((l) => l.layerId))) await readyLayer(db, networkId, id);
+	return recipe;
 }
 
 /** The importance map of a recipe, not saved: a PNG (moorland ramp over 0..1) and its figures. */
@@ -355,6 +370,11 @@ export async function deleteRecipe(db: Knex, store: ObjectStore, networkId: numb
 export async function networkImportance(db: Knex, store: ObjectStore, networkId: number): Promise<NetworkImportance | null> {
 	const versionId = await networkRecipeVersionId(db, networkId);
 	if (versionId === null) return null;
+	return recipeVersionImportance(db, store, networkId, versionId);
+}
+
+/** The importance surface of one recipe version of the network (cached like networkImportance), or null when there is no such version. */
+export async function recipeVersionImportance(db: Knex, store: ObjectStore, networkId: number, versionId: number): Promise<NetworkImportance | null> {
 	const version = await findVersion(db, networkId, versionId);
 	if (!version) return null;
 	let surface: ComputedSurface | null = null;

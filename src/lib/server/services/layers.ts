@@ -2,10 +2,11 @@
  * Layers as a use case: upload a GeoTIFF (streamed to the object store with a byte limit),
  * inspect it, store its preview, list, delete.
  *
- * An upload goes uploading → processing → ready within one request. Whatever refuses it (too
- * large, not a TIFF, no georeferencing, unknown CRS, all nodata, band missing, too many pixels,
- * corrupt compression) removes the stored objects and the row again: a refused upload leaves
- * nothing behind.
+ * An upload goes uploading → processing → ready. The request stores the file (storeLayerUpload)
+ * and queues a layer-processing job, which calls processLayer. Whatever refuses it (too large, not
+ * a TIFF, no georeferencing, unknown CRS, all nodata, band missing, too many pixels, corrupt
+ * compression) removes the stored objects and the row again: a refused upload leaves nothing
+ * behind.
  *
  * Limits (environment, read by layerLimits):
  *   LAYER_MAX_BYTES   largest upload in bytes; default 524288000 (500 MiB)
@@ -25,6 +26,10 @@ import { deleteLayerRow, findLayer, insertLayer, listLayers, updateLayer, type L
 import { versionsCitingLayer } from '../repositories/recipes';
 import { ServiceError } from './errors';
 import { LAYER_KINDS, LAYER_PLATFORMS, type Layer } from '../../api/client';
+import { enqueueJob, jobView, type JobView } from '../jobs/queue';
+
+/** The job kind that processes a stored upload (see ../jobs/kinds/layer-processing.ts). */
+const LAYER_PROCESSING = 'layer-processing';
 
 /** inspect.ts's default pixel limit (25 million), repeated so that this module loads without geotiff. */
 const DEFAULT_MAX_PIXELS = 25_000_000;
@@ -136,11 +141,44 @@ export interface UploadContext {
 	actorId: number;
 }
 
+/** What processing learns from a stored raster: its metadata and its preview PNG. */
+export interface LayerAnalysis {
+	metadata: import('../layers/inspect').LayerMetadata;
+	png: Uint8Array;
+}
+
 /**
- * Stream `body` into the store and turn it into a ready layer, or refuse it leaving nothing.
- * The body is never held whole in memory while it arrives; inspection then reads the stored file.
+ * The CPU part of processing a layer: decode the band, check it, describe it, render its preview.
+ * Throws LayerRejected for a raster we refuse. Pure (no I/O): the layer-processing job runs it in a
+ * worker thread.
  */
-export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadContext, meta: unknown, body: Readable | AsyncIterable<Uint8Array>, limits: LayerLimits): Promise<LayerView> {
+export async function analyseLayerBytes(bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }): Promise<LayerAnalysis> {
+	// The GeoTIFF reader is loaded on first use (see DEVELOPERS.md: geotiff and build-time analysis).
+	const { loadLayer } = await import('../layers/inspect');
+	const { metadata, band } = await loadLayer(bytes, { band: opts.band, name: opts.name, maxPixels: opts.maxPixels });
+	const preview = renderPreview(band);
+	return { metadata, png: preview.png };
+}
+
+/**
+ * analyseLayerBytes with the decoding in a worker thread of its own, bounded by `heapMb`
+ * (decodeLayer: a decompression bomb ends that worker, not this process). The default of
+ * processLayer; the layer-processing job passes its pool thread instead.
+ */
+export async function decodeAndAnalyse(bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }, heapMb?: number): Promise<LayerAnalysis> {
+	const { metadata, band } = await decodeLayer(bytes, opts, { heapMb });
+	return { metadata, png: renderPreview(band).png };
+}
+
+/** Runs analyseLayerBytes somewhere: a decoding thread by default, the job's pool thread in a worker. */
+export type LayerAnalyser = (bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }) => Promise<LayerAnalysis>;
+
+/**
+ * Stream `body` into the store and leave the layer `processing`, for processLayer to finish.
+ * Refuses bad metadata and oversized files, leaving nothing behind. The body is never held whole
+ * in memory while it arrives.
+ */
+export async function storeLayerUpload(db: Knex, store: ObjectStore, ctx: UploadContext, meta: unknown, body: Readable | AsyncIterable<Uint8Array>, limits: LayerLimits): Promise<LayerRow> {
 	const parsed = layerMetaInput.safeParse(meta);
 	if (!parsed.success) {
 		if (body instanceof Readable) body.resume(); // drain, so the client sees our answer
@@ -160,20 +198,36 @@ export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadConte
 		created_by: ctx.actorId,
 		storage_key: storageKey
 	});
-	let previewKey: string | null = null;
 	try {
 		const counter = { bytes: 0 };
 		const { size } = await store.put(storageKey, Readable.from(limited(body, limits.maxBytes, counter)), { contentType: 'image/tiff' });
 		await updateLayer(db, id, { status: 'processing', storage_key: storageKey, size_bytes: size });
+		return (await findLayer(db, ctx.networkId, id))!;
+	} catch (e) {
+		await store.delete(storageKey).catch(() => undefined);
+		await deleteLayerRow(db, id);
+		throw e;
+	}
+}
 
-		const bytes = await store.getBuffer(storageKey);
-		// Decoded in a worker thread with memory limits: a decompression bomb ends that worker, not the server.
-		const { metadata, band } = await decodeLayer(bytes, { band: m.band, name: m.fileName || m.name, maxPixels: limits.maxPixels }, { heapMb: limits.decodeHeapMb });
-		const preview = renderPreview(band);
+/**
+ * Turns a stored `processing` layer into a ready one: inspection, statistics, preview; the audit
+ * entry is written with it. A refused raster removes the row and the stored objects (a refused
+ * upload leaves nothing behind) and throws ServiceError 422 with the reason.
+ */
+export async function processLayer(db: Knex, store: ObjectStore, ctx: UploadContext, layerId: number, limits: LayerLimits, analyse: LayerAnalyser = (b, o) => decodeAndAnalyse(b, o, limits.decodeHeapMb)): Promise<LayerView> {
+	const row = await findLayer(db, ctx.networkId, layerId);
+	if (!row) throw new ServiceError(404, 'not_found', 'No such layer.');
+	if (row.status === 'ready') return layerView(row);
+	if (!row.storage_key) throw new ServiceError(409, 'not_stored', 'The layer has no stored file.');
+	let previewKey: string | null = null;
+	try {
+		const bytes = await store.getBuffer(row.storage_key);
+		const { metadata, png } = await analyse(bytes, { band: row.band, name: row.original_name || row.name, maxPixels: limits.maxPixels });
 		previewKey = newObjectKey('previews');
-		await store.put(previewKey, preview.png, { contentType: 'image/png' });
+		await store.put(previewKey, Buffer.from(png.buffer, png.byteOffset, png.byteLength), { contentType: 'image/png' });
 		const done = await db.transaction(async (trx) => {
-			await updateLayer(trx, id, {
+			await updateLayer(trx, layerId, {
 				status: 'ready',
 				preview_key: previewKey,
 				width: metadata.width,
@@ -192,16 +246,64 @@ export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadConte
 				valid_count: metadata.stats.validCount,
 				histogram: metadata.histogram
 			});
-			const row = (await findLayer(trx, ctx.networkId, id))!;
-			await recordAudit(trx, { organisationId: ctx.organisationId, actorUserId: ctx.actorId, action: 'layer.create', objectType: 'layer', objectId: id, after: { name: row.name, kind: row.kind, epsg: row.epsg, sizeBytes: row.size_bytes } });
-			return row;
+			const r = (await findLayer(trx, ctx.networkId, layerId))!;
+			await recordAudit(trx, { organisationId: ctx.organisationId, actorUserId: ctx.actorId, action: 'layer.create', objectType: 'layer', objectId: layerId, after: { name: r.name, kind: r.kind, epsg: r.epsg, sizeBytes: r.size_bytes } });
+			return r;
 		});
 		return layerView(done);
 	} catch (e) {
-		await store.delete(storageKey).catch(() => undefined);
 		if (previewKey) await store.delete(previewKey).catch(() => undefined);
-		await deleteLayerRow(db, id);
-		if (e instanceof LayerRejected) throw new ServiceError(422, e.code, e.message, 'file');
+		const rejected = rejection(e);
+		if (rejected) {
+			await discardLayer(db, store, ctx.networkId, layerId);
+			throw rejected;
+		}
+		throw e;
+	}
+}
+
+/** LayerRejected (also as it arrives from a worker thread: a plain error named LayerRejected) as a 422. */
+function rejection(e: unknown): ServiceError | null {
+	if (e instanceof LayerRejected) return new ServiceError(422, e.code, e.message, 'file');
+	const err = e as { name?: string; code?: string; message?: string } | null;
+	if (err?.name === 'LayerRejected') return new ServiceError(422, err.code ?? 'rejected', err.message ?? 'The raster was refused.', 'file');
+	return null;
+}
+
+/** Removes a layer that never became ready, with its stored objects. */
+export async function discardLayer(db: Knex, store: ObjectStore, networkId: number, layerId: number): Promise<void> {
+	const row = await findLayer(db, networkId, layerId);
+	if (!row || row.status === 'ready') return;
+	for (const k of [row.storage_key, row.preview_key]) if (k) await store.delete(k).catch(() => undefined);
+	await deleteLayerRow(db, layerId);
+}
+
+/**
+ * The app's upload: store the file, queue its processing as a job and answer at once with the
+ * `processing` layer and the job to follow. A refusal found while storing (bad metadata, too large)
+ * leaves nothing; one found by the job removes the layer again and fails the job with the reason.
+ */
+export async function acceptLayerUpload(db: Knex, store: ObjectStore, ctx: UploadContext, meta: unknown, body: Readable | AsyncIterable<Uint8Array>, limits: LayerLimits): Promise<{ layer: LayerView; job: JobView }> {
+	const row = await storeLayerUpload(db, store, ctx, meta, body, limits);
+	try {
+		const job = await enqueueJob(db, { kind: LAYER_PROCESSING, payload: { ...ctx, layerId: row.id }, networkId: ctx.networkId, createdBy: ctx.actorId, idempotencyKey: `layer-processing:${row.id}` });
+		return { layer: layerView(row), job: jobView(job) };
+	} catch (e) {
+		await discardLayer(db, store, ctx.networkId, row.id);
+		throw e;
+	}
+}
+
+/**
+ * Stream `body` into the store and turn it into a ready layer in this request, or refuse it
+ * leaving nothing. Scripts and tests use it; the app queues processLayer as a job instead.
+ */
+export async function uploadLayer(db: Knex, store: ObjectStore, ctx: UploadContext, meta: unknown, body: Readable | AsyncIterable<Uint8Array>, limits: LayerLimits, analyse?: LayerAnalyser): Promise<LayerView> {
+	const row = await storeLayerUpload(db, store, ctx, meta, body, limits);
+	try {
+		return await processLayer(db, store, ctx, row.id, limits, analyse);
+	} catch (e) {
+		await discardLayer(db, store, ctx.networkId, row.id);
 		throw e;
 	}
 }

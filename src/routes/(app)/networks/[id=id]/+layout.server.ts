@@ -15,7 +15,9 @@ export const load = (async (event) => {
 				{ href: '/layers', label: 'Layers', show: roleAllows(role, 'layer.view') },
 				{ href: '/importance', label: 'Importance', show: roleAllows(role, 'layer.view') },
 				{ href: '/sensors', label: 'Sensors', show: roleAllows(role, 'sensor.view') },
-				{ href: '/zones', label: 'Area & zones', show: roleAllows(role, 'layer.view') }
+				{ href: '/zones', label: 'Area & zones', show: roleAllows(role, 'layer.view') },
+				{ href: '/proposals', label: 'Proposals', show: roleAllows(role, 'proposal.view') },
+				{ href: '/history', label: 'History', show: roleAllows(role, 'plan.view') }
 			].filter((t) => t.show)
 		}
 	};

@@ -10,17 +10,16 @@ import { workingCrs } from '$lib/server/services/working-crs';
 import { networkRecipeVersionId } from '$lib/server/repositories/recipes';
 import {
 	computedInput,
-	createComputedZoneSet,
 	createGridZoneSet,
 	createUploadedZoneSet,
 	GRID_PRESETS_M,
 	gridInput,
 	importanceForZones,
-	measureZoneSet,
 	removeZoneSet,
 	useZoneSet,
 	zoneSetViews
 } from '$lib/server/services/zones';
+import { queueComputedZones, queueZoneShares } from '$lib/server/services/zone-jobs';
 import { ServiceError } from '$lib/server/services/errors';
 
 /** Largest polygon file accepted (the parser also caps features and positions). */
@@ -123,12 +122,11 @@ export const actions = {
 		const parsed = parseForm(computedInput, values, ['name', 'k']);
 		if (!parsed.ok) return fail(400, { ...parsed.failure.data, action: 'computedZones' });
 		try {
-			const db = getDb();
-			await createComputedZoneSet(db, network, actor.id, parsed.data.name, parsed.data.k, await importanceForZones(db, getObjectStore(), network));
+			const job = await queueComputedZones(getDb(), network, actor.id, parsed.data.name, parsed.data.k);
+			return { action: 'computedZones', job: { id: job.id, done: `${parsed.data.k} zones computed from the importance.` } };
 		} catch (err) {
 			return failure(err, 'computedZones');
 		}
-		return { action: 'computedZones', saved: `${parsed.data.k} zones computed from the importance.` };
 	},
 	use: async (event) => {
 		const { network, actor } = await networkAccess(event, 'zone.edit');
@@ -148,12 +146,11 @@ export const actions = {
 		const id = Number((await event.request.formData()).get('zoneSetId'));
 		if (!Number.isInteger(id) || id < 1) return fail(400, { action: 'sets', errors: { _: 'Choose a zone set.' } });
 		try {
-			const db = getDb();
-			await measureZoneSet(db, network, actor.id, id, await importanceForZones(db, getObjectStore(), network));
+			const job = await queueZoneShares(getDb(), network, actor.id, id);
+			return { action: 'sets', job: { id: job.id, done: 'Shares measured with the current importance.' } };
 		} catch (err) {
 			return failure(err, 'sets');
 		}
-		return { action: 'sets', saved: 'Shares measured with the current importance.' };
 	},
 	delete: async (event) => {
 		const { network, actor } = await networkAccess(event, 'zone.edit');

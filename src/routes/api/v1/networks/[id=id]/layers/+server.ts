@@ -7,7 +7,7 @@ import { getDb } from '$lib/server/db';
 import { apiHandler } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { getObjectStore } from '$lib/server/storage/app-store';
-import { layerLimits, listLayerViews, uploadLayer, UploadTooLarge } from '$lib/server/services/layers';
+import { acceptLayerUpload, layerLimits, listLayerViews, UploadTooLarge } from '$lib/server/services/layers';
 
 /** GET /api/v1/networks/:id/layers */
 export const GET: RequestHandler = apiHandler(async (event) => {
@@ -17,8 +17,10 @@ export const GET: RequestHandler = apiHandler(async (event) => {
 
 /**
  * POST /api/v1/networks/:id/layers?name=&kind=&units=&acquiredOn=&platform=&band=&fileName=
- * The raw request body is the GeoTIFF. 201 {layer} when it is ready; 413 over LAYER_MAX_BYTES;
- * 422 with the reason when the file cannot be a layer (nothing is kept then).
+ * The raw request body is the GeoTIFF. 202 {layer, job} once it is stored: the layer is
+ * `processing` and the job (GET /api/v1/networks/:id/jobs/:jobId) inspects it; a raster the job
+ * refuses is removed and the job fails with the reason. 413 over LAYER_MAX_BYTES; 400 for bad
+ * metadata (nothing is kept then).
  */
 export const POST: RequestHandler = apiHandler(async (event) => {
 	const { network, actor } = await networkAccess(event, 'layer.edit');
@@ -29,6 +31,6 @@ export const POST: RequestHandler = apiHandler(async (event) => {
 	const meta = Object.fromEntries(['name', 'kind', 'units', 'acquiredOn', 'platform', 'band', 'fileName'].filter((k) => q.has(k)).map((k) => [k, q.get(k)]));
 	const webBody = event.request.body;
 	const body = webBody ? Readable.fromWeb(webBody as unknown as NodeWebStream<Uint8Array>) : Readable.from([]);
-	const layer = await uploadLayer(getDb(), getObjectStore(), { networkId: network.id, organisationId: network.organisation_id, actorId: actor.id }, meta, body, limits);
-	return json({ layer }, { status: 201 });
+	const accepted = await acceptLayerUpload(getDb(), getObjectStore(), { networkId: network.id, organisationId: network.organisation_id, actorId: actor.id }, meta, body, limits);
+	return json(accepted, { status: 202 });
 });

@@ -4,18 +4,18 @@ import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
 import { apiHandler, readJson } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
-import { getObjectStore } from '$lib/server/storage/app-store';
-import { previewRecipe } from '$lib/server/services/importance';
+import { queueRecipePreview } from '$lib/server/services/recipe-previews';
 
 const input = z.object({ definition: z.unknown() }).strict();
 
 /**
- * POST /api/v1/networks/:id/recipes/preview {definition}: the importance map of an unsaved
- * recipe as a PNG (base64, moorland ramp over 0..1) with its grid and figures. Nothing is stored.
+ * POST /api/v1/networks/:id/recipes/preview {definition} → 202 {job}: the recipe is checked here
+ * (400/422 at once) and its importance map computed by a job, whose result is
+ * {preview: {png (base64, moorland ramp over 0..1), width, height, grid, figures, legend}}.
+ * The same definition again answers the same job. No recipe is stored.
  */
 export const POST: RequestHandler = apiHandler(async (event) => {
-	const { network } = await networkAccess(event, 'recipe.edit');
+	const { network, actor } = await networkAccess(event, 'recipe.edit');
 	const { definition } = await readJson(event, input);
-	const p = await previewRecipe(getDb(), getObjectStore(), network.id, definition);
-	return json({ preview: { png: p.png.toString('base64'), width: p.width, height: p.height, grid: p.grid, validCount: p.validCount, min: p.min, max: p.max, mean: p.mean, legend: p.legend } });
+	return json({ job: await queueRecipePreview(getDb(), network.id, actor.id, definition) }, { status: 202 });
 });
