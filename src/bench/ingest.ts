@@ -1,112 +1,163 @@
 /**
- * Ingest benchmark: a 4000 × 4000 Float32 GeoTIFF (64 MB of samples) is read with readGeoTiff and
- * resampled into a WorkingGrid, for three cases:
- *   wgs84→utm   geographic raster (0.0001° pixels near 15.2°E 48.2°N) reprojected to UTM 33N
- *   utm→utm     the same size in UTM 33N (10 m pixels), no reprojection (identity lattice)
- *   utm→laea    the UTM raster reprojected to ETRS89-LAEA (EPSG:3035)
- * Each case runs in a fresh child process so its peak memory (getrusage maxRSS) is its own; the
- * files are generated once in os.tmpdir() and not timed. Goal: under 5 s and under 1 GB per case.
+ * Ingest benchmark: the command line against GDAL's gdalwarp on the same files.
+ *
+ * Inputs: geographic (EPSG:4326) Float32 GeoTIFFs of 2000², 4000², 6000² and 10000² pixels of
+ * 0.0001° from 15.0° E 48.4° N (strips of 16 rows, nodata -9999 along the top rows), written once
+ * into data/bench/ (git-ignored) and never timed. For each size, one after another:
+ *   cli          `cairnfield place --importance F --count 1 --radius 150 --max-iterations 0`
+ *                (reads, reprojects to UTM 33N and aggregates into the working grid)
+ *   gdal near    `gdalwarp -t_srs EPSG:32633 -r near` at full resolution, one thread (the
+ *                reference the figures were first measured against)
+ *   gdal average `gdalwarp -t_srs EPSG:32633 -r average` onto the CLI's own working grid (the same
+ *                output: -te and -tr of the CLI's grid)
+ * Each runs as its own process under /usr/bin/time, which reports wall time and peak resident
+ * memory (maximum RSS). Ratios: CLI time / gdalwarp time, CLI peak / raw sample bytes.
+ *
+ * Then the web part: the 10000² file goes through the layer service's processing from storage
+ * (processStoredLayer: statistics, histogram, preview in one streamed pass over a file store) in a
+ * process of its own, with the same figures.
+ *
+ * `npm run bench ingest` (all sizes), `npm run bench ingest -- --sizes=2000,4000` (some).
  * Prints figures; never fails on speed.
+ *
+ * Figures on the shared 2-core machine, 2026-12-02, load average 7–9 (other builds running; an
+ * earlier run at load 15–18 was 2–3× slower on both sides):
+ *   pixels  raw MB | cli s  peak MB  ×raw | gdal near s  peak MB | gdal avg s  peak MB | ratio near  avg
+ *   2000²      15  |  0.78     137   9.0  |     0.28        95   |    0.19        84   |      2.79  4.11
+ *   4000²      61  |  2.10     181   3.0  |     1.09       202   |    0.80       145   |      1.93  2.63
+ *   6000²     137  |  2.07     190   1.4  |     2.45       349   |    2.12       226   |      0.84  0.98
+ *   10000²    381  |  5.34     153   0.40 |     9.45       861   |    4.24       485   |      0.57  1.26
+ *   grids: 783×1172 … 821×1214 cells of 19 … 92 m (the one-million-cell budget decides).
+ *   web, 10000²: stored in 2.31 s, processed from storage in 6.46 s (worker thread), whole process
+ *   9.99 s, peak 235 MB (0.61 × raw).
+ * Before the streaming ingest (same machine): 2000² 1.9 s / 347 MB, 4000² 4.1 s / 1021 MB,
+ * 6000² 10.8 s / 2148 MB. The CLI's time includes Node's start and the engine's own set-up on the
+ * grid (prefix sums, seeding: about 0.3 s at a million cells), which is what keeps 2000² above 2×.
  */
 import { spawnSync } from 'node:child_process';
-import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { createWriteStream, existsSync, mkdirSync, readFileSync, renameSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { readGeoTiff } from '../lib/geo/geotiff';
-import { encodeTiff } from './support/tiff-writer';
-import { buildWorkingGrid } from '../lib/geo/working-grid';
+import { encodeTiffHeader } from './support/tiff-writer';
 
-const SIZE = 4000;
+const ROOT = resolve(fileURLToPath(new URL('../..', import.meta.url)));
+const DIR = join(ROOT, 'data', 'bench');
+const ALL_SIZES = [2000, 4000, 6000, 10000];
+const RADIUS = 150;
 
-interface Case {
-	name: string;
-	file: string;
-	crs?: string;
+/** The test surface: two smooth bumps on a slope, as the Lloyd benchmark uses. */
+function value(x: number, y: number): number {
+	return 0.2 + Math.exp(-((x - 0.3) ** 2 + (y - 0.6) ** 2) / 0.02) + 0.5 * Math.sin(8 * x) ** 2;
 }
 
-function generate(file: string, geographic: boolean): void {
-	if (existsSync(file)) return;
-	const n = SIZE * SIZE;
-	const data = new Float32Array(n);
-	for (let r = 0; r < SIZE; r++) {
-		for (let c = 0; c < SIZE; c++) {
-			const x = c / SIZE;
-			const y = r / SIZE;
-			data[r * SIZE + c] = 0.2 + Math.exp(-((x - 0.3) ** 2 + (y - 0.6) ** 2) / 0.02) + 0.5 * Math.sin(8 * x) ** 2;
-		}
-	}
-	for (let c = 0; c < 200; c++) data[c] = -9999; // a nodata strip along the top edge
-	const geo = geographic
-		? { tiepoint: [0, 0, 0, 15.0, 48.4, 0], pixelScale: [0.0001, 0.0001, 0], geoKeys: [[1024, 2], [1025, 1], [2048, 4326]] as Array<[number, number]> }
-		: { tiepoint: [0, 0, 0, 480000, 5360000, 0], pixelScale: [10, 10, 0], geoKeys: [[1024, 1], [1025, 1], [3072, 32633]] as Array<[number, number]> };
-	const buf = encodeTiff({ width: SIZE, height: SIZE, bands: [data], sampleFormat: 3, bitsPerSample: 32, layout: { kind: 'strips', rowsPerStrip: 16 }, geo, nodata: '-9999' });
-	writeFileSync(file, new Uint8Array(buf));
-}
-
-/** Child-process side: measure one case and print one JSON line. */
-async function measure(file: string, crs: string | undefined): Promise<void> {
-	const mb = (b: number) => Math.round(b / 1048576);
-	const t0 = performance.now();
-	const bytes = readFileSync(file);
-	const buffer = (bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength ? bytes.buffer : bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength)) as ArrayBuffer;
-	const raster = await readGeoTiff(buffer, { name: file });
-	const t1 = performance.now();
-	const afterRead = process.memoryUsage();
-	const res = buildWorkingGrid(raster, { crs });
-	const t2 = performance.now();
-	const afterGrid = process.memoryUsage();
-	let feasible = 0;
-	for (let i = 0; i < res.grid.feasible.length; i++) feasible += res.grid.feasible[i];
-	console.log(
-		JSON.stringify({
-			readMs: Math.round(t1 - t0),
-			gridMs: Math.round(t2 - t1),
-			totalMs: Math.round(t2 - t0),
-			grid: `${res.grid.width}x${res.grid.height} cells of ${res.grid.cellSize} m in ${res.grid.crs}`,
-			controlStep: res.controlStep,
-			controlError: Number(res.controlError.toExponential(2)),
-			feasibleShare: Number((feasible / res.grid.feasible.length).toFixed(4)),
-			rssAfterReadMB: mb(afterRead.rss),
-			rssAfterGridMB: mb(afterGrid.rss),
-			arrayBuffersAfterGridMB: mb(afterGrid.arrayBuffers),
-			peakRssMB: Math.round(process.resourceUsage().maxRSS / 1024)
-		})
-	);
-}
-
-export async function run(_args: string[]): Promise<void> {
-	const geoFile = join(tmpdir(), `cairnfield-bench-${SIZE}-wgs84.tif`);
-	const utmFile = join(tmpdir(), `cairnfield-bench-${SIZE}-utm33.tif`);
-	const g0 = performance.now();
-	generate(geoFile, true);
-	generate(utmFile, false);
-	console.log(`inputs ready in ${Math.round(performance.now() - g0)} ms (${geoFile}, ${utmFile}; not timed below)`);
-	const cases: Case[] = [
-		{ name: 'wgs84→utm', file: geoFile },
-		{ name: 'utm→utm', file: utmFile },
-		{ name: 'utm→laea', file: utmFile, crs: 'EPSG:3035' }
-	];
-	const self = fileURLToPath(import.meta.url);
-	for (const c of cases) {
-		const child = spawnSync(process.execPath, ['--import', 'tsx', self], {
-			env: { ...process.env, CAIRNFIELD_INGEST_FILE: c.file, CAIRNFIELD_INGEST_CRS: c.crs ?? '' },
-			encoding: 'utf8'
+/** Write the file strip by strip (never the whole raster in memory). */
+async function generate(size: number): Promise<string> {
+	const file = join(DIR, `geo-${size}.tif`);
+	if (existsSync(file)) return file;
+	mkdirSync(DIR, { recursive: true });
+	const rowsPerStrip = 16;
+	const header = encodeTiffHeader({
+		width: size,
+		height: size,
+		sampleFormat: 3,
+		bitsPerSample: 32,
+		rowsPerStrip,
+		geo: { tiepoint: [0, 0, 0, 15.0, 48.4, 0], pixelScale: [0.0001, 0.0001, 0], geoKeys: [[1024, 2], [1025, 1], [2048, 4326]] },
+		nodata: '-9999'
+	});
+	const tmp = `${file}.part`;
+	const out = createWriteStream(tmp);
+	let failed: Error | null = null;
+	out.on('error', (e) => (failed = e));
+	const write = (b: Uint8Array) =>
+		new Promise<void>((ok, fail) => {
+			if (failed) return fail(failed);
+			if (out.write(b)) ok();
+			else out.once('drain', ok);
 		});
-		const line = child.stdout.trim().split('\n').pop() ?? '';
-		if (child.status !== 0 || !line.startsWith('{')) {
-			console.log(`${c.name}: failed (${child.stderr.trim().split('\n')[0]})`);
-			continue;
+	await write(header);
+	const strip = new Float32Array(size * rowsPerStrip);
+	for (let r0 = 0; r0 < size; r0 += rowsPerStrip) {
+		const rows = Math.min(rowsPerStrip, size - r0);
+		for (let r = 0; r < rows; r++) {
+			const y = (r0 + r) / size;
+			for (let c = 0; c < size; c++) strip[r * size + c] = r0 + r < 8 ? -9999 : value(c / size, y);
 		}
-		const r = JSON.parse(line);
-		console.log(
-			`${c.name.padEnd(10)} read ${String(r.readMs).padStart(5)} ms  grid ${String(r.gridMs).padStart(5)} ms  total ${String(r.totalMs).padStart(5)} ms  ` +
-				`peak RSS ${r.peakRssMB} MB (after grid ${r.rssAfterGridMB} MB, arrayBuffers ${r.arrayBuffersAfterGridMB} MB)  ` +
-				`${r.grid}, lattice step ${r.controlStep} (error ${r.controlError} cell), feasible ${r.feasibleShare}`
-		);
+		await write(new Uint8Array(strip.buffer, 0, rows * size * 4).slice());
 	}
+	await new Promise<void>((ok) => out.end(ok));
+	renameSync(tmp, file);
+	return file;
 }
 
-if (process.env.CAIRNFIELD_INGEST_FILE) {
-	await measure(process.env.CAIRNFIELD_INGEST_FILE, process.env.CAIRNFIELD_INGEST_CRS || undefined);
+interface Measured {
+	ok: boolean;
+	seconds: number;
+	peakMB: number;
+	stdout: string;
+	error: string;
+}
+
+/** Run a command under /usr/bin/time: wall seconds and peak RSS. */
+function timed(cmd: string, args: string[], env: NodeJS.ProcessEnv = process.env): Measured {
+	const r = spawnSync('/usr/bin/time', ['-f', '@@time %e %M', cmd, ...args], { encoding: 'utf8', env, maxBuffer: 1 << 28 });
+	const m = /@@time ([\d.]+) (\d+)/.exec(r.stderr ?? '');
+	const error = (r.stderr ?? '').replace(/@@time.*\n?/, '').trim().split('\n').pop() ?? '';
+	return { ok: r.status === 0 && m !== null, seconds: m ? Number(m[1]) : NaN, peakMB: m ? Number(m[2]) / 1024 : NaN, stdout: r.stdout ?? '', error };
+}
+
+const f1 = (v: number) => (Number.isFinite(v) ? v.toFixed(2) : '–');
+const f0 = (v: number) => (Number.isFinite(v) ? v.toFixed(0) : '–');
+
+function hasGdal(): boolean {
+	return spawnSync('gdalwarp', ['--version'], { encoding: 'utf8' }).status === 0;
+}
+
+export async function run(args: string[]): Promise<void> {
+	const sizesArg = args.find((a) => a.startsWith('--sizes='))?.slice(8);
+	const sizes = sizesArg ? sizesArg.split(',').map(Number).filter((n) => n > 0) : ALL_SIZES;
+	const gdal = hasGdal();
+	if (!gdal) console.log('gdalwarp not found (Debian: apt-get install gdal-bin); GDAL columns are left empty');
+	const t0 = performance.now();
+	const files = new Map<number, string>();
+	for (const s of sizes) files.set(s, await generate(s));
+	console.log(`inputs in ${DIR} ready in ${((performance.now() - t0) / 1000).toFixed(1)} s (not timed below)`);
+	const out = join(tmpdir(), `cairnfield-bench-${process.pid}`);
+	mkdirSync(out, { recursive: true });
+	const cli = join(ROOT, 'src', 'cli', 'bin.js');
+	console.log('pixels   raw MB | cli s  peak MB  ×raw | gdal near s  peak MB | gdal avg s  peak MB | time ratio near  avg | grid');
+	try {
+		for (const size of sizes) {
+			const file = files.get(size)!;
+			const raw = (size * size * 4) / 1048576;
+			const c = timed(process.execPath, [cli, 'place', '--importance', file, '--count', '1', '--radius', String(RADIUS), '--max-iterations', '0', '--out', join(out, 'sites.geojson')]);
+			let grid = '';
+			let te: string[] = [];
+			let tr = '';
+			if (c.ok) {
+				const p = JSON.parse(readFileSync(join(out, 'sites.geojson'), 'utf8')).placement;
+				grid = `${p.grid.width}×${p.grid.height} cells of ${p.cell_size_m} m (${p.cell_size.rule})`;
+				tr = String(p.cell_size_m);
+				te = [String(p.grid.x0), String(p.grid.y0 - p.grid.height * p.cell_size_m), String(p.grid.x0 + p.grid.width * p.cell_size_m), String(p.grid.y0)];
+			} else grid = `cli failed: ${c.error}`;
+			const near = gdal ? timed('gdalwarp', ['-q', '-overwrite', '-t_srs', 'EPSG:32633', '-r', 'near', '-wo', 'NUM_THREADS=1', file, join(out, 'near.tif')]) : null;
+			const avg = gdal && tr ? timed('gdalwarp', ['-q', '-overwrite', '-t_srs', 'EPSG:32633', '-r', 'average', '-tr', tr, tr, '-te', ...te, '-wo', 'NUM_THREADS=1', file, join(out, 'avg.tif')]) : null;
+			rmSync(join(out, 'near.tif'), { force: true });
+			console.log(
+				`${`${size}²`.padEnd(8)} ${f0(raw).padStart(6)} | ${f1(c.seconds).padStart(5)} ${f0(c.peakMB).padStart(8)} ${f1(c.peakMB / raw).padStart(5)} | ` +
+					`${f1(near?.seconds ?? NaN).padStart(11)} ${f0(near?.peakMB ?? NaN).padStart(8)} | ${f1(avg?.seconds ?? NaN).padStart(10)} ${f0(avg?.peakMB ?? NaN).padStart(8)} | ` +
+					`${f1(c.seconds / (near?.seconds ?? NaN)).padStart(15)} ${f1(c.seconds / (avg?.seconds ?? NaN)).padStart(4)} | ${grid}`
+			);
+		}
+		const big = Math.max(...sizes);
+		const web = timed(process.execPath, ['--import', 'tsx', join(ROOT, 'src', 'bench', 'ingest-upload.ts'), files.get(big)!], { ...process.env });
+		const raw = (big * big * 4) / 1048576;
+		if (web.ok) {
+			console.log(`web upload of ${big}² (${f0(statSync(files.get(big)!).size / 1048576)} MB): ${web.stdout.trim()}`);
+			console.log(`  whole process: ${f1(web.seconds)} s, peak ${f0(web.peakMB)} MB (${f1(web.peakMB / raw)} × raw)`);
+		} else console.log(`web upload of ${big}²: failed (${web.error})`);
+	} finally {
+		rmSync(out, { recursive: true, force: true });
+	}
 }

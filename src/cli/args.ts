@@ -55,7 +55,9 @@ Places sensors over an importance raster and writes a GeoJSON FeatureCollection 
   --zone-grid CxR       or a regular grid of C columns by R rows of zones
   --study-area FILE     GeoJSON polygon(s): cells outside get no importance and no sensor
   --exclusions FILE     GeoJSON polygon(s): cells inside get no importance and no sensor
-  --cell-size M         working-grid cell size in metres (default ≈ the raster's pixel size)
+  --cell-size M         working-grid cell size in metres, never finer than the raster's pixels;
+                        default the largest of: 1/10 of the smallest sensing radius, the size
+                        that fits the study area (or raster) in a million cells, the pixel size
   --max-iterations N    default 500
   --tolerance M         stop when no sensor moved more than M metres in an iteration
                         (default 1 % of a cell); 0 runs every iteration

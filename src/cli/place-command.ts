@@ -3,13 +3,13 @@
  * working grid, runs the engine, plans the moves, and returns the document (writing is the
  * caller's job, so nothing is written when anything fails).
  */
-import { readFile } from 'node:fs/promises';
+import { readFile, stat } from 'node:fs/promises';
 import { place, zoneGrid, type PlacementResult, type SensorInput, type WorkingGrid, type ZoneMap } from '../lib/engine';
 import { rasterizeZones } from '../lib/engine/rasterize';
-import { readGeoTiff } from '../lib/geo/geotiff';
+import { decoderPoolFor, openGeoTiff, type DecoderPool } from '../lib/geo/geotiff';
+import { aggregateToWorkingGrid } from '../lib/geo/aggregate';
 import { GeoJsonError, projectRings, readPolygons, readSensors, readZones } from '../lib/geo/geojson';
 import { transformer } from '../lib/geo/crs';
-import { buildWorkingGrid } from '../lib/geo/working-grid';
 import { planMoves } from '../lib/geo/move-plan';
 import { CliError, type PlaceArgs } from './args';
 
@@ -23,6 +23,18 @@ async function readBytes(file: string): Promise<ArrayBuffer> {
 		const code = (e as NodeJS.ErrnoException).code;
 		if (code === 'ENOENT') throw new CliError(`${file}: no such file`);
 		if (code === 'EISDIR') throw new CliError(`${file}: is a directory, not a file`);
+		throw new CliError(`${file}: cannot be read (${code ?? String(e)})`);
+	}
+}
+
+/** The file must exist and be a file: the same messages as for the other inputs. */
+async function checkFile(file: string): Promise<void> {
+	try {
+		if ((await stat(file)).isDirectory()) throw new CliError(`${file}: is a directory, not a file`);
+	} catch (e) {
+		if (e instanceof CliError) throw e;
+		const code = (e as NodeJS.ErrnoException).code;
+		if (code === 'ENOENT') throw new CliError(`${file}: no such file`);
 		throw new CliError(`${file}: cannot be read (${code ?? String(e)})`);
 	}
 }
@@ -69,20 +81,35 @@ export function clipToZones(grid: WorkingGrid, zones: ZoneMap): { grid: WorkingG
 const percent = (share: number) => `${Math.round(share * 1000) / 10} %`;
 
 export async function runPlace(args: PlaceArgs): Promise<PlaceOutput> {
-	const raster = await readGeoTiff(await readBytes(args.importance), { band: args.band, name: args.importance });
 	const studyDoc = args.studyArea ? readPolygons(await readJson(args.studyArea), args.studyArea) : null;
 	const exclusionDoc = args.exclusions ? readPolygons(await readJson(args.exclusions), args.exclusions) : null;
 	const zoneDoc = args.zones ? readZones(await readJson(args.zones), args.zones) : null;
 	const sensorDoc = args.sensors ? readSensors(await readJson(args.sensors), args.sensors) : null;
 	if (sensorDoc && sensorDoc.length === 0) throw new GeoJsonError(`${args.sensors}: no sensors`);
+	const radii = [args.radius, ...(sensorDoc ?? []).map((s) => s.radius)].filter((r): r is number => typeof r === 'number' && r > 0);
 
+	// The raster is streamed into the working grid; compressed tiles are decoded in worker threads.
+	await checkFile(args.importance);
+	const source = await openGeoTiff({ path: args.importance }, { band: args.band, name: args.importance, maxPixels: Number.MAX_SAFE_INTEGER });
+	let pool: DecoderPool | null = null;
+	let ingest;
+	try {
+		pool = await decoderPoolFor(source);
+		ingest = await aggregateToWorkingGrid(source, {
+			crs: args.crs,
+			cellSize: args.cellSize,
+			smallestRadius: radii.length > 0 ? Math.min(...radii) : null,
+			studyArea: studyDoc ?? undefined,
+			exclusions: exclusionDoc ?? undefined,
+			pool
+		});
+	} finally {
+		await pool?.destroy();
+		await source.close();
+	}
 	const warnings: string[] = [];
-	let { grid, epsg } = buildWorkingGrid(raster, {
-		crs: args.crs,
-		cellSize: args.cellSize ?? undefined,
-		studyArea: studyDoc ?? undefined,
-		exclusions: exclusionDoc ?? undefined
-	});
+	let { grid } = ingest;
+	const { epsg } = ingest;
 	const toWork = transformer(4326, epsg).forward;
 	const toLonLat = transformer(epsg, 4326).forward;
 
@@ -151,6 +178,8 @@ export async function runPlace(args: PlaceArgs): Promise<PlaceOutput> {
 		coverage: coverage(result.coverage),
 		p95_distance_m: result.p95DistanceM,
 		cell_size_m: grid.cellSize,
+		cell_size: { rule: ingest.cellSize.rule, reason: ingest.cellSize.reason, requested_m: ingest.cellSize.requested, pixel_m: ingest.cellSize.pixelSize, smallest_radius_m: ingest.cellSize.smallestRadius, budget_cells: ingest.cellSize.budget },
+		grid: { width: grid.width, height: grid.height, x0: grid.x0, y0: grid.y0, read: ingest.image.index === 0 ? 'full resolution' : `overview ${ingest.image.width}×${ingest.image.height}` },
 		zones: result.zones.map((z) => ({ id: z.id, mass: z.mass, sensors: z.sensors, sigma: z.sigma })),
 		history: result.history.map((h) => ({ iteration: h.iteration, cost: h.cost, coverage: coverage(h.coverage) })),
 		warnings

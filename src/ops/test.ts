@@ -1,5 +1,5 @@
 /**
- * `npm test`: from a fresh clone, installs what is missing (Debian's mariadb-server and chromium),
+ * `npm test`: from a fresh clone, installs what is missing (Debian's mariadb-server, chromium and gdal-bin),
  * starts a throwaway MariaDB and a fake SMTP server on free loopback ports (never the `npm start`
  * ones), migrates, runs the unit and integration tests (vitest), builds the app, serves it against
  * the test database and runs the end-to-end tests (Playwright in /usr/bin/chromium), stops all it
@@ -71,6 +71,8 @@ try {
 	const tmp = mkdtempSync(path.join(existsSync('/dev/shm') ? '/dev/shm' : os.tmpdir(), 'cf-test-'));
 	cleanups.push(() => rmSync(tmp, { recursive: true, force: true, maxRetries: 5, retryDelay: 200 }));
 	if (only !== 'unit') ensureDebianPackages('/usr/bin/chromium', ['chromium', 'fonts-dejavu-core']);
+	// GDAL's gdalwarp is the reference the raster ingest tests compare the aggregated grid with.
+	if (only !== 'e2e') ensureDebianPackages('gdalwarp', ['gdal-bin']);
 
 	const dbPort = Number(process.env.TEST_DB_PORT ?? (await freePort()));
 	const mariadb: MariaDbServer = await startMariaDb({ datadir: path.join(tmp, 'db'), rundir: path.join(tmp, 'run'), port: dbPort, small: true });

@@ -16,8 +16,8 @@ const geo = { tiepoint: [0, 0, 0, 500000, 5500000, 0], pixelScale: [30, 30, 0], 
 const base = { width: 4, height: 3, bands: [Array.from({ length: 12 }, (_, i) => i)], sampleFormat: 3 as const, bitsPerSample: 32 as const };
 
 describe('layerLimits', () => {
-	it('defaults to 500 MB and 25 million pixels, reads LAYER_MAX_BYTES and refuses nonsense', () => {
-		expect(layerLimits({})).toEqual({ maxBytes: 524_288_000, maxPixels: 25_000_000, decodeHeapMb: 512 });
+	it('defaults to 500 MB and 250 million pixels, reads LAYER_MAX_BYTES and refuses nonsense', () => {
+		expect(layerLimits({})).toEqual({ maxBytes: 524_288_000, maxPixels: 250_000_000, decodeHeapMb: 512 });
 		expect(layerLimits({}).maxPixels).toBe(DEFAULT_MAX_PIXELS); // the same default as inspectLayer
 		expect(layerLimits({ LAYER_MAX_BYTES: '1000' }).maxBytes).toBe(1000);
 		expect(() => layerLimits({ LAYER_MAX_BYTES: '-1' })).toThrow(/LAYER_MAX_BYTES/);

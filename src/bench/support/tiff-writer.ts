@@ -131,6 +131,62 @@ export function encodeTiff(opts: TiffWriteOptions): ArrayBuffer {
 	}
 	const ifdOffset = pos;
 
+	const entries = directoryEntries(opts, spp, layout.kind === 'strips'
+		? [
+				{ tag: 273, type: 4, values: blockOffsets },
+				{ tag: 278, type: 4, values: [layout.rowsPerStrip] },
+				{ tag: 279, type: 4, values: blocks.map((b) => b.length) }
+			]
+		: [
+				{ tag: 322, type: 4, values: [layout.tileWidth] },
+				{ tag: 323, type: 4, values: [layout.tileHeight] },
+				{ tag: 324, type: 4, values: blockOffsets },
+				{ tag: 325, type: 4, values: blocks.map((b) => b.length) }
+			]);
+	const dir = encodeDirectory(entries, ifdOffset);
+	const out = new Uint8Array(ifdOffset + dir.length);
+	writeTiffHeader(out, ifdOffset);
+	blocks.forEach((b, i) => out.set(b, blockOffsets[i]));
+	out.set(dir, ifdOffset);
+	return out.buffer;
+}
+
+/**
+ * The header and directory of an uncompressed, single-band, stripped GeoTIFF whose strips follow
+ * it, back to back: write these bytes, then the samples row by row (little-endian). For files too
+ * large to build in memory (benchmark inputs).
+ */
+export function encodeTiffHeader(opts: Omit<TiffWriteOptions, 'bands' | 'layout' | 'compression'> & { rowsPerStrip: number }): Uint8Array {
+	const { width, height, rowsPerStrip } = opts;
+	const stripBytes = width * rowsPerStrip * (opts.bitsPerSample / 8);
+	const strips = Math.ceil(height / rowsPerStrip);
+	const counts = Array.from({ length: strips }, (_, k) => (k === strips - 1 ? (height - k * rowsPerStrip) * width * (opts.bitsPerSample / 8) : stripBytes));
+	const layoutEntries = (first: number): Entry[] => [
+		{ tag: 273, type: 4, values: counts.map((_, k) => first + k * stripBytes) },
+		{ tag: 278, type: 4, values: [rowsPerStrip] },
+		{ tag: 279, type: 4, values: counts }
+	];
+	const sizing = encodeDirectory(directoryEntries({ ...opts, bands: [[]] }, 1, layoutEntries(0)), 8);
+	const first = 8 + sizing.length;
+	const dir = encodeDirectory(directoryEntries({ ...opts, bands: [[]] }, 1, layoutEntries(first)), 8);
+	const out = new Uint8Array(first);
+	writeTiffHeader(out, 8);
+	out.set(dir, 8);
+	return out;
+}
+
+function writeTiffHeader(out: Uint8Array, ifdOffset: number): void {
+	const view = new DataView(out.buffer, out.byteOffset);
+	out[0] = 0x49;
+	out[1] = 0x49; // "II": little-endian
+	view.setUint16(2, 42, true);
+	view.setUint32(4, ifdOffset, true);
+}
+
+/** The baseline and GeoTIFF tags of a file, with the layout's own tags, sorted. */
+function directoryEntries(opts: Omit<TiffWriteOptions, 'layout'>, spp: number, layoutEntries: Entry[]): Entry[] {
+	const { width, height } = opts;
+	const bands = Array.from({ length: spp });
 	const entries: Entry[] = [
 		{ tag: 256, type: 4, values: [width] },
 		{ tag: 257, type: 4, values: [height] },
@@ -139,18 +195,9 @@ export function encodeTiff(opts: TiffWriteOptions): ArrayBuffer {
 		{ tag: 262, type: 3, values: [1] },
 		{ tag: 277, type: 3, values: [spp] },
 		{ tag: 284, type: 3, values: [1] },
-		{ tag: 339, type: 3, values: bands.map(() => opts.sampleFormat) }
+		{ tag: 339, type: 3, values: bands.map(() => opts.sampleFormat) },
+		...layoutEntries
 	];
-	if (layout.kind === 'strips') {
-		entries.push({ tag: 273, type: 4, values: blockOffsets });
-		entries.push({ tag: 278, type: 4, values: [layout.rowsPerStrip] });
-		entries.push({ tag: 279, type: 4, values: blocks.map((b) => b.length) });
-	} else {
-		entries.push({ tag: 322, type: 4, values: [layout.tileWidth] });
-		entries.push({ tag: 323, type: 4, values: [layout.tileHeight] });
-		entries.push({ tag: 324, type: 4, values: blockOffsets });
-		entries.push({ tag: 325, type: 4, values: blocks.map((b) => b.length) });
-	}
 	const geo = opts.geo;
 	if (geo?.pixelScale) entries.push({ tag: 33550, type: 12, values: geo.pixelScale });
 	if (geo?.tiepoint) entries.push({ tag: 33922, type: 12, values: geo.tiepoint });
@@ -169,6 +216,11 @@ export function encodeTiff(opts: TiffWriteOptions): ArrayBuffer {
 	}
 	entries.sort((p, q) => p.tag - q.tag);
 
+	return entries;
+}
+
+/** One image file directory and the values it points to, to be written at byte `ifdOffset`. */
+function encodeDirectory(entries: Entry[], ifdOffset: number): Uint8Array {
 	const count = (e: Entry) => (typeof e.values === 'string' ? e.values.length + 1 : e.values.length);
 	const ifdSize = 2 + entries.length * 12 + 4;
 	let extra = ifdOffset + ifdSize;
@@ -181,38 +233,32 @@ export function encodeTiff(opts: TiffWriteOptions): ArrayBuffer {
 		} else extraOffsets.push(-1);
 	}
 
-	const out = new Uint8Array(extra);
+	const out = new Uint8Array(extra - ifdOffset);
 	const view = new DataView(out.buffer);
-	out[0] = 0x49;
-	out[1] = 0x49; // "II": little-endian
-	view.setUint16(2, 42, true);
-	view.setUint32(4, ifdOffset, true);
-	blocks.forEach((b, i) => out.set(b, blockOffsets[i]));
-
 	const writeValues = (e: Entry, at: number) => {
 		if (typeof e.values === 'string') {
-			for (let i = 0; i < e.values.length; i++) out[at + i] = e.values.charCodeAt(i) & 0xff;
-			out[at + e.values.length] = 0;
+			for (let i = 0; i < e.values.length; i++) out[at - ifdOffset + i] = e.values.charCodeAt(i) & 0xff;
+			out[at - ifdOffset + e.values.length] = 0;
 			return;
 		}
 		e.values.forEach((v, i) => {
-			if (e.type === 3) view.setUint16(at + 2 * i, v, true);
-			else if (e.type === 4) view.setUint32(at + 4 * i, v, true);
-			else view.setFloat64(at + 8 * i, v, true);
+			if (e.type === 3) view.setUint16(at - ifdOffset + 2 * i, v, true);
+			else if (e.type === 4) view.setUint32(at - ifdOffset + 4 * i, v, true);
+			else view.setFloat64(at - ifdOffset + 8 * i, v, true);
 		});
 	};
 
-	view.setUint16(ifdOffset, entries.length, true);
+	view.setUint16(0, entries.length, true);
 	entries.forEach((e, i) => {
-		const p = ifdOffset + 2 + i * 12;
+		const p = 2 + i * 12;
 		view.setUint16(p, e.tag, true);
 		view.setUint16(p + 2, e.type, true);
 		view.setUint32(p + 4, count(e), true);
 		if (extraOffsets[i] >= 0) {
 			view.setUint32(p + 8, extraOffsets[i], true);
 			writeValues(e, extraOffsets[i]);
-		} else writeValues(e, p + 8);
+		} else writeValues(e, ifdOffset + p + 8);
 	});
-	view.setUint32(ifdOffset + 2 + entries.length * 12, 0, true);
-	return out.buffer;
+	view.setUint32(2 + entries.length * 12, 0, true);
+	return out;
 }

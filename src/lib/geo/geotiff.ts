@@ -221,27 +221,175 @@ async function blockLayout(image: GeoTIFFImage, file: string, width: number, hei
 	}
 }
 
-/** Read one band of a GeoTIFF held in memory. */
-export async function readGeoTiff(buffer: ArrayBuffer, opts: ReadGeoTiffOptions = {}): Promise<RasterBand> {
+/**
+ * Header of one band of a GeoTIFF: everything but the samples. `overviews` lists the file's
+ * reduced-resolution images (Cloud-Optimized GeoTIFFs carry them), finest first.
+ */
+export type RasterHeader = Omit<RasterBand, 'data'> & {
+	/** Size of one tile, or the width and rows of one strip. */
+	blockWidth: number;
+	blockHeight: number;
+	overviews: OverviewInfo[];
+};
+
+export interface OverviewInfo {
+	/** Index of the image in the file (0 is the full-resolution image). */
+	index: number;
+	width: number;
+	height: number;
+	transform: GeoTransform;
+}
+
+/** A run of whole rows of a band (or of one of its overviews), row-major, values as stored. */
+export interface RasterBlock {
+	row0: number;
+	width: number;
+	height: number;
+	data: Float32Array | Float64Array;
+}
+
+/** Where the bytes of a GeoTIFF come from: a whole buffer, a file path, or a range reader (object storage). */
+export type GeoTiffInput = ArrayBuffer | { path: string } | ByteRangeReader;
+
+export interface ByteRangeReader {
+	/** `length` bytes from `offset` (fewer at the end of the object). */
+	read(offset: number, length: number): Promise<Uint8Array>;
+	close?(): Promise<void>;
+}
+
+/** A decoder pool (geotiff's Pool): decodes compressed tiles in worker threads. */
+export interface DecoderPool {
+	bindParameters(compression: number, params: Record<string, unknown>): { decode(buffer: ArrayBuffer): Promise<ArrayBuffer> };
+	destroy(): Promise<void>;
+}
+
+export interface BlockReadOptions {
+	/** 0 = full resolution (default), otherwise an overview's index from `overviews`. */
+	image?: number;
+	/** Decode compressed tiles in these worker threads; default: in this thread. */
+	pool?: DecoderPool | null;
+	/** Rows per yielded block, rounded up to whole tiles/strips; default about a million samples. */
+	rowsPerBlock?: number;
+}
+
+export interface GeoTiffSource extends RasterHeader {
+	/** The band's samples, block row by block row; the next block row is fetched while one is used. */
+	blocks(opts?: BlockReadOptions): AsyncGenerator<RasterBlock>;
+	close(): Promise<void>;
+}
+
+/**
+ * The check every tile or strip passes just before it is decoded, with its stored and decoded
+ * sizes (the header-level checks of ./tiff-blocks have run on the whole layout already; bounded
+ * decoders stop compressed blocks at their size): an uncompressed block must hold all its bytes.
+ * Throws RasterError; returns nothing.
+ */
+export function checkBlockBytes(file: string, compression: number, storedBytes: number, decodedBytes: number): void {
+	if (compression === 1 && storedBytes < decodedBytes) {
+		throw new RasterError(file, 'corrupt', `corrupt pixel data (Compression 1: a strip or tile holds ${storedBytes} of its ${decodedBytes} bytes)`);
+	}
+}
+
+function asGeotiffSource(reader: ByteRangeReader) {
+	return {
+		async fetch(slices: { offset: number; length: number }[]) {
+			return Promise.all(
+				slices.map(async (s) => {
+					const bytes = await reader.read(s.offset, s.length);
+					return bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength ? bytes.buffer : bytes.slice().buffer;
+				})
+			);
+		},
+		get fileSize() {
+			return null;
+		},
+		async close() {
+			await reader.close?.();
+		}
+	};
+}
+
+async function openTiff(input: GeoTiffInput, file: string): Promise<GeoTIFF> {
+	// Loaded on first use: geotiff pulls in web-worker, which breaks when imported inside
+	// SvelteKit's build-time analysis worker.
+	const lib = await loadGeotiff();
+	let head: Uint8Array;
+	if (input instanceof ArrayBuffer) head = new Uint8Array(input, 0, Math.min(8, input.byteLength));
+	else if ('path' in input) {
+		const { open } = await import('node:fs/promises');
+		const fh = await open(input.path, 'r').catch(() => {
+			throw new RasterError(file, 'not-tiff', 'the file cannot be opened');
+		});
+		try {
+			head = new Uint8Array(8);
+			const { bytesRead } = await fh.read(head, 0, 8, 0);
+			head = head.subarray(0, bytesRead);
+		} finally {
+			await fh.close();
+		}
+	} else head = await input.read(0, 8);
+	if (!isTiffMagic(head)) throw new RasterError(file, 'not-tiff', 'not a TIFF file (no TIFF header)');
+	try {
+		if (input instanceof ArrayBuffer) return await lib.fromArrayBuffer(input);
+		if ('path' in input) return await lib.fromFile(input.path);
+		return await lib.GeoTIFF.fromSource(asGeotiffSource(input) as unknown as Parameters<typeof lib.GeoTIFF.fromSource>[0]);
+	} catch (e) {
+		throw new RasterError(file, 'corrupt', `corrupt TIFF (${errorText(e)})`);
+	}
+}
+
+/** Parameters geotiff's decoders take (geotiff computes the same ones in readRasters). */
+async function decoderParameters(image: GeoTIFFImage, compression: number): Promise<Record<string, unknown>> {
+	const fd = image.getFileDirectory();
+	const value = async (name: string) => loadTag(image, name);
+	const params: Record<string, unknown> = {
+		tileWidth: image.getTileWidth(),
+		tileHeight: image.getTileHeight(),
+		planarConfiguration: (await value('PlanarConfiguration')) ?? 1,
+		bitsPerSample: await value('BitsPerSample'),
+		predictor: (await value('Predictor')) ?? 1
+	};
+	if (compression === 7) params.JPEGTables = await value('JPEGTables');
+	if (compression === 34887) params.LercParameters = await value('LercParameters');
+	if (compression === 50001) params.samplesPerPixel = Number(await value('SamplesPerPixel')) || 4;
+	void fd;
+	return params;
+}
+
+/** Typed view of a decoded block's samples of one band, or null when it needs the slow path. */
+function fastView(buffer: ArrayBuffer, sampleFormat: number, bits: number): Float32Array | Float64Array | Int8Array | Uint8Array | Int16Array | Uint16Array | Int32Array | Uint32Array | null {
+	if (sampleFormat === 3) return bits === 32 ? new Float32Array(buffer) : bits === 64 ? new Float64Array(buffer) : null;
+	if (sampleFormat === 2) return bits === 8 ? new Int8Array(buffer) : bits === 16 ? new Int16Array(buffer) : bits === 32 ? new Int32Array(buffer) : null;
+	return bits === 8 ? new Uint8Array(buffer) : bits === 16 ? new Uint16Array(buffer) : bits === 32 ? new Uint32Array(buffer) : null;
+}
+
+const littleEndianHost = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1;
+
+/** Open one band of a GeoTIFF and check it, without reading its samples. */
+export async function openGeoTiff(input: GeoTiffInput, opts: ReadGeoTiffOptions = {}): Promise<GeoTiffSource> {
 	const file = opts.name ?? 'raster';
 	const bandNo = opts.band ?? 1;
 	const maxPixels = opts.maxPixels ?? DEFAULT_MAX_PIXELS;
 	if (!Number.isInteger(bandNo) || bandNo < 1) {
 		throw new RasterError(file, 'band-missing', `band ${bandNo} is not a band number (use 1, 2, …)`);
 	}
-	if (!isTiffMagic(new Uint8Array(buffer, 0, Math.min(8, buffer.byteLength)))) {
-		throw new RasterError(file, 'not-tiff', 'not a TIFF file (no TIFF header)');
-	}
-
-	let tiff: GeoTIFF;
+	const tiff = await openTiff(input, file);
 	let image: GeoTIFFImage;
 	try {
-		tiff = await (await loadGeotiff()).fromArrayBuffer(buffer);
 		image = await tiff.getImage(0);
 	} catch (e) {
+		await tiff.close?.();
 		throw new RasterError(file, 'corrupt', `corrupt TIFF (${errorText(e)})`);
 	}
+	try {
+		return await describe(tiff, image, file, bandNo, maxPixels, opts.requireKnownCrs ?? true);
+	} catch (e) {
+		await tiff.close?.();
+		throw e;
+	}
+}
 
+async function describe(tiff: GeoTIFF, image: GeoTIFFImage, file: string, bandNo: number, maxPixels: number, requireKnownCrs: boolean): Promise<GeoTiffSource> {
 	let width: number;
 	let height: number;
 	let bandCount: number;
@@ -285,35 +433,181 @@ export async function readGeoTiff(buffer: ArrayBuffer, opts: ReadGeoTiffOptions 
 	const pixelIsPoint = geoKeys?.GTRasterTypeGeoKey === RASTER_PIXEL_IS_POINT;
 	const transform = await readTransform(image, file, pixelIsPoint);
 	const epsg = readEpsg(geoKeys, file);
-	if ((opts.requireKnownCrs ?? true) && !isKnownCrs(epsg)) {
+	if (requireKnownCrs && !isKnownCrs(epsg)) {
 		throw new RasterError(file, 'unknown-crs', `unknown CRS EPSG:${epsg} (no definition registered)`);
 	}
 	const nodata = parseNodata(await loadTag(image, 'GDAL_NODATA'));
 
-	let raw: ArrayLike<number>;
+	// Reduced-resolution images (NewSubfileType bit 0) of the same band layout, finest first.
+	const overviews: OverviewInfo[] = [];
+	const images = new Map<number, GeoTIFFImage>([[0, image]]);
 	try {
-		const rasters = await image.readRasters({ samples: [bandNo - 1], interleave: false });
-		raw = (rasters as unknown as ArrayLike<number>[])[0];
-	} catch (e) {
-		const msg = errorText(e);
-		if (msg.includes(BLOCK_OVERFLOW)) {
-			throw new RasterError(file, 'unsafe-blocks', `a compressed block inflates to more than the block can hold: the file is corrupt or built to exhaust memory`);
+		const count = await tiff.getImageCount();
+		for (let i = 1; i < count; i++) {
+			const ov = await tiff.getImage(i);
+			const kind = Number((await loadTag(ov, 'NewSubfileType')) ?? 0);
+			if ((kind & 1) === 0 || (kind & 4) !== 0 || ov.getSamplesPerPixel() !== bandCount) continue;
+			const w = ov.getWidth();
+			const h = ov.getHeight();
+			if (!(w > 0 && h > 0 && w < width)) continue;
+			const sx = width / w;
+			const sy = height / h;
+			overviews.push({ index: i, width: w, height: h, transform: [transform[0], transform[1] * sx, transform[2] * sy, transform[3], transform[4] * sx, transform[5] * sy] });
+			images.set(i, ov);
 		}
-		if (/compression|decoder/i.test(msg)) {
-			throw new RasterError(file, 'unsupported', `unsupported or corrupt compression (Compression ${compression}: ${msg})`);
-		}
-		throw new RasterError(file, 'corrupt', `corrupt pixel data (Compression ${compression}: ${msg})`);
+	} catch {
+		overviews.length = 0; // unreadable overviews: use the full-resolution image only
 	}
-	if (!raw || raw.length !== width * height) {
-		throw new RasterError(file, 'corrupt', 'corrupt pixel data (wrong number of samples)');
-	}
+	overviews.sort((a, b) => b.width - a.width);
 
 	const wide = bitsPerSample === 64 || (sampleFormat !== 3 && bitsPerSample === 32);
-	let data: Float32Array | Float64Array;
-	if (wide) data = raw instanceof Float64Array ? raw : Float64Array.from(raw);
-	else data = raw instanceof Float32Array ? raw : Float32Array.from(raw);
+	const blockWidth = image.getTileWidth();
+	const blockHeight = image.getTileHeight();
 
-	return { width, height, data, nodata, epsg, transform, bandCount, band: bandNo, sampleFormat, bitsPerSample, compression, tiled };
+	async function* blocks(o: BlockReadOptions = {}): AsyncGenerator<RasterBlock> {
+		const img = images.get(o.image ?? 0);
+		if (!img) throw new RangeError(`image ${o.image} is not an overview of ${file}`);
+		const W = img.getWidth();
+		const H = img.getHeight();
+		const tw = img.getTileWidth();
+		const th = img.getTileHeight();
+		const tilesAcross = Math.ceil(W / tw);
+		const tileRows = Math.ceil(H / th);
+		const planar = Number((await loadTag(img, 'PlanarConfiguration')) ?? 1);
+		const spp = img.getSamplesPerPixel();
+		const bytesPerSample = bitsPerSample / 8;
+		const sameSizes = Array.from({ length: spp }, (_, k) => img.getBitsPerSample(k)).every((b) => b === bitsPerSample);
+		const stride = planar === 2 ? 1 : spp;
+		const sampleOffset = planar === 2 ? 0 : bandNo - 1;
+		const fast = img.littleEndian === littleEndianHost && sameSizes && !(sampleFormat === 3 && bitsPerSample === 16);
+		const reader = img.getReaderForSample(bandNo - 1);
+		const sampleByteOffset = planar === 2 ? 0 : Array.from({ length: bandNo - 1 }, (_, k) => img.getBitsPerSample(k) / 8).reduce((a, b) => a + b, 0);
+		const pixelBytes = planar === 2 ? bytesPerSample : Array.from({ length: spp }, (_, k) => img.getBitsPerSample(k) / 8).reduce((a, b) => a + b, 0);
+		const tileBytes = tw * th * pixelBytes;
+		let inner: { decode(b: ArrayBuffer): Promise<ArrayBuffer> };
+		try {
+			const params = await decoderParameters(img, compression);
+			inner = o.pool ? o.pool.bindParameters(compression, params) : ((await (await loadGeotiff()).getDecoder(compression, params as never)) as unknown as typeof inner);
+		} catch (e) {
+			throw new RasterError(file, 'unsupported', `unsupported or corrupt compression (Compression ${compression}: ${errorText(e)})`);
+		}
+		// The per-block check runs here, on each block's stored bytes, before it is decoded.
+		const decoderFor = (ty: number) => {
+			// Tiles are whole at the edges; the last strip holds only the rows that are left.
+			const decodedBytes = img.isTiled ? tileBytes : tw * Math.min(th, H - ty * th) * pixelBytes;
+			return {
+				decode: (buffer: ArrayBuffer) => {
+					checkBlockBytes(file, compression, buffer.byteLength, decodedBytes);
+					return inner.decode(buffer);
+				}
+			};
+		};
+		const wantRows = o.rowsPerBlock ?? Math.max(1, Math.ceil(1_048_576 / W));
+		const groupTiles = Math.max(1, Math.ceil(wantRows / th));
+
+		const fetchGroup = async (ty0: number): Promise<RasterBlock> => {
+			const ty1 = Math.min(tileRows, ty0 + groupTiles);
+			const row0 = ty0 * th;
+			const rows = Math.min(H, ty1 * th) - row0;
+			const data = wide ? new Float64Array(W * rows) : new Float32Array(W * rows);
+			const jobs: Promise<void>[] = [];
+			for (let ty = ty0; ty < ty1; ty++) {
+				for (let tx = 0; tx < tilesAcross; tx++) {
+					jobs.push(
+						(img.getTileOrStrip(tx, ty, planar === 2 ? bandNo - 1 : 0, decoderFor(ty) as never) as Promise<{ data: ArrayBuffer }>).then(({ data: buf }) => {
+							const c0 = tx * tw;
+							const cw = Math.min(tw, W - c0);
+							const r0 = ty * th - row0;
+							const rh = Math.min(th, H - ty * th);
+							const view = fast && buf.byteLength % bytesPerSample === 0 ? fastView(buf, sampleFormat, bitsPerSample) : null;
+							if (view && view.length >= (rh - 1) * tw * stride + cw * stride) {
+								for (let r = 0; r < rh; r++) {
+									const src = r * tw * stride + sampleOffset;
+									const dst = (r0 + r) * W + c0;
+									if (stride === 1) data.set(view.subarray(src, src + cw), dst);
+									else for (let c = 0; c < cw; c++) data[dst + c] = view[src + c * stride];
+								}
+							} else {
+								const dv = new DataView(buf);
+								for (let r = 0; r < rh; r++) {
+									for (let c = 0; c < cw; c++) {
+										const at = (r * tw + c) * pixelBytes + sampleByteOffset;
+										data[(r0 + r) * W + c0 + c] = at + bytesPerSample <= buf.byteLength ? reader.call(dv, at, img.littleEndian) : Number.NaN;
+									}
+								}
+							}
+						})
+					);
+				}
+			}
+			try {
+				await Promise.all(jobs);
+			} catch (e) {
+				if (e instanceof RasterError) throw e;
+				const msg = errorText(e);
+				if (msg.includes(BLOCK_OVERFLOW)) {
+					throw new RasterError(file, 'unsafe-blocks', `a compressed block inflates to more than the block can hold: the file is corrupt or built to exhaust memory`);
+				}
+				if (/compression|decoder/i.test(msg)) {
+					throw new RasterError(file, 'unsupported', `unsupported or corrupt compression (Compression ${compression}: ${msg})`);
+				}
+				throw new RasterError(file, 'corrupt', `corrupt pixel data (Compression ${compression}: ${msg})`);
+			}
+			return { row0, width: W, height: rows, data };
+		};
+
+		let next: Promise<RasterBlock> | null = fetchGroup(0);
+		for (let ty = 0; ty < tileRows; ty += groupTiles) {
+			const current: Promise<RasterBlock> = next!;
+			next = ty + groupTiles < tileRows ? fetchGroup(ty + groupTiles) : null;
+			// A failed prefetch must not surface as an unhandled rejection while this block is used.
+			next?.catch(() => undefined);
+			yield await current;
+		}
+	}
+
+	return {
+		width,
+		height,
+		nodata,
+		epsg,
+		transform,
+		bandCount,
+		band: bandNo,
+		sampleFormat,
+		bitsPerSample,
+		compression,
+		tiled,
+		blockWidth,
+		blockHeight,
+		overviews,
+		blocks,
+		async close() {
+			await tiff.close?.();
+		}
+	};
+}
+
+/**
+ * A pool of `size` decoder threads for a compressed source (geotiff's Pool), or null when the
+ * source is not compressed (its blocks are used as read). Destroy it when done.
+ */
+export async function decoderPoolFor(source: Pick<RasterHeader, 'compression'>, size = 2): Promise<DecoderPool | null> {
+	if (source.compression === 1) return null;
+	const { Pool } = await loadGeotiff();
+	return new Pool(size) as unknown as DecoderPool;
+}
+
+/** Read one band of a GeoTIFF held in memory, whole. Large rasters: use openGeoTiff's blocks. */
+export async function readGeoTiff(buffer: ArrayBuffer, opts: ReadGeoTiffOptions = {}): Promise<RasterBand> {
+	const source = await openGeoTiff(buffer, opts);
+	const { width, height } = source;
+	const wide = source.bitsPerSample === 64 || (source.sampleFormat !== 3 && source.bitsPerSample === 32);
+	const data = wide ? new Float64Array(width * height) : new Float32Array(width * height);
+	for await (const block of source.blocks()) data.set(block.data, block.row0 * width);
+	await source.close();
+	const { blocks: _b, close: _c, blockWidth: _w, blockHeight: _h, overviews: _o, ...header } = source;
+	return { ...header, data };
 }
 
 /**

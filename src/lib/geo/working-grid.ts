@@ -120,7 +120,7 @@ export function buildCellToPixel(geom: GridGeometry, raster: RasterBand, toSourc
 }
 
 /** Size of one source pixel in working metres at source pixel (col, row): sqrt of its area. */
-function pixelSizeMetres(raster: RasterBand, toWork: PointTransform, col: number, row: number): number {
+export function pixelSizeMetres(raster: RasterGeometry, toWork: PointTransform, col: number, row: number): number {
 	const p = (c: number, r: number) => {
 		const [x, y] = pixelToCrs(raster.transform, c, r);
 		return toWork(x, y);
@@ -136,18 +136,43 @@ function isValid(v: number, nodata: number | null): boolean {
 	return v === v && v >= 0 && v !== nodata && Number.isFinite(v);
 }
 
-/** Resample a raster band into a WorkingGrid. Pure: the raster is not modified. */
 function hasValidCell(raster: RasterBand): boolean {
 	const nodata = storedNodata(raster);
 	for (let i = 0; i < raster.data.length; i++) if (isValid(raster.data[i], nodata)) return true;
 	return false;
 }
 
-export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = {}): WorkingGridResult {
-	const sampling = opts.sampling ?? 'bilinear';
-	const maxCells = opts.maxCells ?? 64_000_000;
-	const maxErr = opts.maxControlError ?? 0.05;
+/** The error for a raster with nothing to place on (the same words for every way of reading it). */
+export function noValidCells(): WorkingGridError {
+	return new WorkingGridError('the raster has no valid cells: every cell is nodata, NaN or negative');
+}
 
+/** What planning a grid needs of a raster: its size, georeferencing and CRS, no samples. */
+export type RasterGeometry = Pick<RasterBand, 'width' | 'height' | 'transform' | 'epsg'>;
+
+/** A working grid's frame: CRS, transforms, geometry and the study area/exclusions in working metres. */
+export interface WorkingFrame {
+	epsg: number;
+	sameCrs: boolean;
+	toWork: PointTransform;
+	toSource: PointTransform;
+	geom: GridGeometry;
+	/** The raster's pixel size in working metres (√ of a central pixel's area). */
+	srcPixelM: number;
+	studyPolygons: Ring[][] | null;
+	exclusionPolygons: Ring[][];
+}
+
+/** The cell size, given the raster's pixel size, the extent to cover (working metres) and whether the CRS is the raster's. */
+export type CellSizePicker = (pixelM: number, extentWidth: number, extentHeight: number, sameCrs: boolean) => number;
+
+/**
+ * Frame of a working grid over a raster: working CRS (opts.crs, else chooseWorkingCrs), the
+ * raster's extent clipped to the study area's bounding box, cells of `pickCell`'s size aligned with
+ * the raster's pixel corners when the CRS is the raster's own.
+ */
+export function planFrame(raster: RasterGeometry, opts: Pick<WorkingGridOptions, 'crs' | 'studyArea' | 'exclusions' | 'maxCells'>, pickCell: CellSizePicker): WorkingFrame {
+	const maxCells = opts.maxCells ?? 64_000_000;
 	// Centre of the area: the study area's bounding box if given, else the raster's centre.
 	const toLonLat = transformer(raster.epsg, 4326).forward;
 	let centre: [number, number];
@@ -186,20 +211,27 @@ export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = 
 	}
 
 	const srcPixelM = pixelSizeMetres(raster, toWork, raster.width / 2, raster.height / 2);
-	let cellSize = opts.cellSize ?? srcPixelM;
-	if (opts.cellSize === undefined && !sameCrs) cellSize = Number(cellSize.toPrecision(3));
-	if (!(cellSize > 0) || !Number.isFinite(cellSize)) throw new WorkingGridError(`cell size ${cellSize} m is not a positive number`);
+	const checkCell = (c: number) => {
+		if (!(c > 0) || !Number.isFinite(c)) throw new WorkingGridError(`cell size ${c} m is not a positive number`);
+		return c;
+	};
+	let cellSize = checkCell(pickCell(srcPixelM, maxX - minX, maxY - minY, sameCrs));
 
 	// Study area and exclusions in working metres; the study area also clips the extent.
-	const densify = cellSize * 4;
 	const projLonLat = transformer(4326, epsg).forward;
-	const studyPolygons = opts.studyArea && opts.studyArea.length > 0 ? opts.studyArea.map((p) => projectRings(p, projLonLat, densify)) : null;
+	const project = (polys: ReadonlyArray<readonly Ring[]> | undefined, size: number) => (polys ?? []).map((p) => projectRings(p, projLonLat, size * 4));
+	let studyPolygons = opts.studyArea && opts.studyArea.length > 0 ? project(opts.studyArea, cellSize) : null;
 	const studyBox = studyPolygons ? boundsOf([], studyPolygons) : null;
 	if (studyBox) {
 		const [sMinX, sMinY, sMaxX, sMaxY] = studyBox;
 		minX = Math.max(minX, sMinX); maxX = Math.min(maxX, sMaxX);
 		minY = Math.max(minY, sMinY); maxY = Math.min(maxY, sMaxY);
 		if (!(maxX > minX && maxY > minY)) throw new WorkingGridError('the study area does not overlap the raster');
+		const clipped = checkCell(pickCell(srcPixelM, maxX - minX, maxY - minY, sameCrs));
+		if (clipped !== cellSize) {
+			cellSize = clipped;
+			studyPolygons = project(opts.studyArea, cellSize);
+		}
 	}
 
 	// Align with the raster's own pixel corners when it is already in the working CRS.
@@ -212,7 +244,16 @@ export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = 
 	if (width * height > maxCells) {
 		throw new WorkingGridError(`${width}×${height} cells of ${cellSize} m is over the limit of ${maxCells} cells; choose a larger cell size or a smaller study area`);
 	}
-	const geom: GridGeometry = { width, height, x0, y0, cellSize };
+	return { epsg, sameCrs, toWork, toSource, geom: { width, height, x0, y0, cellSize }, srcPixelM, studyPolygons, exclusionPolygons: project(opts.exclusions, cellSize) };
+}
+
+/** Resample a raster band into a WorkingGrid. Pure: the raster is not modified. */
+export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = {}): WorkingGridResult {
+	const sampling = opts.sampling ?? 'bilinear';
+	const maxErr = opts.maxControlError ?? 0.05;
+	const frame = planFrame(raster, opts, (pixelM, _w, _h, sameCrs) => opts.cellSize ?? (sameCrs ? pixelM : Number(pixelM.toPrecision(3))));
+	const { epsg, toSource, geom, srcPixelM, studyPolygons } = frame;
+	const { width, height, x0, y0, cellSize } = geom;
 
 	// Control lattice, refined until its measured error is small enough.
 	const cellsPerPixel = srcPixelM / cellSize;
@@ -227,7 +268,7 @@ export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = 
 
 	// Sample the raster.
 	const n = width * height;
-	if (!hasValidCell(raster)) throw new WorkingGridError('the raster has no valid cells: every cell is nodata, NaN or negative');
+	if (!hasValidCell(raster)) throw noValidCells();
 	const mass = new Float64Array(n);
 	const feasible = new Uint8Array(n);
 	const { data } = raster;
@@ -283,8 +324,8 @@ export function buildWorkingGrid(raster: RasterBand, opts: WorkingGridOptions = 
 		}
 		for (let i = 0; i < n; i++) if (inside[i] === 0) { mass[i] = 0; feasible[i] = 0; }
 	}
-	for (const polygon of opts.exclusions ?? []) {
-		const out = rasterizeRings(geom, projectRings(polygon, projLonLat, densify));
+	for (const polygon of frame.exclusionPolygons) {
+		const out = rasterizeRings(geom, polygon);
 		for (let i = 0; i < n; i++) if (out[i] === 1) { mass[i] = 0; feasible[i] = 0; }
 	}
 

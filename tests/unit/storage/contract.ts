@@ -37,6 +37,24 @@ export function objectStoreContract(name: string, getStore: () => ObjectStore, o
 			expect(await store.exists(key)).toBe(true);
 		});
 
+		it('openRanges reads byte ranges: fewer at the end, none past it', async () => {
+			const store = getStore();
+			const key = newObjectKey('contract');
+			await store.put(key, new TextEncoder().encode('0123456789'));
+			const reader = await store.openRanges(key);
+			try {
+				const text = async (o: number, n: number) => new TextDecoder().decode(await reader.read(o, n));
+				expect(await text(2, 3)).toBe('234');
+				expect(await text(0, 10)).toBe('0123456789');
+				expect(await text(8, 5)).toBe('89');
+				expect(await text(12, 4)).toBe('');
+				await expect(reader.read(-1, 4)).rejects.toBeInstanceOf(RangeError);
+			} finally {
+				await reader.close();
+			}
+			await expect(store.openRanges(newObjectKey('contract'))).rejects.toBeInstanceOf(ObjectNotFound);
+		});
+
 		it('get streams the stored bytes', async () => {
 			const store = getStore();
 			const key = newObjectKey('contract/nested/deeper');

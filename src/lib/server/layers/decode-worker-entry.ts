@@ -1,17 +1,35 @@
 /**
- * Decodes one uploaded raster in a worker thread (see ./decode.ts): receives { bytes, options } as
- * workerData and posts { type: 'done', result } with the band's samples transferred, or
+ * Decodes one uploaded raster in a worker thread (see ./decode.ts): receives { options } as
+ * workerData, asks the parent for byte ranges ({ type: 'read', id, offset, length } answered by
+ * { id, bytes }), runs processLayer and posts { type: 'done', result }, or
  * { type: 'rejected', code, message } for a file that cannot be a layer.
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { LayerRejected } from './errors';
-import { loadLayer, type InspectOptions } from './inspect';
+import { processLayer, type ProcessOptions } from './inspect';
 
-const job = workerData as { bytes: ArrayBuffer; options: InspectOptions };
+const job = workerData as { options: ProcessOptions };
+const port = parentPort!;
+const pending = new Map<number, (bytes: Uint8Array) => void>();
+let next = 0;
+port.on('message', (msg: { id: number; bytes: Uint8Array }) => {
+	pending.get(msg.id)?.(msg.bytes);
+	pending.delete(msg.id);
+});
+const reader = {
+	read: (offset: number, length: number) =>
+		new Promise<Uint8Array>((resolve) => {
+			const id = next++;
+			pending.set(id, resolve);
+			port.postMessage({ type: 'read', id, offset, length });
+		})
+};
 try {
-	const result = await loadLayer(new Uint8Array(job.bytes), job.options);
-	parentPort!.postMessage({ type: 'done', result }, [result.band.data.buffer as ArrayBuffer]);
+	const result = await processLayer(reader, job.options);
+	port.postMessage({ type: 'done', result });
 } catch (err) {
-	if (err instanceof LayerRejected) parentPort!.postMessage({ type: 'rejected', code: err.code, message: err.message });
-	else parentPort!.postMessage({ type: 'error', message: err instanceof Error ? err.message : String(err) });
+	if (err instanceof LayerRejected) port.postMessage({ type: 'rejected', code: err.code, message: err.message });
+	else port.postMessage({ type: 'error', message: err instanceof Error ? err.message : String(err) });
+} finally {
+	port.unref();
 }

@@ -3,21 +3,23 @@
  * (a TIFF, georeferenced, north-up, a known CRS, some valid cells, within the size limit) and
  * describe it: size, CRS, resolution, footprint in WGS 84, nodata, statistics and a histogram.
  *
- * Uploads are stored as files (see ../storage); inspection works on the whole file in memory. That
- * is fine up to the pixel limit: the default of 25 million pixels is at most 200 MB of Float64
- * samples plus the file itself, so the route that accepts uploads should cap the request body at
- * about the same size. Larger rasters should be tiled or resampled before upload.
+ * processLayer streams: it reads the stored file block row by block row (from a path, a buffer or
+ * object storage's byte ranges) and builds the statistics, histogram and screen-sized preview in
+ * that one pass; memory is the preview plus two block rows, whatever the raster's size.
+ * loadLayer reads a small band whole, for code that needs its samples.
  */
-import { readGeoTiff, RasterError, pixelToCrs, type RasterBand } from '../../geo/geotiff';
+import { decoderPoolFor, openGeoTiff, readGeoTiff, RasterError, pixelToCrs, type DecoderPool, type GeoTiffInput, type RasterBand, type RasterHeader } from '../../geo/geotiff';
 import { CrsError, isProjected, transformer } from '../../geo/crs';
 import type { GridBand } from '../../importance/grid';
 import { LayerRejected, type LayerRejectedCode } from './errors';
-import { bandHistogram, bandStats, type BandStats, type Histogram } from './stats';
+import { BandSummary, type BandStats, type Histogram } from './stats';
+import { PREVIEW_MAX_SIZE, PreviewAccumulator, previewFromValues, previewSize, type Preview } from './preview';
 
-export const DEFAULT_MAX_PIXELS = 25_000_000;
+/** Largest band accepted, in pixels (the same default as the upload limit LAYER_MAX_PIXELS). */
+export const DEFAULT_MAX_PIXELS = 250_000_000;
 
 export interface InspectOptions {
-	/** Largest width·height accepted; default 25 million. */
+	/** Largest width·height accepted; default 250 million. */
 	maxPixels?: number;
 	/** 1-based band number; default 1. */
 	band?: number;
@@ -77,7 +79,7 @@ function toArrayBuffer(input: ArrayBuffer | Uint8Array): ArrayBuffer {
 }
 
 /** The raster's outline in WGS 84: 4 corners for the polygon, `perSide` points a side for the bbox. */
-function footprintOf(band: RasterBand, name: string, perSide = 16): LayerMetadata['footprint'] {
+function footprintOf(band: Pick<RasterHeader, 'epsg' | 'width' | 'height' | 'transform'>, name: string, perSide = 16): LayerMetadata['footprint'] {
 	let toLonLat: (x: number, y: number) => [number, number];
 	try {
 		toLonLat = band.epsg === 4326 ? (x, y) => [x, y] : transformer(band.epsg, 4326).forward;
@@ -120,18 +122,14 @@ function round(v: number): number {
 	return Math.round(v * 1e9) / 1e9;
 }
 
-/** Read and check one band of an upload; the band is returned for previews and importance. */
-export async function loadLayer(input: ArrayBuffer | Uint8Array, opts: InspectOptions = {}): Promise<InspectedLayer> {
-	const name = opts.name?.trim() || 'The file';
-	const maxPixels = opts.maxPixels ?? DEFAULT_MAX_PIXELS;
-	if (input.byteLength === 0) throw new LayerRejected('not-tiff', `${name}: the file is empty`);
-	let band: RasterBand;
-	try {
-		band = await readGeoTiff(toArrayBuffer(input), { band: opts.band, name, maxPixels });
-	} catch (e) {
-		if (e instanceof RasterError) throw new LayerRejected(REASON_CODE[e.reason] ?? 'corrupt', e.message);
-		throw new LayerRejected('corrupt', `${name}: the file could not be read as a GeoTIFF`);
-	}
+function rejected(e: unknown, name: string): LayerRejected {
+	if (e instanceof LayerRejected) return e;
+	if (e instanceof RasterError) return new LayerRejected(REASON_CODE[e.reason] ?? 'corrupt', e.message);
+	return new LayerRejected('corrupt', `${name}: the file could not be read as a GeoTIFF`);
+}
+
+/** A usable layer is north-up, in a CRS we can convert: checked on the header alone. */
+function checkHeader(band: Pick<RasterHeader, 'transform' | 'epsg'>, name: string): 'metre' | 'degree' {
 	const t = band.transform;
 	if (t[2] !== 0 || t[4] !== 0) {
 		throw new LayerRejected('rotated', `${name}: the raster is rotated or sheared; warp it to a north-up grid before upload`);
@@ -139,17 +137,20 @@ export async function loadLayer(input: ArrayBuffer | Uint8Array, opts: InspectOp
 	if (!(t[1] > 0) || !(t[5] < 0)) {
 		throw new LayerRejected('rotated', `${name}: the raster is flipped (rows must run north to south, columns west to east)`);
 	}
-	const stats = bandStats(band.data, band.nodata);
-	if (stats.validCount === 0) {
-		throw new LayerRejected('all-nodata', `${name}: every cell of band ${band.band} is nodata${band.nodata !== null ? ` (${band.nodata})` : ''}; there is nothing to use`);
-	}
-	let units: 'metre' | 'degree';
 	try {
-		units = isProjected(band.epsg) ? 'metre' : 'degree';
+		return isProjected(band.epsg) ? 'metre' : 'degree';
 	} catch (e) {
 		throw new LayerRejected('unknown-crs', `${name}: ${e instanceof Error ? e.message : 'unknown CRS'}`);
 	}
-	const metadata: LayerMetadata = {
+}
+
+function describeLayer(band: Omit<RasterBand, 'data'>, name: string, units: 'metre' | 'degree', summary: BandSummary): LayerMetadata {
+	const stats = summary.stats();
+	if (stats.validCount === 0) {
+		throw new LayerRejected('all-nodata', `${name}: every cell of band ${band.band} is nodata${band.nodata !== null ? ` (${band.nodata})` : ''}; there is nothing to use`);
+	}
+	const t = band.transform;
+	return {
 		width: band.width,
 		height: band.height,
 		bandCount: band.bandCount,
@@ -161,9 +162,69 @@ export async function loadLayer(input: ArrayBuffer | Uint8Array, opts: InspectOp
 		footprint: footprintOf(band, name),
 		nodata: band.nodata,
 		stats,
-		histogram: bandHistogram(band.data, band.nodata, stats.min, stats.max)
+		histogram: summary.histogram()
 	};
-	return { metadata, band };
+}
+
+/** Read and check one band of an upload, whole; the band is returned for code that needs its samples. */
+export async function loadLayer(input: ArrayBuffer | Uint8Array, opts: InspectOptions = {}): Promise<InspectedLayer> {
+	const name = opts.name?.trim() || 'The file';
+	const maxPixels = opts.maxPixels ?? DEFAULT_MAX_PIXELS;
+	if (input.byteLength === 0) throw new LayerRejected('not-tiff', `${name}: the file is empty`);
+	let band: RasterBand;
+	try {
+		band = await readGeoTiff(toArrayBuffer(input), { band: opts.band, name, maxPixels });
+	} catch (e) {
+		throw rejected(e, name);
+	}
+	const units = checkHeader(band, name);
+	const summary = new BandSummary(band.nodata);
+	summary.add(band.data);
+	return { metadata: describeLayer(band, name, units, summary), band };
+}
+
+export interface ProcessOptions extends InspectOptions {
+	/** Decode compressed tiles in two worker threads; default true. */
+	parallel?: boolean;
+	/** Longest side of the preview; default PREVIEW_MAX_SIZE (512). */
+	previewMaxSize?: number;
+}
+
+export interface ProcessedLayer {
+	metadata: LayerMetadata;
+	preview: Preview;
+}
+
+/**
+ * Check and describe a stored raster in one streamed pass: metadata, statistics, histogram and
+ * the preview. The input is read block row by block row, never whole.
+ */
+export async function processLayer(input: GeoTiffInput, opts: ProcessOptions = {}): Promise<ProcessedLayer> {
+	const name = opts.name?.trim() || 'The file';
+	const maxPixels = opts.maxPixels ?? DEFAULT_MAX_PIXELS;
+	if (input instanceof ArrayBuffer && input.byteLength === 0) throw new LayerRejected('not-tiff', `${name}: the file is empty`);
+	try {
+		const source = await openGeoTiff(input, { band: opts.band, name, maxPixels });
+		let pool: DecoderPool | null = null;
+		try {
+			if (opts.parallel ?? true) pool = await decoderPoolFor(source);
+			const units = checkHeader(source, name);
+			const summary = new BandSummary(source.nodata);
+			const size = previewSize(source.width, source.height, opts.previewMaxSize ?? PREVIEW_MAX_SIZE);
+			const preview = new PreviewAccumulator(source.width, source.height, size.width, size.height, source.nodata);
+			for await (const block of source.blocks({ pool })) {
+				summary.add(block.data);
+				preview.add(block.row0, block.data);
+			}
+			const metadata = describeLayer(source, name, units, summary);
+			return { metadata, preview: previewFromValues(preview.values(), size.width, size.height) };
+		} finally {
+			await pool?.destroy();
+			await source.close();
+		}
+	} catch (e) {
+		throw rejected(e, name);
+	}
 }
 
 /** Metadata of an upload, or LayerRejected with a message for the user. */

@@ -36,31 +36,73 @@ function valid(v: number, nodata: number | null): boolean {
 	return Number.isFinite(v) && (nodata === null || v !== nodata);
 }
 
-/** Mean of valid source cells in each output pixel's block (NaN where the block has none). */
-export function downsample(src: PreviewSource, outW: number, outH: number): Float64Array {
-	const { width, height, data, nodata } = src;
-	const out = new Float64Array(outW * outH);
-	for (let j = 0; j < outH; j++) {
-		const r0 = Math.floor((j * height) / outH);
-		const r1 = Math.max(r0 + 1, Math.floor(((j + 1) * height) / outH));
-		for (let i = 0; i < outW; i++) {
-			const c0 = Math.floor((i * width) / outW);
-			const c1 = Math.max(c0 + 1, Math.floor(((i + 1) * width) / outW));
-			let sum = 0;
-			let n = 0;
-			for (let r = r0; r < r1; r++) {
-				for (let c = c0; c < c1; c++) {
-					const v = data[r * width + c];
-					if (valid(v, nodata)) {
-						sum += v;
-						n++;
-					}
-				}
+/** Index of the output pixel each of `n` source rows (or columns) falls in, for `out` output pixels (out ≤ n). */
+function blockIndex(n: number, out: number): Int32Array {
+	const map = new Int32Array(n).fill(-1);
+	for (let j = 0; j < out; j++) {
+		const a = Math.floor((j * n) / out);
+		const b = Math.max(a + 1, Math.floor(((j + 1) * n) / out));
+		for (let k = a; k < b && k < n; k++) map[k] = j;
+	}
+	return map;
+}
+
+/**
+ * Box-averaged preview values built from a band's rows as they stream by: `add` whole rows from
+ * `row0`; `values` is the mean of valid source cells in each output pixel's block (NaN where the
+ * block has none). Memory: 16 bytes an output pixel plus one index per source row and column.
+ */
+export class PreviewAccumulator {
+	private readonly sum: Float64Array;
+	private readonly count: Float64Array;
+	private readonly rowMap: Int32Array;
+	private readonly colMap: Int32Array;
+
+	constructor(
+		private readonly width: number,
+		height: number,
+		readonly outW: number,
+		readonly outH: number,
+		private readonly nodata: number | null
+	) {
+		this.sum = new Float64Array(outW * outH);
+		this.count = new Float64Array(outW * outH);
+		this.rowMap = blockIndex(height, outH);
+		this.colMap = blockIndex(width, outW);
+	}
+
+	add(row0: number, data: Float32Array | Float64Array | ArrayLike<number>): void {
+		const W = this.width;
+		const rows = data.length / W;
+		const nd = this.nodata === null ? NaN : data instanceof Float32Array ? Math.fround(this.nodata) : this.nodata;
+		const { sum, count, colMap } = this;
+		for (let r = 0; r < rows; r++) {
+			const j = this.rowMap[row0 + r];
+			if (j < 0) continue;
+			const base = j * this.outW;
+			const off = r * W;
+			for (let c = 0; c < W; c++) {
+				const v = data[off + c];
+				if (!(v > -Infinity && v < Infinity) || v === nd) continue;
+				const k = base + colMap[c];
+				sum[k] += v;
+				count[k]++;
 			}
-			out[j * outW + i] = n > 0 ? sum / n : NaN;
 		}
 	}
-	return out;
+
+	values(): Float64Array {
+		const out = new Float64Array(this.sum.length);
+		for (let k = 0; k < out.length; k++) out[k] = this.count[k] > 0 ? this.sum[k] / this.count[k] : NaN;
+		return out;
+	}
+}
+
+/** Mean of valid source cells in each output pixel's block (NaN where the block has none). */
+export function downsample(src: PreviewSource, outW: number, outH: number): Float64Array {
+	const acc = new PreviewAccumulator(src.width, src.height, outW, outH, src.nodata);
+	acc.add(0, src.data);
+	return acc.values();
 }
 
 export function previewSize(width: number, height: number, maxSize = PREVIEW_MAX_SIZE): { width: number; height: number } {
@@ -75,7 +117,11 @@ export function renderPreview(band: PreviewSource, opts: PreviewOptions = {}): P
 	const maxSize = opts.maxSize ?? PREVIEW_MAX_SIZE;
 	if (!Number.isInteger(maxSize) || maxSize < 1) throw new RangeError(`maxSize must be a positive integer, not ${maxSize}`);
 	const size = previewSize(band.width, band.height, maxSize);
-	const values = downsample(band, size.width, size.height);
+	return previewFromValues(downsample(band, size.width, size.height), size.width, size.height, opts);
+}
+
+/** The preview PNG of box-averaged values (from downsample or a PreviewAccumulator). */
+export function previewFromValues(values: Float64Array, width: number, height: number, opts: Pick<PreviewOptions, 'ramp' | 'range'> = {}): Preview {
 	let min = opts.range?.min ?? Infinity;
 	let max = opts.range?.max ?? -Infinity;
 	if (!opts.range) {
@@ -89,7 +135,7 @@ export function renderPreview(band: PreviewSource, opts: PreviewOptions = {}): P
 		min = NaN; // no valid cell: an all-transparent preview
 		max = NaN;
 	}
-	return { png: rampPng(values, size.width, size.height, min, max, opts.ramp), width: size.width, height: size.height, min, max };
+	return { png: rampPng(values, width, height, min, max, opts.ramp), width, height, min, max };
 }
 
 /**

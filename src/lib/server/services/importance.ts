@@ -5,7 +5,9 @@
  *
  * Grid of a surface: every layer of the recipe is brought onto ONE grid, the grid of its finest
  * layer (smallest cell area in metres; ties: the first listed), coarsened by an integer factor
- * when it would exceed MAX_SURFACE_CELLS. Layers in another CRS are reprojected (nearest
+ * when it would exceed MAX_SURFACE_CELLS. Each layer is read from storage tile by tile and
+ * averaged over blocks of pixels to at most MAX_SURFACE_CELLS first (layerGridBand), so no layer
+ * is ever held at full size. Layers in another CRS are reprojected (nearest
  * neighbour, reprojectToGrid), layers in the same CRS are aligned (alignToGrid). Cells outside a
  * layer's extent are nodata, and nodata in any layer is nodata in the surface (combineLayers).
  *
@@ -84,17 +86,30 @@ async function readyLayer(db: Knex, networkId: number, layerId: string): Promise
 /** The GeoTIFF reader, loaded on first use (see the same note in ./layers). */
 const inspectModule = () => import('../layers/inspect');
 
-/** A stored layer's band as a grid (reads and checks the stored GeoTIFF again). */
-export async function layerGridBand(store: ObjectStore, layer: LayerRow): Promise<GridBand> {
+/**
+ * A stored layer's band as a grid of at most `maxCells` cells, read from storage tile by tile:
+ * a band larger than that is averaged over f × f blocks of pixels (f = ⌈√(pixels / maxCells)⌉, the
+ * factor targetGrid coarsens the finest layer by), so no layer is ever held at full size.
+ */
+export async function layerGridBand(store: ObjectStore, layer: LayerRow, maxCells = MAX_SURFACE_CELLS): Promise<GridBand> {
 	if (!layer.storage_key) throw new ServiceError(422, 'layer_not_ready', `Layer "${layer.name}" has no stored file.`);
-	const bytes = await store.getBuffer(layer.storage_key);
-	const { loadLayer, toGridBand } = await inspectModule();
+	const [{ toGridBand }, { openGeoTiff, RasterError }, { blockAverage }] = await Promise.all([inspectModule(), import('../../geo/geotiff'), import('../../geo/aggregate')]);
+	const reader = await store.openRanges(layer.storage_key);
 	try {
-		const { band } = await loadLayer(bytes, { band: layer.band, name: layer.name, maxPixels: Number.MAX_SAFE_INTEGER });
-		return toGridBand(band);
+		const source = await openGeoTiff(reader, { band: layer.band, name: layer.name, maxPixels: Number.MAX_SAFE_INTEGER });
+		try {
+			const factor = Math.max(1, Math.ceil(Math.sqrt((source.width * source.height) / maxCells)));
+			const avg = await blockAverage(source, factor);
+			const { blocks: _b, close: _c, blockWidth: _w, blockHeight: _h, overviews: _o, ...header } = source;
+			return toGridBand({ ...header, width: avg.width, height: avg.height, transform: avg.transform, data: avg.data, nodata: null });
+		} finally {
+			await source.close();
+		}
 	} catch (e) {
-		if (e instanceof LayerRejected) throw new ServiceError(422, 'layer_unreadable', e.message);
+		if (e instanceof LayerRejected || e instanceof RasterError) throw new ServiceError(422, 'layer_unreadable', e.message);
 		throw e;
+	} finally {
+		await reader.close();
 	}
 }
 

@@ -6,11 +6,13 @@
  * and queues a layer-processing job, which calls processLayer. Whatever refuses it (too large, not
  * a TIFF, no georeferencing, unknown CRS, all nodata, band missing, too many pixels, corrupt
  * compression) removes the stored objects and the row again: a refused upload leaves nothing
- * behind.
+ * behind. Processing reads the stored file tile by tile (processStoredLayer) and builds the
+ * statistics, histogram and preview in one pass: memory stays at a few tiles and the preview.
  *
  * Limits (environment, read by layerLimits):
  *   LAYER_MAX_BYTES   largest upload in bytes; default 524288000 (500 MiB)
- *   LAYER_MAX_PIXELS  largest width·height of the band; default 25 000 000
+ *   LAYER_MAX_PIXELS  largest width·height of the band; default 250 000 000 (memory does not grow
+ *                     with it: it bounds the time one upload may take)
  * The body limit of the server itself (BODY_SIZE_LIMIT, 600 MiB under npm start) must be larger
  * than LAYER_MAX_BYTES, so that our own message answers an oversized upload.
  */
@@ -18,8 +20,7 @@ import { Readable } from 'node:stream';
 import type { Knex } from 'knex';
 import { z } from 'zod';
 import { LayerRejected } from '../layers/errors';
-import { decodeLayer } from '../layers/decode';
-import { renderPreview } from '../layers/preview';
+import { processStoredLayer } from '../layers/decode';
 import { newObjectKey, type ObjectStore } from '../storage/object-store';
 import { recordAudit } from '../repositories/audit';
 import { deleteLayerRow, findLayer, insertLayer, listLayers, updateLayer, type LayerRow } from '../repositories/layers';
@@ -31,8 +32,8 @@ import { enqueueJob, jobView, type JobView } from '../jobs/queue';
 /** The job kind that processes a stored upload (see ../jobs/kinds/layer-processing.ts). */
 const LAYER_PROCESSING = 'layer-processing';
 
-/** inspect.ts's default pixel limit (25 million), repeated so that this module loads without geotiff. */
-const DEFAULT_MAX_PIXELS = 25_000_000;
+/** Largest band of an upload, in pixels: 250 million (a 500 MB file of Float16 samples). */
+export const DEFAULT_LAYER_MAX_PIXELS = 250_000_000;
 
 const DEFAULT_LAYER_MAX_BYTES = 500 * 1024 * 1024;
 
@@ -53,7 +54,7 @@ function positiveInt(value: string | undefined, fallback: number, name: string):
 export function layerLimits(env: Record<string, string | undefined>): LayerLimits {
 	return {
 		maxBytes: positiveInt(env.LAYER_MAX_BYTES, DEFAULT_LAYER_MAX_BYTES, 'LAYER_MAX_BYTES'),
-		maxPixels: positiveInt(env.LAYER_MAX_PIXELS, DEFAULT_MAX_PIXELS, 'LAYER_MAX_PIXELS'),
+		maxPixels: positiveInt(env.LAYER_MAX_PIXELS, DEFAULT_LAYER_MAX_PIXELS, 'LAYER_MAX_PIXELS'),
 		decodeHeapMb: positiveInt(env.LAYER_DECODE_HEAP_MB, 512, 'LAYER_DECODE_HEAP_MB')
 	};
 }
@@ -148,29 +149,21 @@ export interface LayerAnalysis {
 }
 
 /**
- * The CPU part of processing a layer: decode the band, check it, describe it, render its preview.
+ * The CPU part of processing a layer held in memory: check the band, describe it and render its
+ * preview in one pass over its blocks.
  * Throws LayerRejected for a raster we refuse. Pure (no I/O): the layer-processing job runs it in a
  * worker thread.
  */
 export async function analyseLayerBytes(bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }): Promise<LayerAnalysis> {
 	// The GeoTIFF reader is loaded on first use (see DEVELOPERS.md: geotiff and build-time analysis).
-	const { loadLayer } = await import('../layers/inspect');
-	const { metadata, band } = await loadLayer(bytes, { band: opts.band, name: opts.name, maxPixels: opts.maxPixels });
-	const preview = renderPreview(band);
+	// One streamed pass over the file's blocks: the band is never decoded whole.
+	const { processLayer: processRaster } = await import('../layers/inspect');
+	const buffer = bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength ? (bytes.buffer as ArrayBuffer) : (bytes.slice().buffer as ArrayBuffer);
+	const { metadata, preview } = await processRaster(buffer, { band: opts.band, name: opts.name, maxPixels: opts.maxPixels, parallel: false });
 	return { metadata, png: preview.png };
 }
 
-/**
- * analyseLayerBytes with the decoding in a worker thread of its own, bounded by `heapMb`
- * (decodeLayer: a decompression bomb ends that worker, not this process). The default of
- * processLayer; the layer-processing job passes its pool thread instead.
- */
-export async function decodeAndAnalyse(bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }, heapMb?: number): Promise<LayerAnalysis> {
-	const { metadata, band } = await decodeLayer(bytes, opts, { heapMb });
-	return { metadata, png: renderPreview(band).png };
-}
-
-/** Runs analyseLayerBytes somewhere: a decoding thread by default, the job's pool thread in a worker. */
+/** Runs analyseLayerBytes somewhere (the job's pool thread); without one, processLayer streams from storage. */
 export type LayerAnalyser = (bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }) => Promise<LayerAnalysis>;
 
 /**
@@ -215,15 +208,19 @@ export async function storeLayerUpload(db: Knex, store: ObjectStore, ctx: Upload
  * entry is written with it. A refused raster removes the row and the stored objects (a refused
  * upload leaves nothing behind) and throws ServiceError 422 with the reason.
  */
-export async function processLayer(db: Knex, store: ObjectStore, ctx: UploadContext, layerId: number, limits: LayerLimits, analyse: LayerAnalyser = (b, o) => decodeAndAnalyse(b, o, limits.decodeHeapMb)): Promise<LayerView> {
+export async function processLayer(db: Knex, store: ObjectStore, ctx: UploadContext, layerId: number, limits: LayerLimits, analyse?: LayerAnalyser): Promise<LayerView> {
 	const row = await findLayer(db, ctx.networkId, layerId);
 	if (!row) throw new ServiceError(404, 'not_found', 'No such layer.');
 	if (row.status === 'ready') return layerView(row);
 	if (!row.storage_key) throw new ServiceError(409, 'not_stored', 'The layer has no stored file.');
 	let previewKey: string | null = null;
 	try {
-		const bytes = await store.getBuffer(row.storage_key);
-		const { metadata, png } = await analyse(bytes, { band: row.band, name: row.original_name || row.name, maxPixels: limits.maxPixels });
+		const opts = { band: row.band, name: row.original_name || row.name, maxPixels: limits.maxPixels };
+		// By default the stored file is read tile by tile in a heap-limited worker thread (a
+		// decompression bomb ends that worker, not the server); a given analyser gets the bytes.
+		const { metadata, png } = analyse
+			? await analyse(await store.getBuffer(row.storage_key), opts)
+			: await processStoredLayer(store, row.storage_key, opts, { heapMb: limits.decodeHeapMb }).then((r) => ({ metadata: r.metadata, png: r.preview.png }));
 		previewKey = newObjectKey('previews');
 		await store.put(previewKey, Buffer.from(png.buffer, png.byteOffset, png.byteLength), { contentType: 'image/png' });
 		const done = await db.transaction(async (trx) => {

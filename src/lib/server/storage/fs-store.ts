@@ -6,11 +6,12 @@
  */
 import { randomUUID } from 'node:crypto';
 import { createReadStream, createWriteStream } from 'node:fs';
-import { mkdir, readFile, rename, rm, stat, unlink, writeFile } from 'node:fs/promises';
+import { mkdir, open, readFile, rename, rm, stat, unlink, writeFile } from 'node:fs/promises';
+import type { FileHandle } from 'node:fs/promises';
 import path from 'node:path';
 import type { Readable } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
-import { InvalidObjectKey, ObjectNotFound, validateKey, type ObjectStore, type PutOptions, type PutResult } from './object-store';
+import { checkRange, InvalidObjectKey, ObjectNotFound, validateKey, type ObjectStore, type RangeReader, type PutOptions, type PutResult } from './object-store';
 
 export class FsObjectStore implements ObjectStore {
 	readonly root: string;
@@ -62,6 +63,32 @@ export class FsObjectStore implements ObjectStore {
 			if (isMissing(e)) throw new ObjectNotFound(key);
 			throw e;
 		}
+	}
+
+	async openRanges(key: string): Promise<RangeReader> {
+		const file = this.pathOf(key);
+		await this.requireFile(key, file);
+		let handle: FileHandle;
+		try {
+			handle = await open(file, 'r');
+		} catch (e) {
+			if (isMissing(e)) throw new ObjectNotFound(key);
+			throw e;
+		}
+		return {
+			async read(offset, length) {
+				checkRange(offset, length);
+				const out = new Uint8Array(length);
+				let done = 0;
+				while (done < length) {
+					const { bytesRead } = await handle.read(out, done, length - done, offset + done);
+					if (bytesRead === 0) break;
+					done += bytesRead;
+				}
+				return done === length ? out : out.subarray(0, done);
+			},
+			close: () => handle.close()
+		};
 	}
 
 	async exists(key: string): Promise<boolean> {

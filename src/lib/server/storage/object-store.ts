@@ -15,6 +15,12 @@ export interface PutResult {
 	size: number;
 }
 
+export interface RangeReader {
+	/** `length` bytes from byte `offset`: fewer at the end of the object, none past it. */
+	read(offset: number, length: number): Promise<Uint8Array>;
+	close(): Promise<void>;
+}
+
 export interface ObjectStore {
 	/** Store `body` under `key`, replacing any object already there. */
 	put(key: string, body: Readable | Uint8Array, opts?: PutOptions): Promise<PutResult>;
@@ -22,6 +28,11 @@ export interface ObjectStore {
 	get(key: string): Promise<Readable>;
 	/** The whole object in memory; rejects with ObjectNotFound when there is none. */
 	getBuffer(key: string): Promise<Buffer>;
+	/**
+	 * The object opened for reads of byte ranges (rasters are read this way, tile by tile, never
+	 * whole); rejects with ObjectNotFound when there is none. Close the reader when done.
+	 */
+	openRanges(key: string): Promise<RangeReader>;
 	exists(key: string): Promise<boolean>;
 	/** Remove the object; deleting a missing key is not an error. */
 	delete(key: string): Promise<void>;
@@ -81,4 +92,11 @@ export function newObjectKey(prefix: string): string {
 
 export function isObjectNotFound(e: unknown): e is ObjectNotFound {
 	return e instanceof ObjectNotFound;
+}
+
+/** A byte range must start at a whole, non-negative offset and have a whole, non-negative length. */
+export function checkRange(offset: number, length: number): void {
+	if (!Number.isSafeInteger(offset) || offset < 0 || !Number.isSafeInteger(length) || length < 0) {
+		throw new RangeError(`invalid byte range: offset ${offset}, length ${length}`);
+	}
 }

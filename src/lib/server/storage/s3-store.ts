@@ -20,7 +20,7 @@ import {
 	type CompletedPart
 } from '@aws-sdk/client-s3';
 import { Readable } from 'node:stream';
-import { ObjectNotFound, validateKey, type ObjectStore, type PutOptions, type PutResult } from './object-store';
+import { checkRange, ObjectNotFound, validateKey, type ObjectStore, type RangeReader, type PutOptions, type PutResult } from './object-store';
 
 export interface S3StoreConfig {
 	bucket: string;
@@ -153,6 +153,29 @@ export class S3ObjectStore implements ObjectStore {
 		const chunks: Buffer[] = [];
 		for await (const chunk of stream) chunks.push(Buffer.isBuffer(chunk) ? chunk : Buffer.from(chunk as Uint8Array));
 		return Buffer.concat(chunks);
+	}
+
+	async openRanges(key: string): Promise<RangeReader> {
+		validateKey(key);
+		if (!(await this.exists(key))) throw new ObjectNotFound(key);
+		return {
+			read: async (offset, length) => {
+				checkRange(offset, length);
+				if (length === 0) return new Uint8Array(0);
+				try {
+					const res = await this.client.send(new GetObjectCommand({ Bucket: this.bucket, Key: key, Range: `bytes=${offset}-${offset + length - 1}` }));
+					const body = res.Body as { transformToByteArray?: () => Promise<Uint8Array> } | undefined;
+					if (!body?.transformToByteArray) throw new Error(`S3 returned no body for ${key}`);
+					return await body.transformToByteArray();
+				} catch (e) {
+					if (isNotFound(e)) throw new ObjectNotFound(key);
+					// A range that starts past the end is not satisfiable: there are no bytes there.
+					if ((e as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode === 416) return new Uint8Array(0);
+					throw e;
+				}
+			},
+			close: async () => undefined
+		};
 	}
 
 	async exists(key: string): Promise<boolean> {
