@@ -59,6 +59,35 @@ describe('layer processing job', () => {
 		expect(await t.db('audit_log').where({ action: 'layer.create', object_id: String(layer.id) }).first()).toBeTruthy();
 	});
 
+	it('the job reads the stored file by byte ranges, a tile at a time, never whole', async () => {
+		// 512 × 512 Float32 in 64 × 64 tiles: 1 MiB of samples, 64 tiles of 16 KiB.
+		const w = 512;
+		const data = Float32Array.from({ length: w * w }, (_, i) => (i % w) + Math.floor(i / w));
+		const geo = { tiepoint: [0, 0, 0, 500000, 5500000, 0], pixelScale: [30, 30, 0], geoKeys: [[1024, 1], [1025, 1], [3072, 32633]] as Array<[number, number]> };
+		const file = new Uint8Array(encodeTiff({ width: w, height: w, bands: [data], sampleFormat: 3, bitsPerSample: 32, layout: { kind: 'tiles', tileWidth: 64, tileHeight: 64 }, geo }));
+		const reads: number[] = [];
+		const watched: typeof s.store = Object.assign(Object.create(s.store), {
+			getBuffer: async () => {
+				throw new Error('the whole file was asked for');
+			},
+			openRanges: async (key: string) => {
+				const r = await s.store.openRanges(key);
+				return { read: (o: number, l: number) => (reads.push(l), r.read(o, l)), close: () => r.close() };
+			}
+		});
+		const { layer, job } = await acceptLayerUpload(t.db, s.store, ctx, { name: 'Ramp', kind: 'other', fileName: 'ramp.tif' }, streamOf(file, 64 * 1024), limits);
+		await runQueuedJobs(t.db, watched, { timeoutMs: 60_000 });
+		const done = (await getJob(t.db, job.id))!;
+		expect(done.state).toBe('finished');
+		const row = await t.db('layers').where({ id: layer.id }).first();
+		expect([row.width, row.height, row.epsg]).toEqual([w, w, 32633]);
+		// The ramp x + y over 0…511 each: min 0, max 1022, mean 511 (arithmetic series).
+		expect([row.stat_min, row.stat_max, row.stat_mean]).toEqual([0, 1022, 511]);
+		expect(reads.length).toBeGreaterThanOrEqual(64);
+		// No read larger than a few tiles (a tile is 16 KiB; the file is over 1 MiB).
+		expect(Math.max(...reads)).toBeLessThan(file.byteLength / 16);
+	});
+
 	it('a raster the job refuses leaves no row and no object, and the job fails with the reason', async () => {
 		const keysBefore = (await s.keys()).length;
 		const rowsBefore = (await t.db('layers').count({ n: '*' }))[0].n;
