@@ -19,12 +19,12 @@ async function demoNetworkId(): Promise<number> {
 }
 
 /** A queued job of `kind` that no worker claims for a day, and a way to read its state. */
-async function heldJob(networkId: number, kind: string) {
+async function heldJob(networkId: number, kind: string, payload: Record<string, unknown>) {
 	const url = process.env.DATABASE_URL;
 	if (!url) throw new Error('DATABASE_URL is not set: run through npm test');
 	const db = createDb(url, 1);
 	try {
-		const [id] = await db('jobs').insert({ kind, network_id: networkId, payload: '{}', idempotency_key: `cancel-check:${kind}:${tag}`, run_after: db.raw('CURRENT_TIMESTAMP(3) + INTERVAL 1 DAY') });
+		const [id] = await db('jobs').insert({ kind, network_id: networkId, payload: JSON.stringify(payload), idempotency_key: `cancel-check:${kind}:${tag}`, run_after: db.raw('CURRENT_TIMESTAMP(3) + INTERVAL 1 DAY') });
 		return Number(id);
 	} finally {
 		await db.destroy();
@@ -43,7 +43,7 @@ test.describe('cancelling a followed job', () => {
 	});
 
 	test('the importance page cancels its preview job', async ({ page }) => {
-		const jobId = await heldJob(networkId, 'recipe-preview');
+		const jobId = await heldJob(networkId, 'recipe-preview', { networkId, definition: { layers: [] } });
 		const u = demoUser('analyst');
 		await signInPage(page, u.email, u.password);
 		await page.route(`**/api/v1/networks/${networkId}/recipes/preview`, async (route) => {
@@ -61,7 +61,8 @@ test.describe('cancelling a followed job', () => {
 	});
 
 	test('the upload form cancels the processing job it follows', async ({ page }) => {
-		const jobId = await heldJob(networkId, 'layer-processing');
+		// Layer 0 does not exist: the cancelled job's failed hook (mark the layer failed) finds nothing.
+		const jobId = await heldJob(networkId, 'layer-processing', { networkId, organisationId: 0, actorId: 0, layerId: 0 });
 		const u = demoUser('analyst');
 		await signInPage(page, u.email, u.password);
 		await page.route(`**/api/v1/networks/${networkId}/layers?*`, async (route) => {
