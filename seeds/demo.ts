@@ -11,6 +11,7 @@ import type { ObjectStore } from '../src/lib/server/storage/object-store';
 import { seedDemoInventory } from './demo-inventory';
 import { seedDemoNetwork } from './demo-network';
 import { seedDemoProposals } from './demo-proposals';
+import { seedDemoField } from './demo-field';
 
 export const DEMO_ORGANISATION = { slug: 'fellside-hydrology', name: 'Fellside Hydrology Co-operative' };
 
@@ -107,4 +108,5 @@ async function seedDemoProposalStage(knex: Knex, store: ObjectStore, originOpt: 
 	const user = (role: string) => knex('users').select('id', 'name').where({ email: DEMO_USERS.find((u) => u.role === role)!.email }).first();
 	const origin = (originOpt ?? process.env.ORIGIN ?? `http://127.0.0.1:${process.env.PORT ?? 3000}`).replace(/\/$/, '');
 	await seedDemoProposals(knex, store, { networkId: net.id, analyst: await user('analyst'), reviewer: await user('reviewer') }, origin);
+	await seedDemoField(knex, store, { networkId: net.id, analyst: await user('analyst'), reviewer: await user('reviewer'), technician: await user('technician') }, origin);
 }

@@ -158,6 +158,29 @@ const checks: Check[] = [
 	{ name: 'API plan of a missing network', method: 'GET', path: '/api/v1/networks/999999/plan', expect: api(401, 404, 404, 404, 404) },
 	// (proposals rows end)
 
+	// Field tasks (task.view: everyone, technicians their own only; task.assign: admin, analyst; task.work: technician)
+	// and the public map (anyone; the demo network is published).
+	{ name: 'field tasks page', method: 'GET', path: '/networks/1/tasks', expect: page(303, 200, 200, 403, 403) },
+	{ name: 'field tasks page of a missing network', method: 'GET', path: '/networks/999999/tasks', expect: page(303, 404, 404, 404, 404) },
+	{ name: 'assign action (no task)', method: 'POST', path: '/networks/1/tasks?/assign', form: { taskId: 'x', assigneeId: '' }, expect: page(303, 400, 400, 403, 403) },
+	{ name: 'spread action (nobody)', method: 'POST', path: '/networks/1/tasks?/spread', form: {}, expect: page(303, 400, 400, 403, 403) },
+	{ name: 'my route page', method: 'GET', path: '/networks/1/field', expect: page(303, 403, 403, 403, 200) },
+	{ name: 'printable task sheet', method: 'GET', path: '/networks/1/field/print', expect: page(303, 403, 403, 403, 200) },
+	{ name: 'task update action (no key)', method: 'POST', path: '/networks/1/field?/update', form: { taskId: '999999', state: 'started' }, expect: page(303, 403, 403, 403, 400) },
+	{ name: 'acknowledge cautions action', method: 'POST', path: '/networks/1/field?/acknowledge', form: {}, expect: page(303, 403, 403, 403, 303) },
+	{ name: 'API my tasks', method: 'GET', path: '/api/v1/networks/1/tasks?assignee=me', expect: api(401, 200, 200, 200, 200) },
+	{ name: 'API everyone’s tasks', method: 'GET', path: '/api/v1/networks/1/tasks', expect: api(401, 200, 200, 200, 403) },
+	{ name: 'API tasks of a missing network', method: 'GET', path: '/api/v1/networks/999999/tasks?assignee=me', expect: api(401, 404, 404, 404, 404) },
+	{ name: 'API my route as GPX', method: 'GET', path: '/api/v1/networks/1/tasks.gpx?assignee=me', expect: api(401, 200, 200, 200, 200) },
+	{ name: 'API assign tasks (nothing chosen)', method: 'POST', path: '/api/v1/networks/1/tasks/assignments', json: {}, expect: api(401, 400, 400, 403, 403) },
+	{ name: 'API task update (no Idempotency-Key)', method: 'POST', path: '/api/v1/networks/1/tasks/999999/updates', json: { state: 'started' }, expect: api(401, 403, 403, 403, 400) },
+	{ name: 'public map', method: 'GET', path: '/map/vennarrow-vale', expect: page(200, 200, 200, 200, 200) },
+	{ name: 'public map of an unknown network', method: 'GET', path: '/map/no-such-network', expect: page(404, 404, 404, 404, 404) },
+	{ name: 'API public map', method: 'GET', path: '/api/v1/public/networks/vennarrow-vale', expect: api(200, 200, 200, 200, 200) },
+	{ name: 'API public map of an unknown network', method: 'GET', path: '/api/v1/public/networks/no-such-network', expect: api(404, 404, 404, 404, 404) },
+	{ name: 'API public importance PNG', method: 'GET', path: '/api/v1/public/networks/vennarrow-vale/importance.png', expect: api(200, 200, 200, 200, 200) },
+	// (field rows end)
+
 	// Last: it ends every session of each role (the contexts above are done with by then).
 	{ name: 'sign out everywhere action', method: 'POST', path: '/profile?/signOutEverywhere', form: {}, expect: signedIn(303) }
 ];

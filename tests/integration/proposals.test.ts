@@ -165,9 +165,10 @@ describe('proposals, revisions, review and plan', () => {
 		expect(lost[0].reason).toMatchObject({ status: 409, code: 'not_submitted' });
 		expect(await t.db('reviews').where({ revision_id: rev })).toHaveLength(1);
 		expect(await t.db('plans').where({ revision_id: rev })).toHaveLength(1);
-		// One decision e-mail to the author, one audit entry for the decision.
+		// One decision e-mail to the author; one audit entry for the decision and one for the plan's field tasks, once.
 		expect(Number((await t.db('outbox_messages').count({ n: '*' }).first())!.n)).toBe(Number(mailBefore!.n) + 1);
-		expect(Number((await t.db('audit_log').count({ n: '*' }).first())!.n)).toBe(Number(auditBefore!.n) + 1);
+		expect(Number((await t.db('audit_log').count({ n: '*' }).first())!.n)).toBe(Number(auditBefore!.n) + 2);
+		expect(await t.db('audit_log').where({ action: 'tasks.create', object_id: String((await t.db('plans').where({ revision_id: rev }).first()).id) })).toHaveLength(1);
 		const plan = await currentPlanView(t.db, net.network.id);
 		expect(plan).toMatchObject({ revisionId: rev, state: 'current' });
 	}, 60_000);

@@ -19,3 +19,21 @@ export function geodesicPathLength(points: ReadonlyArray<readonly [number, numbe
 	}
 	return total;
 }
+
+/**
+ * Geodesic distance (m) and initial bearing (degrees clockwise from true north, 0 ≤ b < 360) from
+ * the first lon/lat point to the second, on WGS 84. The bearing of coincident points is 0.
+ */
+export function geodesicDistanceBearing(lon1: number, lat1: number, lon2: number, lat2: number): { distanceM: number; bearingDeg: number } {
+	const r = WGS84.Inverse(lat1, lon1, lat2, lon2, geodesic.Geodesic.DISTANCE | geodesic.Geodesic.AZIMUTH);
+	const distanceM = r.s12 ?? Number.NaN;
+	const azi = distanceM === 0 ? 0 : (r.azi1 ?? Number.NaN);
+	return { distanceM, bearingDeg: ((azi % 360) + 360) % 360 };
+}
+
+const COMPASS = ['N', 'NNE', 'NE', 'ENE', 'E', 'ESE', 'SE', 'SSE', 'S', 'SSW', 'SW', 'WSW', 'W', 'WNW', 'NW', 'NNW'] as const;
+
+/** The 16-point compass name of a bearing in degrees (N, NNE, …). */
+export function compassPoint(bearingDeg: number): (typeof COMPASS)[number] {
+	return COMPASS[Math.round((((bearingDeg % 360) + 360) % 360) / 22.5) % 16];
+}

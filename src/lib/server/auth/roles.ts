@@ -21,6 +21,9 @@ export const PERMISSIONS = {
 	'proposal.edit': ['analyst'],
 	'revision.review': ['admin', 'reviewer'],
 	'plan.view': everyone,
+	'task.view': everyone,
+	'task.assign': ['admin', 'analyst'],
+	'task.work': ['technician'],
 	'users.manage': ['admin'],
 	'audit.view': ['admin']
 } as const satisfies Record<string, readonly Role[]>;

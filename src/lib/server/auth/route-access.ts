@@ -70,6 +70,19 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/networks/[id=id]/revisions/[revisionId=id]': 'signed-in',
 	'/api/v1/networks/[id=id]/revisions/[revisionId=id]/submit': 'signed-in',
 	'/api/v1/networks/[id=id]/revisions/[revisionId=id]/reviews': 'signed-in',
-	'/api/v1/networks/[id=id]/plan': 'signed-in'
+	'/api/v1/networks/[id=id]/plan': 'signed-in',
 	// (proposals routes end)
+
+	// Field tasks and the public map
+	'/(app)/networks/[id=id]/tasks': 'signed-in',
+	'/(app)/networks/[id=id]/field': 'signed-in',
+	'/(app)/networks/[id=id]/field/print': 'signed-in',
+	'/api/v1/networks/[id=id]/tasks': 'signed-in',
+	'/api/v1/networks/[id=id]/tasks.gpx': 'signed-in',
+	'/api/v1/networks/[id=id]/tasks/assignments': 'signed-in',
+	'/api/v1/networks/[id=id]/tasks/[taskId=id]/updates': 'signed-in',
+	'/(public)/map/[slug]': 'public',
+	'/api/v1/public/networks/[slug]': 'public',
+	'/api/v1/public/networks/[slug]/importance.png': 'public'
+	// (field routes end)
 };

@@ -63,3 +63,16 @@ export function revisionDecidedMail(to: string, c: RevisionMailContext, reviewer
 	];
 	return { to, subject: `Revision ${c.revisionNumber} of ${c.proposalTitle} ${verb}`, text: `${lines.join('\n\n')}\n\n${c.url}\n`, html: html(lines, { url: c.url, label: 'Open the revision' }) };
 }
+
+export function fieldTasksAssignedMail(to: string, networkName: string, assigner: string, count: number, url: string): OutgoingMail {
+	const lines = [
+		`${assigner} assigned you ${count} field task${count === 1 ? '' : 's'} in ${networkName}.`,
+		'Your route is on the field page, in the order to work it. Read the field cautions before the first task of the day.'
+	];
+	return { to, subject: `Field tasks in ${networkName}: ${count} assigned to you`, text: `${lines.join('\n\n')}\n\n${url}\n`, html: html(lines, { url, label: 'Open your route' }) };
+}
+
+export function fieldTasksCancelledMail(to: string, networkName: string, count: number, url: string): OutgoingMail {
+	const lines = [`A newer plan for ${networkName} was approved: ${count} of your open field task${count === 1 ? ' was' : 's were'} cancelled.`, 'Your route now shows the tasks of the new plan once they are assigned to you.'];
+	return { to, subject: `Field tasks in ${networkName} cancelled by a newer plan`, text: `${lines.join('\n\n')}\n\n${url}\n`, html: html(lines, { url, label: 'Open your route' }) };
+}

@@ -35,10 +35,7 @@ export async function queueVersionSurface(db: Knex, networkId: number, versionId
 
 export async function queueRecipeVersion(db: Knex, networkId: number, organisationId: number, actorId: number, input: SaveVersionInput): Promise<JobView> {
 	const parsed = saveVersionInput.safeParse(input);
-	if (!parsed.success) {
-		const i = parsed.error.issues[0];
-		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
-	}
+	if (!parsed.success) throw ServiceError.fromZod(parsed.error);
 	const { recipeId, name } = parsed.data;
 	await checkRecipe(db, networkId, parsed.data.definition);
 	if (recipeId !== undefined) {

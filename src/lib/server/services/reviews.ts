@@ -33,6 +33,7 @@ import {
 } from '../repositories/proposals';
 import { revisionDecidedMail, revisionSubmittedMail, type RevisionMailContext } from '../mail/templates';
 import { ServiceError } from './errors';
+import { createTasksForPlan } from './field-tasks';
 
 export interface Reviewer {
 	id: number;
@@ -57,8 +58,7 @@ export const decisionInput = z
 function parseOr400<T>(schema: z.ZodType<T>, raw: unknown): T {
 	const r = schema.safeParse(raw);
 	if (r.success) return r.data;
-	const i = r.error.issues[0];
-	throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
+	throw ServiceError.fromZod(r.error);
 }
 
 export function revisionUrl(origin: string, networkId: number, r: Pick<RevisionRow, 'proposal_id' | 'id'>): string {
@@ -133,6 +133,8 @@ export async function decideRevision(db: Knex, network: NetworkRef, actor: Revie
 			}
 			planId = await insertPlan(trx, { network_id: network.id, revision_id: r.id, approved_by: actor.id });
 			if (superseded) await setSupersededBy(trx, superseded.id, planId);
+			// The plan's field work, in the same transaction (and the superseded plan's open tasks cancelled).
+			await createTasksForPlan(trx, network, actor.id, planId, r, superseded?.id ?? null, origin);
 		}
 		await recordAudit(trx, {
 			organisationId: network.organisation_id,

@@ -17,7 +17,9 @@ export const load = (async (event) => {
 				{ href: '/sensors', label: 'Sensors', show: roleAllows(role, 'sensor.view') },
 				{ href: '/zones', label: 'Area & zones', show: roleAllows(role, 'layer.view') },
 				{ href: '/proposals', label: 'Proposals', show: roleAllows(role, 'proposal.view') },
-				{ href: '/history', label: 'History', show: roleAllows(role, 'plan.view') }
+				{ href: '/history', label: 'History', show: roleAllows(role, 'plan.view') },
+				{ href: '/tasks', label: 'Field tasks', show: roleAllows(role, 'task.assign') },
+				{ href: '/field', label: 'My route', show: roleAllows(role, 'task.work') }
 			].filter((t) => t.show)
 		}
 	};

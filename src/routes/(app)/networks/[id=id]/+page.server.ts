@@ -5,6 +5,7 @@ import { networkAccess } from '$lib/server/auth/network-access';
 import { roleAllows } from '$lib/server/auth/roles';
 import { formFields, parseForm, serviceFailure } from '$lib/server/forms';
 import { networkPatch, publicView, updateNetworkDetails } from '$lib/server/services/networks';
+import { fieldSettings, updateFieldSettings } from '$lib/server/services/field-tasks';
 
 export const load = (async (event) => {
 	const { network, role } = await networkAccess(event, 'network.view');
@@ -12,7 +13,8 @@ export const load = (async (event) => {
 		network: publicView(network),
 		role,
 		canEdit: roleAllows(role, 'network.edit'),
-		canPublish: roleAllows(role, 'network.publish')
+		canPublish: roleAllows(role, 'network.publish'),
+		fieldSettings: await fieldSettings(getDb(), network.id)
 	};
 }) satisfies PageServerLoad;
 
@@ -25,6 +27,16 @@ export const actions = {
 		if (!parsed.ok) return parsed.failure;
 		try {
 			await updateNetworkDetails(getDb(), network.id, actor.id, parsed.data, { mayPublish: roleAllows(role, 'network.publish') });
+		} catch (err) {
+			return serviceFailure(err, values);
+		}
+		return { saved: true };
+	},
+	fieldSettings: async (event) => {
+		const { network, actor } = await networkAccess(event, 'network.edit');
+		const values = formFields(await event.request.formData(), ['installToleranceM', 'publicGridM']);
+		try {
+			await updateFieldSettings(getDb(), network, actor.id, values);
 		} catch (err) {
 			return serviceFailure(err, values);
 		}

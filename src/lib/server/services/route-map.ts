@@ -1,0 +1,24 @@
+/**
+ * The small map of a technician's route (the phone view and the printed sheet): the network's
+ * working CRS and importance backdrop, framed on the tasks, each task a numbered dot.
+ */
+import type { Db } from '../db';
+import { transformer } from '../../geo/crs';
+import type { NetworkRow } from '../repositories/networks';
+import { boundsOf, padBounds } from '../../geo/geometry';
+import { networkMap, type ImportanceSource } from './map-data';
+import type { TaskView } from './field-tasks';
+
+export async function routeMap(db: Db, network: NetworkRow, tasks: readonly TaskView[], importance: ImportanceSource) {
+	if (tasks.length === 0) return null;
+	const doc = await networkMap(db, { network, importance, apiBase: `/api/v1/networks/${network.id}` });
+	if (!doc.crs) return null;
+	const fwd = transformer(4326, doc.crs.epsg).forward;
+	const dots = tasks.map((t) => {
+		const [x, y] = fwd(t.target.lon, t.target.lat);
+		return { x, y, label: String(t.order ?? ''), kind: t.state === 'done' ? ('site' as const) : ('target' as const) };
+	});
+	const b = boundsOf(dots.map((d) => [d.x, d.y]));
+	if (!b) return null;
+	return { extent: padBounds(b, 0.12, 150), dots, studyArea: doc.studyArea, overlay: doc.backdrop?.kind === 'importance' ? { url: doc.backdrop.url, bounds: doc.backdrop.bounds } : null };
+}

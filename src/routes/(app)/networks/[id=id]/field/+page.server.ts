@@ -1,0 +1,75 @@
+import { randomUUID } from 'node:crypto';
+import { fail, redirect } from '@sveltejs/kit';
+import type { Actions, PageServerLoad } from './$types';
+import { getDb } from '$lib/server/db';
+import { networkAccess } from '$lib/server/auth/network-access';
+import { recordAudit } from '$lib/server/repositories/audit';
+import { ServiceError } from '$lib/server/services/errors';
+import { applyTaskUpdate, currentTasks, fieldSettings } from '$lib/server/services/field-tasks';
+import { routeMap } from '$lib/server/services/route-map';
+import { importanceSource } from '../../../../api/v1/networks/[id=id]/map/importance-source';
+
+const ACK_COOKIE = 'cf-cautions-ack';
+const today = () => new Date().toISOString().slice(0, 10);
+
+export const load = (async (event) => {
+	const { network, actor } = await networkAccess(event, 'task.work');
+	const db = getDb();
+	const tasks = await currentTasks(db, network.id, { assigneeId: actor.id });
+	const sensorIds = tasks.map((t) => t.sensorId).filter((v): v is number => v !== null);
+	const typeIds = tasks.map((t) => t.sensorTypeId).filter((v): v is number => v !== null);
+	const sensors = sensorIds.length ? await db('sensors').select('id', 'serial', 'status', 'notes').whereIn('id', sensorIds).where({ network_id: network.id }) : [];
+	const types = typeIds.length ? await db('sensor_types').select('id', 'name', 'radius_m', 'notes').whereIn('id', typeIds).where({ network_id: network.id }) : [];
+	const sensorById = new Map(sensors.map((s: { id: number; serial: string; status: string; notes: string }) => [s.id, s]));
+	const typeById = new Map(types.map((t: { id: number; name: string; radius_m: number; notes: string }) => [t.id, { name: t.name, radiusM: Number(t.radius_m), notes: t.notes }]));
+
+	const active = tasks.filter((t) => t.state !== 'cancelled');
+	return {
+		networkId: network.id,
+		networkName: network.name,
+		tasks: active.map((t) => ({
+			...t,
+			sensor: t.sensorId ? (sensorById.get(t.sensorId) ?? null) : null,
+			type: t.sensorTypeId ? (typeById.get(t.sensorTypeId) ?? null) : null,
+			// One fresh idempotency key per form and render: a resubmitted form applies once.
+			keys: { started: randomUUID(), done: randomUUID(), blocked: randomUUID(), open: randomUUID() }
+		})),
+		toleranceM: (await fieldSettings(db, network.id)).installToleranceM,
+		cautionsAcknowledged: event.cookies.get(ACK_COOKIE) === `${actor.id}:${today()}`,
+		map: await routeMap(db, network, active, importanceSource())
+	};
+}) satisfies PageServerLoad;
+
+const num = (v: FormDataEntryValue | null) => {
+	const s = typeof v === 'string' ? v.trim().replace(',', '.') : '';
+	return s === '' ? undefined : Number(s);
+};
+const text = (v: FormDataEntryValue | null) => (typeof v === 'string' && v.trim() !== '' ? v.trim() : undefined);
+
+export const actions = {
+	acknowledge: async (event) => {
+		const { network, actor } = await networkAccess(event, 'task.work');
+		event.cookies.set(ACK_COOKIE, `${actor.id}:${today()}`, { path: `/networks/${network.id}`, httpOnly: true, sameSite: 'lax', maxAge: 60 * 60 * 24 });
+		await recordAudit(getDb(), { organisationId: network.organisation_id, actorUserId: actor.id, action: 'cautions.acknowledge', objectType: 'network', objectId: network.id, after: { day: today() } });
+		redirect(303, `/networks/${network.id}/field`);
+	},
+	update: async (event) => {
+		const { network, actor } = await networkAccess(event, 'task.work');
+		const data = await event.request.formData();
+		const taskId = Number(data.get('taskId'));
+		const lon = num(data.get('lon'));
+		const lat = num(data.get('lat'));
+		const body: Record<string, unknown> = { state: data.get('state'), fromState: text(data.get('fromState')) };
+		if (lon !== undefined || lat !== undefined) body.position = { lon, lat, ...(num(data.get('accuracyM')) !== undefined ? { accuracyM: num(data.get('accuracyM')) } : {}) };
+		if (text(data.get('note'))) body.note = text(data.get('note'));
+		if (text(data.get('reason'))) body.reason = text(data.get('reason'));
+		try {
+			const r = await applyTaskUpdate(getDb(), network, actor, taskId, String(data.get('key') ?? ''), body);
+			if (r.status === 409) return fail(409, { taskId, message: 'error' in r.body ? r.body.error.message : 'Conflict.' });
+		} catch (e) {
+			if (e instanceof ServiceError) return fail(e.status, { taskId, message: e.message, field: e.field ?? null });
+			throw e;
+		}
+		redirect(303, `/networks/${network.id}/field#task-${taskId}`);
+	}
+} satisfies Actions;

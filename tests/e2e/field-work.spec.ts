@@ -1,0 +1,249 @@
+/**
+ * Field work in the running app, on a network built from the demo files with the demo's field
+ * stage (a plan whose tasks go to the demo technician, two done, one blocked) and published:
+ * the tasks API as named, idempotent updates from two devices on one task, the GPX export against
+ * the GPX 1.1 schema's rules, the technician's route in a 360 px window, and the public map's
+ * privacy (HTML and JSON searched for every private field).
+ */
+import { randomBytes, randomUUID } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import { expect, test, type APIRequestContext } from '@playwright/test';
+import type { Knex } from 'knex';
+import { createDb } from '../../src/lib/server/db/knex';
+import { createObjectStore } from '../../src/lib/server/storage/create-object-store';
+import { DEMO_NETWORK, DEMO_ORGANISATION, DEMO_USERS } from '../../seeds/demo';
+import { DEMO_FIELD, seedDemoField } from '../../seeds/demo-field';
+import { placementNetwork } from '../helpers/placement-network';
+import { checkGpx } from '../helpers/gpx-rules';
+import { contextFor, demoDir, demoUser, gotoHydrated, linkIn, signInPage, waitForMail } from './support';
+
+let db: Knex;
+let networkId: number;
+let slug: string;
+
+interface Task {
+	id: number;
+	kind: string;
+	sensorId: number | null;
+	sensorCode: string;
+	target: { lon: number; lat: number };
+	state: string;
+	order: number;
+	version: number;
+}
+
+test.beforeAll(async () => {
+	const url = process.env.DATABASE_URL;
+	if (!url) throw new Error('DATABASE_URL is not set: run through npm test');
+	db = createDb(url, 2);
+	const org = await db('organisations').select('id').where({ slug: DEMO_ORGANISATION.slug }).first();
+	const user = (role: string) => db('users').select('id', 'name').where({ email: demoUser(role as 'analyst').email }).first();
+	const analyst = await user('analyst');
+	const store = createObjectStore(process.env);
+	const { network } = await placementNetwork(db, store, org.id, analyst.id, `Field e2e ${randomBytes(3).toString('hex')}`);
+	networkId = network.id;
+	slug = network.slug;
+	const origin = (process.env.ORIGIN ?? process.env.BASE_URL ?? '').replace(/\/$/, '');
+	await seedDemoField(db, store, { networkId, analyst, reviewer: await user('reviewer'), technician: await user('technician') }, origin);
+	await db('networks').where({ id: networkId }).update({ publication: 'published', public_text: 'Probes of an invented catchment, for the public.' });
+});
+test.afterAll(async () => db?.destroy());
+
+const tasksOf = async (ctx: APIRequestContext, query = '?assignee=me'): Promise<Task[]> => {
+	const res = await ctx.get(`/api/v1/networks/${networkId}/tasks${query}`);
+	expect(res.status()).toBe(200);
+	return (await res.json()).tasks;
+};
+
+test('the tasks API as named; two devices on one task: nothing lost, nothing twice, the conflict told', async () => {
+	const tech = await contextFor('technician');
+	const tasks = await tasksOf(tech);
+	expect(tasks.length).toBeGreaterThan(3);
+	expect(tasks[0]).toMatchObject({ id: expect.any(Number), kind: expect.stringMatching(/^(move|install|remove)$/), target: { lon: expect.any(Number), lat: expect.any(Number) }, state: 'done', order: 1 });
+	expect(tasks.map((t) => t.order)).toEqual(tasks.map((_, i) => i + 1));
+	expect(tasks[2].state).toBe('blocked');
+	expect((await tech.get(`/api/v1/networks/${networkId}/tasks`)).status()).toBe(403);
+
+	const open = tasks.find((t) => t.state === 'open')!;
+	const url = `/api/v1/networks/${networkId}/tasks/${open.id}/updates`;
+	const deviceA = tech;
+	const deviceB = await contextFor('technician');
+	const keyA = randomUUID();
+	const keyB = randomUUID();
+	// Both devices saw the task open and start it; A syncs first.
+	const a1 = await deviceA.post(url, { data: { state: 'started', fromState: 'open' }, headers: { 'idempotency-key': keyA } });
+	expect(a1.status()).toBe(200);
+	const b1 = await deviceB.post(url, { data: { state: 'started', fromState: 'open' }, headers: { 'idempotency-key': keyB } });
+	expect(b1.status()).toBe(409);
+	expect(await b1.json()).toMatchObject({ error: { code: 'conflict' }, task: { state: 'started' } });
+	// A's request is sent again (lost answer): the same result, applied once.
+	const a2 = await deviceA.post(url, { data: { state: 'started', fromState: 'open' }, headers: { 'idempotency-key': keyA } });
+	expect(a2.status()).toBe(200);
+	expect((await a2.json()).task.version).toBe((await a1.json()).task.version);
+	expect(await db('field_task_updates').where({ task_id: open.id })).toHaveLength(2); // A's once, B's conflict once
+	// Done with a typed position; the inventory follows.
+	const at = { lon: open.target.lon + 0.00002, lat: open.target.lat, accuracyM: 5 };
+	const done = await deviceB.post(url, { data: { state: 'done', fromState: 'started', position: at, note: 'Done from device B.' }, headers: { 'idempotency-key': randomUUID() } });
+	expect(done.status()).toBe(200);
+	if (open.sensorId) {
+		const sensor = await (await deviceA.get(`/api/v1/networks/${networkId}/sensors/${open.sensorId}`)).json();
+		expect(JSON.stringify(sensor)).toContain(String(at.lon));
+	}
+	const late = await deviceA.post(url, { data: { state: 'blocked', reason: 'Too late', fromState: 'started' }, headers: { 'idempotency-key': randomUUID() } });
+	expect(late.status()).toBe(409);
+	await deviceB.dispose();
+	await tech.dispose();
+});
+
+test('the analyst assigns a task; the technician gets an e-mail with a link from the origin', async () => {
+	const analyst = await contextFor('analyst');
+	const all = await tasksOf(analyst, '');
+	const open = all.find((t) => t.state === 'open')!;
+	const since = Date.now();
+	const tech = await db('users').select('id').where({ email: demoUser('technician').email }).first();
+	const res = await analyst.post(`/api/v1/networks/${networkId}/tasks/assignments`, { data: { taskIds: [open.id], assigneeId: tech.id } });
+	expect(res.status()).toBe(200);
+	const mail = await waitForMail(demoUser('technician').email, /Field tasks in .*1 assigned/, since);
+	expect(linkIn(mail)).toBe(`${process.env.ORIGIN ?? process.env.BASE_URL}/networks/${networkId}/field`.replace(/([^:])\/\//, '$1/'));
+	expect((await analyst.post(`/api/v1/networks/${networkId}/tasks/assignments`, { data: { taskIds: [open.id], assigneeId: 999999 } })).status()).toBe(400);
+	await analyst.dispose();
+});
+
+test('the GPX export meets the GPX 1.1 schema’s rules and lists the route in order', async () => {
+	const tech = await contextFor('technician');
+	const res = await tech.get(`/api/v1/networks/${networkId}/tasks.gpx?assignee=me`);
+	expect(res.status()).toBe(200);
+	expect(res.headers()['content-type']).toContain('application/gpx+xml');
+	const gpx = checkGpx(await res.text());
+	expect(gpx.broken).toEqual([]);
+	const active = (await tasksOf(tech)).filter((t) => ['open', 'started', 'blocked'].includes(t.state));
+	expect(gpx.waypoints.map((w) => w.name)).toEqual(active.map((t) => expect.stringMatching(new RegExp(`^${t.order}\\. \\w+ ${t.sensorCode}$`))));
+	expect(gpx.routePoints).toHaveLength(active.length);
+	await tech.dispose();
+});
+
+test('in a 360 px window the technician reads the cautions, sees the route in order and finishes a task', async ({ browser }) => {
+	const context = await browser.newContext({ viewport: { width: 360, height: 780 }, geolocation: { longitude: 10.11, latitude: 52.9, accuracy: 8 }, permissions: ['geolocation'] });
+	const page = await context.newPage();
+	const u = demoUser('technician');
+	await signInPage(page, u.email, u.password);
+	await gotoHydrated(page, `/networks/${networkId}/field`);
+	await expect(page.getByTestId('cautions')).toContainText('utility-locate service');
+	await page.screenshot({ path: '/tmp/field-360-cautions.png', fullPage: false });
+	await page.getByRole('button', { name: 'I have read the cautions' }).click();
+	await expect(page.getByTestId('cautions-acknowledged')).toBeVisible();
+	const cards = page.getByTestId('task-card');
+	await expect(cards.first()).toContainText('Done');
+	await expect(page.locator('[data-testid="task-card"][data-state="blocked"]')).toContainText(DEMO_FIELD.blockedReason);
+	const orders = await page.locator('[data-testid="task-card"] h2 span').allTextContents();
+	expect(orders.map(Number)).toEqual(orders.map((_, i) => i + 1));
+	await expect(page.getByTestId('from-here').first()).toContainText(/\d+(\.\d+)? k?m \d+° [NESW]+/);
+	// No horizontal scrolling; touch targets at least 44 px high (WCAG 2.5.5 target size, 44 × 44 CSS px).
+	expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(360);
+	const heights = await page.locator('[data-testid="route-list"] button, [data-testid="route-list"] a.btn-quiet').evaluateAll((els) => els.filter((e) => (e as HTMLElement).offsetParent).map((e) => e.getBoundingClientRect().height));
+	expect(Math.min(...heights)).toBeGreaterThanOrEqual(44);
+	await expect(page.locator('a[href^="geo:"]').first()).toBeVisible();
+	await page.screenshot({ path: '/tmp/field-360-route.png', fullPage: true });
+
+	const card = page.locator('[data-testid="task-card"][data-state="open"]').first();
+	const id = await card.getAttribute('data-task-id');
+	await card.getByRole('button', { name: 'Start' }).click();
+	const started = page.locator(`[data-task-id="${id}"]`);
+	await expect(started).toHaveAttribute('data-state', 'started');
+	await started.getByRole('button', { name: /Use my GPS position/ }).click();
+	await expect(started.getByLabel('Latitude')).toHaveValue('52.9000000');
+	await started.getByLabel('Note (optional)').fill('Set in the lee of the wall.');
+	await started.getByRole('button', { name: 'Done' }).click();
+	await expect(page.locator(`[data-task-id="${id}"]`)).toHaveAttribute('data-state', 'done');
+	await expect(page.locator(`[data-task-id="${id}"]`)).toContainText('flagged for the analyst');
+	await page.screenshot({ path: '/tmp/field-360-done.png', fullPage: false });
+	await context.close();
+});
+
+test('the public map needs no sign-in and shows nothing private, in its HTML or its JSON', async ({ page }) => {
+	const anon = await contextFor(null);
+	const html = await (await anon.get(`/map/${slug}`, { headers: { accept: 'text/html' } })).text();
+	const jsonRes = await anon.get(`/api/v1/public/networks/${slug}`);
+	expect(jsonRes.status()).toBe(200);
+	const json = await jsonRes.text();
+	expect(html).toContain('<title>');
+	expect(html).toMatch(/<meta name="description" content="Probes of an invented catchment/);
+	expect(html).toContain(`/map/${slug}`);
+	expect(JSON.parse(json).plan.approvedAt).toEqual(expect.any(String));
+
+	// Every private field of the demo: people, e-mail addresses, serial numbers, sensor codes and notes,
+	// drafts (proposal titles, descriptions, choice notes, review comments), tasks (notes, reasons), photos.
+	const csv = readFileSync(path.join(demoDir, 'sensors.csv'), 'utf8').trim().split('\n').slice(1).map((l) => l.split(','));
+	const privateValues = [
+		...DEMO_USERS.flatMap((u) => [u.email, u.name]),
+		...csv.map((c) => c[1]).filter(Boolean),
+		...csv.map((c) => c[0]),
+		...csv.map((c) => c[7]).filter((v) => v && v.length > 3),
+		...(await db('proposals').select('title', 'description', 'choice_note').where({ network_id: networkId })).flatMap((p) => [p.title, p.description, p.choice_note]).filter((v) => v && v.length > 3),
+		...(await db('reviews as r').join('revisions as v', 'v.id', 'r.revision_id').select('r.comment').where('v.network_id', networkId)).map((r) => r.comment).filter((v) => v && v.length > 3),
+		...(await db('field_tasks').select('note', 'blocked_reason').where({ network_id: networkId })).flatMap((t) => [t.note, t.blocked_reason]).filter((v) => v && v.length > 3),
+		...(await db('sensors').select('serial', 'code').where({ network_id: networkId })).flatMap((s) => [s.serial, s.code]).filter(Boolean),
+		DEMO_FIELD.blockedReason
+	];
+	const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/'/g, '&#39;').replace(/"/g, '&quot;');
+	for (const v of new Set(privateValues)) {
+		expect(html, `HTML shows "${v}"`).not.toContain(v);
+		expect(html, `HTML shows "${v}"`).not.toContain(esc(v));
+		expect(json, `JSON shows "${v}"`).not.toContain(v);
+	}
+	for (const word of ['photo', 'assignee', 'serial', '"note', 'task']) expect(json.toLowerCase()).not.toContain(word);
+
+	// Readable without JavaScript: the map and the summary are in the server's HTML.
+	expect(html).toContain('data-testid="static-map"');
+	expect(html).toContain('data-testid="coverage-summary"');
+	await page.goto(`/map/${slug}`);
+	await expect(page).toHaveTitle(/sensor network map/);
+	await expect(page.getByTestId('share-link')).toHaveAttribute('href', new RegExp(`/map/${slug}$`));
+	await page.screenshot({ path: '/tmp/public-map.png', fullPage: true });
+
+	// Unpublished or unknown: 404.
+	await db('networks').where({ id: networkId }).update({ publication: 'private' });
+	expect((await anon.get(`/map/${slug}`, { headers: { accept: 'text/html' } })).status()).toBe(404);
+	expect((await anon.get(`/api/v1/public/networks/${slug}`)).status()).toBe(404);
+	expect((await anon.get('/api/v1/public/networks/no-such-network')).status()).toBe(404);
+	await db('networks').where({ id: networkId }).update({ publication: 'published' });
+	await anon.dispose();
+});
+
+test('the demo on a fresh start: the demo technician has a route with tasks done and one blocked, and the public map works', async () => {
+	const tech = await contextFor('technician');
+	const networks = (await (await tech.get('/api/v1/networks')).json()).networks as { id: number; slug: string }[];
+	const demo = networks.find((n) => n.slug === DEMO_NETWORK.slug)!;
+	const res = await tech.get(`/api/v1/networks/${demo.id}/tasks?assignee=me`);
+	const tasks = (await res.json()).tasks as Task[];
+	expect(tasks.filter((t) => t.state === 'done').length).toBeGreaterThanOrEqual(2);
+	expect(tasks.filter((t) => t.state === 'blocked')).toHaveLength(1);
+	const anon = await contextFor(null);
+	const map = await anon.get(`/api/v1/public/networks/${DEMO_NETWORK.slug}`);
+	expect(map.status()).toBe(200);
+	expect((await map.json()).plan.approvedAt).toEqual(expect.any(String));
+	await anon.dispose();
+	await tech.dispose();
+});
+
+test('the printable task sheet lists the route with the cautions; printed, it shows no page chrome', async ({ browser }) => {
+	const context = await browser.newContext();
+	const page = await context.newPage();
+	const u = demoUser('technician');
+	await signInPage(page, u.email, u.password);
+	await page.goto(`/networks/${networkId}/field/print`);
+	const tech = await contextFor('technician');
+	const tasks = (await tasksOf(tech)).filter((t) => t.state !== 'cancelled');
+	await expect(page.locator('[data-testid="sheet-table"] tbody tr')).toHaveCount(tasks.length);
+	await expect(page.getByTestId('task-sheet')).toContainText('utility-locate service');
+	await expect(page.locator('[data-testid="sheet-table"] tbody tr').first()).toContainText(`${tasks[0].target.lat.toFixed(6)}, ${tasks[0].target.lon.toFixed(6)}`);
+	await page.emulateMedia({ media: 'print' });
+	await expect(page.getByRole('button', { name: 'Print' })).toBeHidden();
+	await expect(page.locator('footer')).toBeHidden();
+	await expect(page.locator('[role="tablist"]')).toBeHidden();
+	await expect(page.getByRole('heading', { name: /^Task sheet/ })).toBeVisible();
+	await page.screenshot({ path: '/tmp/field-print.png', fullPage: true });
+	await tech.dispose();
+	await context.close();
+});
