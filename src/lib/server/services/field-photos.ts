@@ -12,6 +12,7 @@ import { PHOTO_BODY_BYTES } from '../http/body-limit';
 import { newObjectKey, type ObjectStore } from '../storage';
 import { recordAudit } from '../repositories/audit';
 import { findTask } from '../repositories/field-tasks';
+import { checkIdempotencyKey } from './field-tasks';
 import { ServiceError } from './errors';
 
 /** Largest photo accepted (bytes), the route's body limit. */
@@ -94,7 +95,7 @@ export async function addTaskPhoto(
 	bytes: Uint8Array,
 	key: string | null
 ): Promise<{ photo: PhotoView; replayed: boolean }> {
-	if (key !== null && !/^[\x21-\x7e]{8,200}$/.test(key)) throw new ServiceError(400, 'idempotency_key', 'Send an Idempotency-Key header of 8 to 200 visible characters (a UUID is good).');
+	if (key !== null) checkIdempotencyKey(key);
 	if (bytes.byteLength > PHOTO_MAX_BYTES) throw new ServiceError(413, 'too_large', `The photo is larger than ${PHOTO_MAX_BYTES / 1024 / 1024} MB.`);
 	const task = await findTask(db, network.id, taskId);
 	if (!task) throw new ServiceError(404, 'not_found', 'No such task.');
