@@ -177,7 +177,7 @@ test('photos: the phone resizes a camera photo to 1600 px JPEG before sending; o
 	await expect(card.getByText('Photo saved.')).toBeVisible();
 	await expect(card.locator('img')).toHaveCount(1);
 	expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(360);
-	await page.screenshot({ path: '/tmp/field-360-photo.png', fullPage: false });
+	await card.screenshot({ path: '/tmp/field-360-photo.png' });
 	await context.close();
 	const rows = await db('field_task_photos').where({ task_id: taskId });
 	expect(rows).toHaveLength(1);
