@@ -50,11 +50,22 @@ describe('fieldOverlay', () => {
 
 describe('fieldBounds', () => {
 	it('frames every planned and installed point with the padding, and is null when empty', () => {
-		const o = fieldOverlay([task({ id: 1, state: 'done', installed: { lon: 9.001, lat: 47.5 } }), task({ id: 2, target: { lon: 8.999, lat: 47.501 } })], project);
+		const near = { lon: 9.001, lat: 47.5 };
+		const o = fieldOverlay([task({ id: 1, state: 'done', installed: near, offsetM: geodesicDistanceBearing(9, 47.5, near.lon, near.lat).distanceM }), task({ id: 2, target: { lon: 8.999, lat: 47.501 } })], project);
 		const pts = [project(9, 47.5), project(9.001, 47.5), project(8.999, 47.501)];
 		const b = fieldBounds(o, 100)!;
 		expect(b[0]).toBeCloseTo(Math.min(...pts.map((p) => p[0])) - 100, 6);
 		expect(b[3]).toBeCloseTo(Math.max(...pts.map((p) => p[1])) + 100, 6);
 		expect(fieldBounds({ items: [] })).toBeNull();
+	});
+
+	it('does not stretch the frame to an installation kilometres from its site, but still draws it', () => {
+		const far = { lon: 10, lat: 47.5 }; // about 75 km east of the site at 47.5° N
+		const offsetM = geodesicDistanceBearing(9, 47.5, far.lon, far.lat).distanceM;
+		expect(offsetM).toBeGreaterThan(70_000);
+		const o = fieldOverlay([task({ state: 'done', installed: far, offsetM, offsetFlagged: true })], project);
+		const [x, y] = project(9, 47.5);
+		expect(fieldBounds(o, 100)).toEqual([x - 100, y - 100, x + 100, y + 100]);
+		expect(o.items[0].installed).toEqual(project(10, 47.5));
 	});
 });

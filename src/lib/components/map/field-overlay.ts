@@ -54,9 +54,17 @@ export function fieldOverlay(tasks: readonly FieldTaskForOverlay[], project: Pro
 	};
 }
 
-/** The box [xmin, ymin, xmax, ymax] around every planned and installed point, padded by `pad` metres; null when empty. */
+/** Installed points farther than this from their site (a typing slip, a wrong fix) do not stretch the frame. */
+export const FRAME_OFFSET_MAX_M = 1000;
+
+/**
+ * The box [xmin, ymin, xmax, ymax] around every planned point and every installed one within
+ * FRAME_OFFSET_MAX_M of its site, padded by `pad` metres; null when empty. A far-off installation
+ * is still drawn (its line leaves the frame) and listed with its offset.
+ */
 export function fieldBounds(o: FieldOverlay, pad = 150): [number, number, number, number] | null {
-	const pts = o.items.flatMap((i) => (i.installed ? [i.planned, i.installed] : [i.planned]));
+	const near = (i: FieldOverlayItem) => i.installed !== null && i.offsetM !== null && i.offsetM <= FRAME_OFFSET_MAX_M;
+	const pts = o.items.flatMap((i) => (near(i) ? [i.planned, i.installed!] : [i.planned]));
 	if (pts.length === 0) return null;
 	const xs = pts.map((p) => p[0]);
 	const ys = pts.map((p) => p[1]);
