@@ -35,7 +35,7 @@ export const DEMO_PROPOSALS = {
 	spring: {
 		title: 'Spring redeployment',
 		description: 'Where should the relocatable probes stand for the spring wetting-up? The two neutron sensors stay where they are.',
-		note: 'Zone-balanced gives each sub-catchment probes in proportion to its importance at a cost close to Lloyd’s, with fewer long carries.'
+		note: 'Lloyd’s has the lowest cost, but it moves most of the probes over long distances. Zone-balanced gives each sub-catchment probes in proportion to its importance with fewer moves and a fraction of the carrying, so we take the balance.'
 	}
 } as const;
 

@@ -79,6 +79,8 @@ test('the JSON API: proposals, runs, revisions, submit, four eyes, one winner, t
 	// Two sensors added: 13 taking part (data/demo/sensors.csv: 14, one faulty) + 2 = 15 sites, two of them installations.
 	expect(revision.targets.features).toHaveLength(15);
 	expect(revision.installations).toHaveLength(2);
+	// The demo surface's pixels are 1 km (data/demo/README.md), coarser than 1/10 of the probes' 30 m: the pixels decide, and the revision says so.
+	expect(revision.inputs.cellSize).toMatchObject({ rule: 'pixel', chosenM: 1000, smallestRadiusM: 30, requestedM: null });
 
 	// A draft cannot be decided; the analyst cannot review at all; the author submits.
 	expect((await reviewer.post(`${base}/revisions/${revision.id}/reviews`, { data: { decision: 'approve', comment: '' } })).status()).toBe(409);
@@ -163,6 +165,7 @@ test('in Chromium: run all three, compare, submit; the reviewer approves from th
 	const n = Number(/\d+/.exec(label)![0]);
 	await row.getByRole('link').click();
 	await expect(page.getByRole('heading', { name: `Revision ${n}: Zone-balanced` })).toBeVisible();
+	await expect(page.getByTestId('cell-size')).toContainText('by importance pixel');
 	await expect(page.getByTestId('comparison-maps').locator('figure')).toHaveCount(2, { timeout: 30_000 });
 	await page.screenshot({ path: path.join(shots, 'revision-desk.png'), fullPage: true });
 	const sentAt = Date.now();

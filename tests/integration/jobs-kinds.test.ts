@@ -10,8 +10,8 @@ import { registerBuiltInJobKinds } from '../../src/lib/server/jobs/kinds';
 import { acceptLayerUpload, layerPreview } from '../../src/lib/server/services/layers';
 import { createNetwork } from '../../src/lib/server/services/networks';
 import { queueRecipePreview } from '../../src/lib/server/services/recipe-previews';
-import { saveRecipeVersion, useRecipeVersion } from '../../src/lib/server/services/importance';
-import { queueComputedZones, queueZoneShares } from '../../src/lib/server/services/zone-jobs';
+import { ImportancePending, networkImportance, saveRecipeVersion, useRecipeVersion } from '../../src/lib/server/services/importance';
+import { queueComputedZones, queueSharesOfNewZoneSet, queueZoneShares } from '../../src/lib/server/services/zone-jobs';
 import { queueRecipeVersion } from '../../src/lib/server/services/recipe-versions';
 import { findNetwork } from '../../src/lib/server/repositories/networks';
 import { enqueueJob } from '../../src/lib/server/jobs';
@@ -57,6 +57,35 @@ describe('layer processing job', () => {
 		const png = await layerPreview(t.db, s.store, ctx.networkId, layer.id);
 		expect([...png.subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]); // PNG signature (PNG spec §5.2)
 		expect(await t.db('audit_log').where({ action: 'layer.create', object_id: String(layer.id) }).first()).toBeTruthy();
+	});
+
+	it('the job reads the stored file by byte ranges, a tile at a time, never whole', async () => {
+		// 512 × 512 Float32 in 64 × 64 tiles: 1 MiB of samples, 64 tiles of 16 KiB.
+		const w = 512;
+		const data = Float32Array.from({ length: w * w }, (_, i) => (i % w) + Math.floor(i / w));
+		const geo = { tiepoint: [0, 0, 0, 500000, 5500000, 0], pixelScale: [30, 30, 0], geoKeys: [[1024, 1], [1025, 1], [3072, 32633]] as Array<[number, number]> };
+		const file = new Uint8Array(encodeTiff({ width: w, height: w, bands: [data], sampleFormat: 3, bitsPerSample: 32, layout: { kind: 'tiles', tileWidth: 64, tileHeight: 64 }, geo }));
+		const reads: number[] = [];
+		const watched: typeof s.store = Object.assign(Object.create(s.store), {
+			getBuffer: async () => {
+				throw new Error('the whole file was asked for');
+			},
+			openRanges: async (key: string) => {
+				const r = await s.store.openRanges(key);
+				return { read: (o: number, l: number) => (reads.push(l), r.read(o, l)), close: () => r.close() };
+			}
+		});
+		const { layer, job } = await acceptLayerUpload(t.db, s.store, ctx, { name: 'Ramp', kind: 'other', fileName: 'ramp.tif' }, streamOf(file, 64 * 1024), limits);
+		await runQueuedJobs(t.db, watched, { timeoutMs: 60_000 });
+		const done = (await getJob(t.db, job.id))!;
+		expect(done.state).toBe('finished');
+		const row = await t.db('layers').where({ id: layer.id }).first();
+		expect([row.width, row.height, row.epsg]).toEqual([w, w, 32633]);
+		// The ramp x + y over 0…511 each: min 0, max 1022, mean 511 (arithmetic series).
+		expect([row.stat_min, row.stat_max, row.stat_mean]).toEqual([0, 1022, 511]);
+		expect(reads.length).toBeGreaterThanOrEqual(64);
+		// No read larger than a few tiles (a tile is 16 KiB; the file is over 1 MiB).
+		expect(Math.max(...reads)).toBeLessThan(file.byteLength / 16);
 	});
 
 	it('a raster the job refuses leaves no row and no object, and the job fails with the reason', async () => {
@@ -115,6 +144,42 @@ describe('layer processing job', () => {
 		const again = await t.db('zones').where({ zone_set_id: zoneSetId }).select('importance_share');
 		expect(again.reduce((a: number, z: { importance_share: number }) => a + Number(z.importance_share), 0)).toBeCloseTo(1, 6);
 		await expect(queueZoneShares(t.db, network, ctx.actorId, 999999)).rejects.toMatchObject({ status: 404 });
+	});
+
+	it('a stored zone set gets its shares from a job, and only when there is an importance to measure', async () => {
+		const network = (await findNetwork(t.db, ctx.networkId))!;
+		const [set] = await t.db('zone_sets').where({ network_id: ctx.networkId }).select('id');
+		await t.db('zones').where({ zone_set_id: set.id }).update({ importance_share: null });
+		const job = (await queueSharesOfNewZoneSet(t.db, network, ctx.actorId, set.id))!;
+		expect(job.kind).toBe('zones');
+		await runQueuedJobs(t.db, s.store, { timeoutMs: 60_000 });
+		expect((await getJob(t.db, job.id))!.state).toBe('finished');
+		const zones = await t.db('zones').where({ zone_set_id: set.id }).select('importance_share');
+		// Shares over a partition of the importance sum to 1 (definition of a share).
+		expect(zones.reduce((a: number, z: { importance_share: number }) => a + Number(z.importance_share), 0)).toBeCloseTo(1, 6);
+		const bare = await createNetwork(t.db, ctx.organisationId, ctx.actorId, { name: 'No recipe', description: '', crsEpsg: 32754, publicText: '' });
+		expect(await queueSharesOfNewZoneSet(t.db, (await findNetwork(t.db, bare))!, ctx.actorId, set.id)).toBeNull();
+	});
+
+	it('a missing stored surface is not computed in a request: the request queues its job and hears "being computed"', async () => {
+		const before = (await networkImportance(t.db, s.store, ctx.networkId, { compute: false }))!;
+		const version = await t.db('importance_recipe_versions').where({ id: before.recipeVersionId }).first();
+		await s.store.delete(version.surface_key);
+		const keysBefore = (await s.keys()).length;
+		const first = await networkImportance(t.db, s.store, ctx.networkId, { compute: false }).catch((e) => e);
+		expect(first).toBeInstanceOf(ImportancePending);
+		expect(first).toMatchObject({ status: 409, code: 'importance_pending', versionId: before.recipeVersionId });
+		expect((await s.keys()).length).toBe(keysBefore); // nothing computed or stored by the request
+		const second = await networkImportance(t.db, s.store, ctx.networkId, { compute: false }).catch((e) => e);
+		expect(second.jobId).toBe(first.jobId); // asked twice, one job
+		const job = (await getJob(t.db, first.jobId))!;
+		expect([job.kind, job.state]).toEqual(['recipe-version', 'queued']);
+		await runQueuedJobs(t.db, s.store, { timeoutMs: 60_000 });
+		expect((await getJob(t.db, first.jobId))!).toMatchObject({ state: 'finished', result: { versionId: before.recipeVersionId } });
+		const after = (await networkImportance(t.db, s.store, ctx.networkId, { compute: false }))!;
+		// The same recipe on the same layers gives the same surface (computed once per version).
+		expect([after.validCount, after.min, after.max]).toEqual([before.validCount, before.min, before.max]);
+		expect(Buffer.from(after.band.data.buffer).equals(Buffer.from(before.band.data.buffer))).toBe(true);
 	});
 
 	it('a recipe version is saved by a job with its surface; a name already taken is refused in the request', async () => {

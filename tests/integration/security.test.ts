@@ -6,7 +6,8 @@ import { hashPassword } from '../../src/lib/server/auth/password';
 import { markSent, enqueueMail, purgeFailedMail } from '../../src/lib/server/repositories/outbox';
 import { changePassword, completePasswordReset, requestPasswordReset, resetTokenValid } from '../../src/lib/server/services/passwords';
 import { disableAccount, signOutEverywhere } from '../../src/lib/server/services/sessions';
-import { runHousekeeping, sweepAbandonedUploads, UPLOAD_GRACE_MINUTES } from '../../src/lib/server/services/housekeeping';
+import { JOBS_KEEP_DAYS, jobsKeepDays, runHousekeeping, sweepAbandonedUploads, UPLOAD_GRACE_MINUTES } from '../../src/lib/server/services/housekeeping';
+import { purgeEndedJobs } from '../../src/lib/server/jobs';
 import { createNetwork, networkPage } from '../../src/lib/server/services/networks';
 import { seed } from '../../seeds/demo';
 import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
@@ -133,6 +134,31 @@ describe('security', () => {
 			expect(await t.db('layers').where({ id: arriving }).first()).toBeTruthy();
 			expect(await s.keys()).not.toContain('layers/crashed.tif');
 			expect(await sweepAbandonedUploads(t.db, s.store)).toBe(0);
+		});
+	});
+
+	describe('job retention', () => {
+		it('removes jobs that ended before the retention period, and never a queued or running one', async () => {
+			const day = 86_400_000;
+			const at = (daysAgo: number) => new Date(Date.now() - daysAgo * day);
+			const rows = [
+				{ key: 'old-finished', state: 'finished', finished_at: at(JOBS_KEEP_DAYS + 1) },
+				{ key: 'old-failed', state: 'failed', finished_at: at(JOBS_KEEP_DAYS + 1) },
+				{ key: 'old-cancelled', state: 'cancelled', finished_at: at(JOBS_KEEP_DAYS + 5) },
+				{ key: 'recent-finished', state: 'finished', finished_at: at(JOBS_KEEP_DAYS - 1) },
+				{ key: 'old-queued', state: 'queued', finished_at: null },
+				{ key: 'old-running', state: 'running', finished_at: null }
+			];
+			for (const r of rows) {
+				await t.db('jobs').insert({ kind: 'retention-test', payload: '{}', state: r.state, idempotency_key: r.key, finished_at: r.finished_at, created_at: at(JOBS_KEEP_DAYS + 10), updated_at: r.finished_at ?? at(JOBS_KEEP_DAYS + 10) });
+			}
+			const report = await runHousekeeping(t.db, s.store);
+			expect(report.endedJobs).toBe(3);
+			const left = (await t.db('jobs').where({ kind: 'retention-test' }).select('idempotency_key')).map((r: { idempotency_key: string }) => r.idempotency_key).sort();
+			expect(left).toEqual(['old-queued', 'old-running', 'recent-finished']);
+			expect(jobsKeepDays({ JOBS_KEEP_DAYS: '7' })).toBe(7);
+			expect(jobsKeepDays({ JOBS_KEEP_DAYS: 'soon' })).toBe(JOBS_KEEP_DAYS);
+			await expect(purgeEndedJobs(t.db, 0)).rejects.toThrow(RangeError);
 		});
 	});
 

@@ -406,9 +406,9 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 			await new Promise((r) => setTimeout(r, opts.intervalMs ?? 500));
 		}
 	}
-	async function savedVersion(networkId: number, queued: Promise<{ job: Job }>): Promise<RecipeVersion> {
+	async function savedVersion(networkId: number, queued: Promise<{ job: Job }>, onProgress?: (job: Job) => void): Promise<RecipeVersion> {
 		const { job } = await queued;
-		const done = await waitForJob(networkId, job.id, { intervalMs: 250 });
+		const done = await waitForJob(networkId, job.id, { intervalMs: 250, onProgress });
 		if (done.state !== 'finished') throw new ApiClientError(422, done.state === 'cancelled' ? 'cancelled' : 'recipe_failed', done.error ?? 'The version could not be saved.', { layers: done.error ?? '' });
 		return (done.result as { version: RecipeVersion }).version;
 	}
@@ -452,9 +452,10 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		getRecipe: (networkId: number, recipeId: number) => call<{ recipe: Recipe }>('GET', `/networks/${networkId}/recipes/${recipeId}`).then((r) => r.recipe),
 		listRecipeVersions: (networkId: number, recipeId: number) => call<{ versions: RecipeVersion[] }>('GET', `/networks/${networkId}/recipes/${recipeId}/versions`).then((r) => r.versions),
 		/** Both queue a job that saves the version with its importance surface (202 {job}); followed here until the version exists. */
-		createRecipe: (networkId: number, input: { name: string; definition: RecipeDefinition; note?: string }) => savedVersion(networkId, call<{ job: Job }>('POST', `/networks/${networkId}/recipes`, input)),
-		addRecipeVersion: (networkId: number, recipeId: number, input: { definition: RecipeDefinition; note?: string }) =>
-			savedVersion(networkId, call<{ job: Job }>('POST', `/networks/${networkId}/recipes/${recipeId}/versions`, input)),
+		createRecipe: (networkId: number, input: { name: string; definition: RecipeDefinition; note?: string }, opts: { onProgress?: (job: Job) => void } = {}) =>
+			savedVersion(networkId, call<{ job: Job }>('POST', `/networks/${networkId}/recipes`, input), opts.onProgress),
+		addRecipeVersion: (networkId: number, recipeId: number, input: { definition: RecipeDefinition; note?: string }, opts: { onProgress?: (job: Job) => void } = {}) =>
+			savedVersion(networkId, call<{ job: Job }>('POST', `/networks/${networkId}/recipes/${recipeId}/versions`, input), opts.onProgress),
 		deleteRecipe: (networkId: number, recipeId: number) => call<null>('DELETE', `/networks/${networkId}/recipes/${recipeId}`),
 		/** Queues the preview job (202 {job}), follows it and resolves with the preview; 422 with the reason if it failed. */
 		previewRecipe: async (networkId: number, definition: RecipeDefinition, opts: { onProgress?: (job: Job) => void } = {}) => {
@@ -484,10 +485,14 @@ export function createApiClient(fetchFn: Fetch = fetch, base = '/api/v1') {
 		setArea: (networkId: number, input: { version: number; studyArea?: unknown; exclusions?: unknown[] }) => call<{ area: NetworkArea }>('POST', `/networks/${networkId}/area`, input).then((r) => r.area),
 		listZoneSets: (networkId: number, opts: { geometry?: boolean } = {}) => call<{ zoneSets: ZoneSet[] }>('GET', `/networks/${networkId}/zone-sets${opts.geometry ? '?geometry=1' : ''}`).then((r) => r.zoneSets),
 		getZoneSet: (networkId: number, zoneSetId: number) => call<{ zoneSet: ZoneSet }>('GET', `/networks/${networkId}/zone-sets/${zoneSetId}`).then((r) => r.zoneSet),
-		/** Computed zones come from a job (202 {job}): followed here until the zone set exists. */
+		/**
+		 * Computed zones come from a job (202 {job}); uploaded and grid zones are stored at once (201
+		 * {zoneSet, job}) and their shares measured by the job. Followed here until the zone set
+		 * exists with its shares.
+		 */
 		createZoneSet: async (networkId: number, input: ZoneSetInput) => {
-			const r = await call<{ zoneSet?: ZoneSet; job?: Job }>('POST', `/networks/${networkId}/zone-sets`, input);
-			if (r.zoneSet) return r.zoneSet;
+			const r = await call<{ zoneSet?: ZoneSet; job?: Job | null }>('POST', `/networks/${networkId}/zone-sets`, input);
+			if (r.zoneSet && !r.job) return r.zoneSet;
 			const done = await waitForJob(networkId, r.job!.id);
 			if (done.state !== 'finished') throw new ApiClientError(422, 'zones_failed', done.error ?? 'The zones could not be computed.', { k: done.error ?? '' });
 			return call<{ zoneSet: ZoneSet }>('GET', `/networks/${networkId}/zone-sets/${(done.result as { zoneSetId: number }).zoneSetId}`).then((x) => x.zoneSet);

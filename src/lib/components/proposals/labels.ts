@@ -22,6 +22,9 @@ export const STATE_BADGE: Record<RevisionStateName | 'empty', string> = {
 
 export const STRATEGY_LABELS: Record<string, string> = { lloyd: 'Lloyd', 'range-limited': 'Range-limited', 'zone-balanced': 'Zone-balanced' };
 
+/** Which part of the working grid's cell-size rule (src/lib/geo/cell-size.ts) decided a run's cells. */
+export const CELL_RULE_LABELS: Record<string, string> = { radius: 'by sensing radius', budget: 'by cell budget', pixel: 'by importance pixel', requested: 'as asked for' };
+
 export function percent(v: number | null | undefined, digits = 1): string {
 	return v === null || v === undefined || !Number.isFinite(v) ? '—' : `${(v * 100).toFixed(digits)}\u00a0%`;
 }

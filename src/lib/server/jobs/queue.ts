@@ -181,6 +181,19 @@ export async function cancelJob(db: Knex, id: number, scope: { networkId?: numbe
 // ---- the worker's side --------------------------------------------------------------------------
 
 /** A claimed job: the row and the token that proves the claim. */
+/**
+ * Removes jobs that ended (finished, failed, cancelled) more than `days` days ago, by the
+ * database's clock; queued and running jobs are never touched. Returns how many went. A purged
+ * job's idempotency key is free again.
+ */
+export async function purgeEndedJobs(db: Db, days: number): Promise<number> {
+	if (!(days > 0)) throw new RangeError(`keep ended jobs a positive number of days, not ${days}`);
+	return db('jobs')
+		.whereIn('state', ['finished', 'failed', 'cancelled'])
+		.whereRaw('COALESCE(finished_at, updated_at) < CURRENT_TIMESTAMP(3) - INTERVAL ? SECOND', [Math.round(days * 86_400)])
+		.delete();
+}
+
 export interface Claim {
 	job: JobRow;
 	token: string;

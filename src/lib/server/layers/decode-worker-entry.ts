@@ -7,23 +7,11 @@
 import { parentPort, workerData } from 'node:worker_threads';
 import { LayerRejected } from './errors';
 import { processLayer, type ProcessOptions } from './inspect';
+import { portRangeReader } from './range-port';
 
 const job = workerData as { options: ProcessOptions };
 const port = parentPort!;
-const pending = new Map<number, (bytes: Uint8Array) => void>();
-let next = 0;
-port.on('message', (msg: { id: number; bytes: Uint8Array }) => {
-	pending.get(msg.id)?.(msg.bytes);
-	pending.delete(msg.id);
-});
-const reader = {
-	read: (offset: number, length: number) =>
-		new Promise<Uint8Array>((resolve) => {
-			const id = next++;
-			pending.set(id, resolve);
-			port.postMessage({ type: 'read', id, offset, length });
-		})
-};
+const reader = portRangeReader(port);
 try {
 	const result = await processLayer(reader, job.options);
 	port.postMessage({ type: 'done', result });

@@ -380,21 +380,46 @@ export async function deleteRecipe(db: Knex, store: ObjectStore, networkId: numb
  * The network's current importance surface (the version in networks.recipe_version_id), or null
  * when the network has not chosen one. The surface is read from the object store; when it was
  * never computed (or its object is gone) it is computed now and cached under the version's
- * surface_key. See NetworkImportance for the shape.
+ * surface_key: for jobs only. A request asks with `{ compute: false }`, which throws
+ * ImportancePending instead (see recipeVersionImportance). See NetworkImportance for the shape.
  */
-export async function networkImportance(db: Knex, store: ObjectStore, networkId: number): Promise<NetworkImportance | null> {
+export async function networkImportance(db: Knex, store: ObjectStore, networkId: number, opts: { compute?: boolean } = {}): Promise<NetworkImportance | null> {
 	const versionId = await networkRecipeVersionId(db, networkId);
 	if (versionId === null) return null;
-	return recipeVersionImportance(db, store, networkId, versionId);
+	return recipeVersionImportance(db, store, networkId, versionId, opts);
 }
 
-/** The importance surface of one recipe version of the network (cached like networkImportance), or null when there is no such version. */
-export async function recipeVersionImportance(db: Knex, store: ObjectStore, networkId: number, versionId: number): Promise<NetworkImportance | null> {
+/**
+ * A recipe version's surface is not stored (yet, or any more): a request that needs it does not
+ * compute it, it queues a recipe-version job that does (`versionId`; the job's result is
+ * {versionId}) and answers "being computed".
+ */
+export class ImportancePending extends ServiceError {
+	constructor(
+		public readonly versionId: number,
+		public readonly jobId: number
+	) {
+		super(409, 'importance_pending', 'The importance surface of this recipe version is being computed; try again in a moment.');
+	}
+}
+
+/**
+ * The importance surface of one recipe version of the network (cached like networkImportance), or
+ * null when there is no such version. A missing surface is computed here, unless `compute` is
+ * false: then the recipe-version job that computes it is queued (once per stored state of the
+ * version) and ImportancePending is thrown.
+ */
+export async function recipeVersionImportance(db: Knex, store: ObjectStore, networkId: number, versionId: number, opts: { compute?: boolean } = {}): Promise<NetworkImportance | null> {
 	const version = await findVersion(db, networkId, versionId);
 	if (!version) return null;
 	let surface: ComputedSurface | null = null;
 	if (version.surface_key && (await store.exists(version.surface_key))) {
 		surface = decodeSurface(await store.getBuffer(version.surface_key));
+	}
+	if (!surface && opts.compute === false) {
+		const { queueVersionSurface } = await import('./recipe-versions');
+		const job = await queueVersionSurface(db, networkId, version.id, version.surface_key);
+		throw new ImportancePending(version.id, job.id);
 	}
 	if (!surface) {
 		surface = await computeSurface(db, store, networkId, parseOrFail(version.definition));

@@ -6,7 +6,8 @@
  * and queues a layer-processing job, which calls processLayer. Whatever refuses it (too large, not
  * a TIFF, no georeferencing, unknown CRS, all nodata, band missing, too many pixels, corrupt
  * compression) removes the stored objects and the row again: a refused upload leaves nothing
- * behind. Processing reads the stored file tile by tile (processStoredLayer) and builds the
+ * behind. Processing reads the stored file tile by tile, by byte ranges (in the job's pool thread,
+ * or processStoredLayer's decoding worker) and builds the
  * statistics, histogram and preview in one pass: memory stays at a few tiles and the preview.
  *
  * Limits (environment, read by layerLimits):
@@ -21,6 +22,7 @@ import type { Knex } from 'knex';
 import { z } from 'zod';
 import { LayerRejected } from '../layers/errors';
 import { processStoredLayer } from '../layers/decode';
+import type { ByteRangeReader } from '../../geo/geotiff';
 import { newObjectKey, type ObjectStore } from '../storage/object-store';
 import { recordAudit } from '../repositories/audit';
 import { deleteLayerRow, findLayer, insertLayer, listLayers, updateLayer, type LayerRow } from '../repositories/layers';
@@ -149,22 +151,23 @@ export interface LayerAnalysis {
 }
 
 /**
- * The CPU part of processing a layer held in memory: check the band, describe it and render its
- * preview in one pass over its blocks.
- * Throws LayerRejected for a raster we refuse. Pure (no I/O): the layer-processing job runs it in a
- * worker thread.
+ * The CPU part of processing a stored layer: check the band, describe it and render its preview in
+ * one pass over its blocks, read by byte ranges from `reader` (the band and the file are never held
+ * whole). Throws LayerRejected for a raster we refuse. No I/O of its own besides `reader`: the
+ * layer-processing job runs it in a pool thread, with the ranges served from the object store.
  */
-export async function analyseLayerBytes(bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }): Promise<LayerAnalysis> {
+export async function analyseStoredLayer(reader: ByteRangeReader, opts: { band: number; name: string; maxPixels: number }): Promise<LayerAnalysis> {
 	// The GeoTIFF reader is loaded on first use (see DEVELOPERS.md: geotiff and build-time analysis).
-	// One streamed pass over the file's blocks: the band is never decoded whole.
 	const { processLayer: processRaster } = await import('../layers/inspect');
-	const buffer = bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength ? (bytes.buffer as ArrayBuffer) : (bytes.slice().buffer as ArrayBuffer);
-	const { metadata, preview } = await processRaster(buffer, { band: opts.band, name: opts.name, maxPixels: opts.maxPixels, parallel: false });
+	const { metadata, preview } = await processRaster(reader, { band: opts.band, name: opts.name, maxPixels: opts.maxPixels, parallel: false });
 	return { metadata, png: preview.png };
 }
 
-/** Runs analyseLayerBytes somewhere (the job's pool thread); without one, processLayer streams from storage. */
-export type LayerAnalyser = (bytes: Uint8Array, opts: { band: number; name: string; maxPixels: number }) => Promise<LayerAnalysis>;
+/**
+ * Runs analyseStoredLayer somewhere (the job's pool thread) on the stored file's byte ranges;
+ * without one, processLayer runs it in a heap-limited decoding worker (processStoredLayer).
+ */
+export type LayerAnalyser = (reader: ByteRangeReader, opts: { band: number; name: string; maxPixels: number }) => Promise<LayerAnalysis>;
 
 /**
  * Stream `body` into the store and leave the layer `processing`, for processLayer to finish.
@@ -216,10 +219,11 @@ export async function processLayer(db: Knex, store: ObjectStore, ctx: UploadCont
 	let previewKey: string | null = null;
 	try {
 		const opts = { band: row.band, name: row.original_name || row.name, maxPixels: limits.maxPixels };
-		// By default the stored file is read tile by tile in a heap-limited worker thread (a
-		// decompression bomb ends that worker, not the server); a given analyser gets the bytes.
+		// The stored file is read tile by tile, by byte ranges, in a heap-limited thread (a
+		// decompression bomb ends that thread, not the server): the given analyser's (the job's pool
+		// thread) or, without one, a decoding worker of its own.
 		const { metadata, png } = analyse
-			? await analyse(await store.getBuffer(row.storage_key), opts)
+			? await analyseFromStore(store, row.storage_key, opts, analyse)
 			: await processStoredLayer(store, row.storage_key, opts, { heapMb: limits.decodeHeapMb }).then((r) => ({ metadata: r.metadata, png: r.preview.png }));
 		previewKey = newObjectKey('previews');
 		await store.put(previewKey, Buffer.from(png.buffer, png.byteOffset, png.byteLength), { contentType: 'image/png' });
@@ -256,6 +260,15 @@ export async function processLayer(db: Knex, store: ObjectStore, ctx: UploadCont
 			throw rejected;
 		}
 		throw e;
+	}
+}
+
+async function analyseFromStore(store: ObjectStore, key: string, opts: { band: number; name: string; maxPixels: number }, analyse: LayerAnalyser): Promise<LayerAnalysis> {
+	const reader = await store.openRanges(key);
+	try {
+		return await analyse(reader, opts);
+	} finally {
+		await reader.close();
 	}
 }
 

@@ -2,7 +2,8 @@
  * A placement run as a use case, in three steps that the job handler calls in order:
  *
  *   preparePlacement  reads the network's inputs (recipe version, zone set, sensors, study area,
- *                     exclusions), builds the working grid and the engine's input, and a snapshot
+ *                     exclusions), builds the working grid (runWorkingGrid: the cell-size rule of
+ *                     geo/cell-size, recorded as inputs.cellSize) and the engine's input, and a snapshot
  *                     of every input (layer ids with SHA-256 content hashes, positions, radii);
  *   executePlacement  runs the engine off the event loop (worker thread), twice: the network as it
  *                     stands (0 iterations, the "before" figures) and the strategy asked for;
@@ -20,7 +21,10 @@ import { rasterizeZones } from '../../engine/rasterize';
 import { CrsError, crsLabel, transformer } from '../../geo/crs';
 import { projectRings } from '../../geo/geojson';
 import { planMoves, type MovePlan } from '../../geo/move-plan';
-import { buildWorkingGrid, WorkingGridError } from '../../geo/working-grid';
+import { WorkingGridError, type WorkingGridOptions } from '../../geo/working-grid';
+import { aggregateToWorkingGrid } from '../../geo/aggregate';
+import { CellSizeError, type CellSizeChoice } from '../../geo/cell-size';
+import type { GeoTiffSource, RasterBand } from '../../geo/geotiff';
 import { ImportanceError } from '../../importance/grid';
 import { findLayer } from '../repositories/layers';
 import { findVersion, networkRecipeVersionId } from '../repositories/recipes';
@@ -96,9 +100,23 @@ export interface SensorSnapshot {
 	y: number;
 }
 
+/** How the working grid's cell size was chosen (src/lib/geo/cell-size.ts), as a revision records it. */
+export interface CellSizeRecord {
+	rule: CellSizeChoice['rule'];
+	reason: string;
+	/** The cell size asked for (the run's `cellSize`), or null for the rule's own choice. */
+	requestedM: number | null;
+	chosenM: number;
+	pixelM: number;
+	smallestRadiusM: number | null;
+	budgetCells: number;
+}
+
 export interface RevisionInputs {
 	crs: string;
 	grid: { cellSizeM: number; width: number; height: number; x0: number; y0: number };
+	/** Absent in revisions made before runs used the cell-size rule. */
+	cellSize?: CellSizeRecord;
 	recipeVersion: { id: number; recipeId: number; version: number };
 	layers: { id: number; name: string; sha256: string | null }[];
 	zoneSet: { id: number; name: string; zones: { code: string; name: string }[] } | null;
@@ -122,9 +140,44 @@ export interface PreparedPlacement {
 }
 
 function inputFailure(e: unknown): never {
+	if (e instanceof CellSizeError) throw new ServiceError(422, 'invalid_input', `The cell size cannot be used: ${e.message}`, 'cellSize');
 	if (e instanceof ImportanceError || e instanceof WorkingGridError || e instanceof CrsError) throw new ServiceError(422, 'inputs_unusable', `The inputs cannot be used: ${e.message}`);
 	if (e instanceof EngineInputError) throw new ServiceError(422, 'inputs_unusable', e.message, e.field);
 	throw e;
+}
+
+/** An in-memory band (the importance surface) as a source of one block, for the streamed aggregation. */
+function bandSource(band: RasterBand): GeoTiffSource {
+	const { data, ...header } = band;
+	return {
+		...header,
+		blockWidth: band.width,
+		blockHeight: band.height,
+		overviews: [],
+		async *blocks() {
+			yield { row0: 0, width: band.width, height: band.height, data };
+		},
+		async close() {}
+	};
+}
+
+/**
+ * The run's working grid: the importance surface aggregated (mass-preserving) into cells of the
+ * size chooseCellSize's rule gives for the smallest sensing radius taking part, the study area's
+ * extent and the cell budget, never finer than the surface's pixels; `cellSize` overrides the rule
+ * (still never finer than the pixels). The same rule and aggregation as the command line's `place`.
+ */
+export async function runWorkingGrid(
+	band: RasterBand,
+	opts: Pick<WorkingGridOptions, 'crs' | 'studyArea' | 'exclusions'> & { smallestRadius: number | null; cellSize?: number | null }
+): Promise<{ grid: WorkingGrid; epsg: number; cellSize: CellSizeRecord }> {
+	const out = await aggregateToWorkingGrid(bandSource(band), { ...opts, maxCells: MAX_RUN_CELLS });
+	const c = out.cellSize;
+	return {
+		grid: out.grid,
+		epsg: out.epsg,
+		cellSize: { rule: c.rule, reason: c.reason, requestedM: c.requested, chosenM: c.cellSize, pixelM: c.pixelSize, smallestRadiusM: c.smallestRadius, budgetCells: c.budget }
+	};
 }
 
 /** Reads and checks everything a run needs; throws ServiceError (422) for anything the analyst can fix. */
@@ -140,20 +193,38 @@ export async function preparePlacement(db: Knex, store: ObjectStore, networkId: 
 	const version = await findVersion(db, networkId, versionId);
 	if (!version) throw new ServiceError(422, 'no_importance', 'No such recipe version in this network.', 'recipeVersionId');
 
+	// Sensors taking part and the type of the new ones: their smallest radius sizes the working grid.
+	const types = new Map((await listSensorTypes(db, networkId)).map((t) => [t.id, t]));
+	const { rows } = await listSensors(db, networkId);
+	const chosen = p.sensorIds ? new Set(p.sensorIds) : null;
+	if (chosen) {
+		const known = new Set(rows.map((r) => r.id));
+		const missing = [...chosen].filter((id) => !known.has(id));
+		if (missing.length) throw new ServiceError(422, 'invalid_input', `Sensor ${missing[0]} is not in this network.`, 'sensorIds');
+	}
+	const taking = rows.filter((r) => (chosen ? chosen.has(r.id) : r.status === 'active'));
+	let addType = null;
+	if (p.addCount > 0) {
+		addType = p.addTypeId !== undefined ? types.get(p.addTypeId) : [...types.values()].find((t) => t.mobility !== 'fixed');
+		if (!addType) throw new ServiceError(422, 'invalid_input', p.addTypeId !== undefined ? 'No such sensor type in this network.' : 'Choose the type of the new sensors.', 'addTypeId');
+	}
+	const radii = [...taking.map((r) => Number(types.get(r.sensor_type_id)!.radius_m)), ...(addType ? [Number(addType.radius_m)] : [])].filter((r) => r > 0);
+
 	let grid: WorkingGrid;
 	let epsg: number;
+	let cellSize: CellSizeRecord;
 	const area = asMultiPolygon(network.study_area);
 	const workingEpsg = await workingCrs(db, network);
 	const exclusions = exclusionList(network.exclusions);
 	try {
 		const imp = await recipeVersionImportance(db, store, networkId, versionId);
 		if (!imp) throw new ServiceError(422, 'no_importance', 'The recipe version has no importance surface.', 'recipeVersionId');
-		({ grid, epsg } = buildWorkingGrid(surfaceRasterBand(imp), {
+		({ grid, epsg, cellSize } = await runWorkingGrid(surfaceRasterBand(imp), {
 			crs: workingEpsg,
 			cellSize: p.cellSize,
+			smallestRadius: radii.length > 0 ? Math.min(...radii) : null,
 			studyArea: area?.coordinates?.length ? area.coordinates : undefined,
-			exclusions: exclusions.map((f) => f.geometry.coordinates).flat(),
-			maxCells: MAX_RUN_CELLS
+			exclusions: exclusions.map((f) => f.geometry.coordinates).flat()
 		}));
 	} catch (e) {
 		if (e instanceof WorkingGridError && /over the limit/.test(e.message)) throw new ServiceError(422, 'grid_too_large', e.message, 'cellSize');
@@ -174,26 +245,13 @@ export async function preparePlacement(db: Knex, store: ObjectStore, networkId: 
 	}
 	if (p.strategy === 'zone-balanced' && !zones) throw new ServiceError(422, 'no_zones', 'Zone-balanced placement needs a zone set: choose one, or make one on the Area & zones tab.', 'zoneSetId');
 
-	// Sensors.
-	const types = new Map((await listSensorTypes(db, networkId)).map((t) => [t.id, t]));
-	const { rows } = await listSensors(db, networkId);
-	const chosen = p.sensorIds ? new Set(p.sensorIds) : null;
-	if (chosen) {
-		const known = new Set(rows.map((r) => r.id));
-		const missing = [...chosen].filter((id) => !known.has(id));
-		if (missing.length) throw new ServiceError(422, 'invalid_input', `Sensor ${missing[0]} is not in this network.`, 'sensorIds');
-	}
-	const taking = rows.filter((r) => (chosen ? chosen.has(r.id) : r.status === 'active'));
+	// Sensor snapshots in the working CRS, then the new sensors' starting sites.
 	const snapshots: SensorSnapshot[] = taking.map((r) => {
 		const t = types.get(r.sensor_type_id)!;
 		const [x, y] = toWork(r.lon, r.lat);
 		return { id: r.id, code: r.code, typeId: t.id, typeName: t.name, radiusM: Number(t.radius_m), mobility: t.mobility, status: r.status, role: t.mobility === 'fixed' ? 'anchor' : 'moves', lon: r.lon, lat: r.lat, x, y };
 	});
-
-	let addType = null;
-	if (p.addCount > 0) {
-		addType = p.addTypeId !== undefined ? types.get(p.addTypeId) : [...types.values()].find((t) => t.mobility !== 'fixed');
-		if (!addType) throw new ServiceError(422, 'invalid_input', p.addTypeId !== undefined ? 'No such sensor type in this network.' : 'Choose the type of the new sensors.', 'addTypeId');
+	if (addType) {
 		const toLonLat = transformer(epsg, 4326).forward;
 		const sites = addedSites(grid, snapshots, p.addCount, p.seed);
 		sites.forEach((s, k) => {
@@ -226,6 +284,7 @@ export async function preparePlacement(db: Knex, store: ObjectStore, networkId: 
 		inputs: {
 			crs: crsLabel(epsg),
 			grid: { cellSizeM: grid.cellSize, width: grid.width, height: grid.height, x0: grid.x0, y0: grid.y0 },
+			cellSize,
 			recipeVersion: { id: version.id, recipeId: version.recipe_id, version: version.version },
 			layers,
 			zoneSet,

@@ -3,6 +3,8 @@
  * `recipe-version` job (../jobs/kinds/recipe-version.ts) that calls saveRecipeVersion, which stores
  * the surface and the version together (or neither). The request does the cheap checks (input,
  * layers ready, recipe and name) so that most mistakes are answered at once, and returns the job.
+ * The same kind computes the surface of an existing version whose stored surface is missing
+ * (queueVersionSurface), so that no request computes one.
  */
 import type { Knex } from 'knex';
 import { enqueueJob, jobView, type JobView } from '../jobs/queue';
@@ -12,11 +14,23 @@ import { checkRecipe, saveVersionInput, type SaveVersionInput } from './importan
 
 export const RECIPE_VERSION = 'recipe-version';
 
-export interface RecipeVersionWork {
-	networkId: number;
-	organisationId: number;
-	actorId: number;
-	input: SaveVersionInput;
+export type RecipeVersionWork =
+	| {
+			networkId: number;
+			organisationId: number;
+			actorId: number;
+			input: SaveVersionInput;
+	  }
+	| { networkId: number; operation: 'surface'; versionId: number };
+
+/**
+ * Queue computing and storing the surface of an existing version. One job per stored state
+ * (`surfaceKey`, null when never stored): asked again while it runs, or after it stored one that
+ * went missing since, this gives the running job or a new one.
+ */
+export async function queueVersionSurface(db: Knex, networkId: number, versionId: number, surfaceKey: string | null): Promise<JobView> {
+	const payload: RecipeVersionWork = { networkId, operation: 'surface', versionId };
+	return jobView(await enqueueJob(db, { kind: RECIPE_VERSION, payload, networkId, priority: 10, idempotencyKey: `recipe-surface:${versionId}:${surfaceKey ?? 'none'}` }));
 }
 
 export async function queueRecipeVersion(db: Knex, networkId: number, organisationId: number, actorId: number, input: SaveVersionInput): Promise<JobView> {

@@ -1,6 +1,7 @@
 /**
  * Zone work queued as jobs (../jobs/kinds/zones.ts): computing zones from the importance and
- * measuring zone shares. The request does the cheap checks and answers with the job.
+ * measuring zone shares. The request does the cheap checks and answers with the job; an uploaded or
+ * grid zone set is stored at once without shares, and its shares are measured by a job.
  */
 import type { Knex } from 'knex';
 import { enqueueJob, jobView, type JobView } from '../jobs/queue';
@@ -25,4 +26,14 @@ export async function queueZoneShares(db: Knex, network: NetworkRow, actorId: nu
 	if (!(await findZoneSet(db, network.id, zoneSetId))) throw new ServiceError(404, 'not_found', 'No such zone set.');
 	const payload: ZoneWork = { networkId: network.id, actorId, operation: 'measure', zoneSetId };
 	return jobView(await enqueueJob(db, { kind: ZONE_WORK, payload, networkId: network.id, createdBy: actorId, priority: 5 }));
+}
+
+/**
+ * Queue measuring the shares of a zone set just stored without them, when the network has an
+ * importance to measure against; null when it has none (the shares stay unknown).
+ */
+export async function queueSharesOfNewZoneSet(db: Knex, network: NetworkRow, actorId: number, zoneSetId: number): Promise<JobView | null> {
+	const row = await db('networks').select('recipe_version_id').where({ id: network.id }).first();
+	if (!row?.recipe_version_id) return null;
+	return queueZoneShares(db, network, actorId, zoneSetId);
 }

@@ -1,10 +1,13 @@
 /**
  * `layer-processing`: inspection, statistics and preview of an uploaded layer, after the upload
  * request stored the file. Calls the layer service's processLayer with the CPU part in a pool
- * thread. A refused raster removes the layer (as a refused upload always did) and fails the job at
+ * thread, which reads the stored file by byte ranges that this side serves from the object store
+ * (layers/range-port.ts): memory is bounded by a few tiles and the preview, not by the file. A refused raster removes the layer (as a refused upload always did) and fails the job at
  * once with the reason; a layer whose processing fails otherwise is marked failed with the message.
  */
+import { MessageChannel } from 'node:worker_threads';
 import { LayerRejected } from '../../layers/errors';
+import { serveRanges } from '../../layers/range-port';
 import { layerLimits, processLayer, type LayerAnalysis } from '../../services/layers';
 import type { JobKind } from '../registry';
 import { refusalsFail } from './refusals';
@@ -23,17 +26,23 @@ type AnalyseReply = ({ ok: true } & LayerAnalysis) | { ok: false; code: string; 
 
 export const layerProcessingKind: JobKind<LayerProcessingPayload, { layerId: number }> = {
 	kind: LAYER_PROCESSING,
-	// 25 million Float64 cells are 200 MB, plus the file and the preview's working copies.
-	limits: { timeMs: 10 * 60_000, memoryMb: Number(process.env.JOBS_LAYER_MEMORY_MB ?? 1536) },
+	// A few decoded tiles, the histogram and the preview's accumulator: not the file, not the band.
+	limits: { timeMs: 10 * 60_000, memoryMb: Number(process.env.JOBS_LAYER_MEMORY_MB ?? 512) },
 	maxAttempts: 3,
-	async handler({ payload, db, store, runInThread, reportProgress }) {
+	async handler({ payload, db, store, runInThread, reportProgress, signal }) {
 		reportProgress({ step: 'inspecting' });
 		const limits = layerLimits(process.env);
 		await refusalsFail(() =>
-			processLayer(db, store, payload, payload.layerId, limits, async (bytes, opts) => {
-				const reply = await runInThread<AnalyseReply>('analyseLayer', { bytes, ...opts });
-				if (!reply.ok) throw new LayerRejected(reply.code as LayerRejected['code'], reply.message);
-				return { metadata: reply.metadata, png: reply.png };
+			processLayer(db, store, payload, payload.layerId, limits, async (reader, opts) => {
+				const channel = new MessageChannel();
+				const stop = serveRanges(channel.port1, reader);
+				try {
+					const reply = await runInThread<AnalyseReply>('analyseLayer', { port: channel.port2, ...opts }, { transferList: [channel.port2], signal });
+					if (!reply.ok) throw new LayerRejected(reply.code as LayerRejected['code'], reply.message);
+					return { metadata: reply.metadata, png: reply.png };
+				} finally {
+					stop();
+				}
 			})
 		);
 		reportProgress({ step: 'done' });

@@ -8,15 +8,22 @@ import { place } from '../../../engine';
 import { EngineInputError } from '../../../engine/errors';
 import type { PlacementOptions, SensorInput, WorkingGrid, ZoneMap } from '../../../engine/types';
 import { LayerRejected } from '../../layers/errors';
-import { analyseLayerBytes } from '../../services/layers';
+import { portRangeReader } from '../../layers/range-port';
+import { analyseStoredLayer } from '../../services/layers';
 
-export async function analyseLayer(input: { bytes: Uint8Array; band: number; name: string; maxPixels: number }) {
+/**
+ * Layer processing of a stored file whose byte ranges this thread asks `port` for (the job's side
+ * answers them from the object store: layers/range-port.ts). Memory: a few tiles and the preview.
+ */
+export async function analyseLayer(input: { port: MessagePort; band: number; name: string; maxPixels: number }) {
 	try {
-		const { metadata, png } = await analyseLayerBytes(input.bytes, input);
+		const { metadata, png } = await analyseStoredLayer(portRangeReader(input.port), input);
 		return { ok: true as const, metadata, png };
 	} catch (e) {
 		if (e instanceof LayerRejected) return { ok: false as const, code: e.code, message: e.message };
 		throw e;
+	} finally {
+		input.port.close();
 	}
 }
 

@@ -4,7 +4,6 @@ import { getDb } from '$lib/server/db';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { roleAllows } from '$lib/server/auth/roles';
 import { formFields, parseForm, serviceFailure } from '$lib/server/forms';
-import { getObjectStore } from '$lib/server/storage/app-store';
 import { areaView, parseAreaUpload, setArea } from '$lib/server/services/areas';
 import { workingCrs } from '$lib/server/services/working-crs';
 import { networkRecipeVersionId } from '$lib/server/repositories/recipes';
@@ -14,12 +13,11 @@ import {
 	createUploadedZoneSet,
 	GRID_PRESETS_M,
 	gridInput,
-	importanceForZones,
 	removeZoneSet,
 	useZoneSet,
 	zoneSetViews
 } from '$lib/server/services/zones';
-import { queueComputedZones, queueZoneShares } from '$lib/server/services/zone-jobs';
+import { queueComputedZones, queueSharesOfNewZoneSet, queueZoneShares } from '$lib/server/services/zone-jobs';
 import { ServiceError } from '$lib/server/services/errors';
 
 /** Largest polygon file accepted (the parser also caps features and positions). */
@@ -97,11 +95,13 @@ export const actions = {
 		const name = String(u.data.get('name') ?? '').trim().slice(0, 200);
 		try {
 			const db = getDb();
-			await createUploadedZoneSet(db, network, actor.id, name, u.text, u.file.name, await importanceForZones(db, getObjectStore(), network));
+			const id = await createUploadedZoneSet(db, network, actor.id, name, u.text, u.file.name);
+			const job = await queueSharesOfNewZoneSet(db, network, actor.id, id);
+			const saved = `Zones taken from ${u.file.name}.`;
+			return job ? { action: 'uploadZones', job: { id: job.id, done: `${saved} Their importance shares are measured.` } } : { action: 'uploadZones', saved };
 		} catch (err) {
 			return failure(err, 'uploadZones');
 		}
-		return { action: 'uploadZones', saved: `Zones taken from ${u.file.name}.` };
 	},
 	gridZones: async (event) => {
 		const { network, actor } = await networkAccess(event, 'zone.edit');
@@ -110,11 +110,13 @@ export const actions = {
 		if (!parsed.ok) return fail(400, { ...parsed.failure.data, action: 'gridZones' });
 		try {
 			const db = getDb();
-			await createGridZoneSet(db, network, actor.id, parsed.data.name, parsed.data.cellSizeKm, await importanceForZones(db, getObjectStore(), network));
+			const id = await createGridZoneSet(db, network, actor.id, parsed.data.name, parsed.data.cellSizeKm);
+			const job = await queueSharesOfNewZoneSet(db, network, actor.id, id);
+			const saved = `A ${parsed.data.cellSizeKm} km grid was laid over the study area.`;
+			return job ? { action: 'gridZones', job: { id: job.id, done: `${saved} Its importance shares are measured.` } } : { action: 'gridZones', saved };
 		} catch (err) {
 			return failure(err, 'gridZones');
 		}
-		return { action: 'gridZones', saved: `A ${parsed.data.cellSizeKm} km grid was laid over the study area.` };
 	},
 	computedZones: async (event) => {
 		const { network, actor } = await networkAccess(event, 'zone.edit');
