@@ -174,6 +174,8 @@ const checks: Check[] = [
 	{ name: 'API my route as GPX', method: 'GET', path: '/api/v1/networks/1/tasks.gpx?assignee=me', expect: api(401, 200, 200, 200, 200) },
 	{ name: 'API assign tasks (nothing chosen)', method: 'POST', path: '/api/v1/networks/1/tasks/assignments', json: {}, expect: api(401, 400, 400, 403, 403) },
 	{ name: 'API task update (no Idempotency-Key)', method: 'POST', path: '/api/v1/networks/1/tasks/999999/updates', json: { state: 'started' }, expect: api(401, 403, 403, 403, 400) },
+	{ name: 'API add a photo to a missing task', method: 'POST', path: '/api/v1/networks/1/tasks/999999/photos', json: {}, expect: api(401, 403, 403, 403, 404) },
+	{ name: 'API missing task photo', method: 'GET', path: '/api/v1/networks/1/tasks/999999/photos/999999', expect: api(401, 404, 404, 404, 404) },
 	{ name: 'public map', method: 'GET', path: '/map/vennarrow-vale', expect: page(200, 200, 200, 200, 200) },
 	{ name: 'public map of an unknown network', method: 'GET', path: '/map/no-such-network', expect: page(404, 404, 404, 404, 404) },
 	{ name: 'API public map', method: 'GET', path: '/api/v1/public/networks/vennarrow-vale', expect: api(200, 200, 200, 200, 200) },

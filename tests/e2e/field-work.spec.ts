@@ -9,6 +9,7 @@ import { randomBytes, randomUUID } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test, type APIRequestContext } from '@playwright/test';
+import { PNG } from 'pngjs';
 import type { Knex } from 'knex';
 import { createDb } from '../../src/lib/server/db/knex';
 import { createObjectStore } from '../../src/lib/server/storage/create-object-store';
@@ -161,6 +162,57 @@ test('in a 360 px window the technician reads the cautions, sees the route in or
 	await context.close();
 });
 
+test('photos: the phone resizes a camera photo to 1600 px JPEG before sending; other content is refused leaving nothing; the analyst sees it', async ({ browser }) => {
+	const context = await browser.newContext({ viewport: { width: 360, height: 780 } });
+	const page = await context.newPage();
+	const u = demoUser('technician');
+	await signInPage(page, u.email, u.password);
+	await gotoHydrated(page, `/networks/${networkId}/field`);
+	const card = page.locator('[data-testid="task-card"][data-state="blocked"]').first();
+	const taskId = Number(await card.getAttribute('data-task-id'));
+	// A 2400 × 1200 PNG (pngjs, a library we did not write): resized on the phone it becomes 1600 × 800.
+	const png = new PNG({ width: 2400, height: 1200 });
+	for (let i = 0; i < png.data.length; i += 4) png.data.set([(i / 4) % 251, 120, 60, 255], i);
+	await card.getByTestId('photo-input').setInputFiles({ name: 'field.png', mimeType: 'image/png', buffer: PNG.sync.write(png) });
+	await expect(card.getByText('Photo saved.')).toBeVisible();
+	await expect(card.locator('img')).toHaveCount(1);
+	expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(360);
+	await card.screenshot({ path: '/tmp/field-360-photo.png' });
+	await context.close();
+	const rows = await db('field_task_photos').where({ task_id: taskId });
+	expect(rows).toHaveLength(1);
+	expect(rows[0]).toMatchObject({ content_type: 'image/jpeg', width: 1600, height: 800 });
+
+	// The API refuses a GIF ("GIF89a", GIF89a spec §17) with a clear message; no row is added. (The
+	// route's body limit is checked in tests/unit/security/body-limit.test.ts.)
+	const tech = await contextFor('technician');
+	const url = `/api/v1/networks/${networkId}/tasks/${taskId}/photos`;
+	const gif = Buffer.from([0x47, 0x49, 0x46, 0x38, 0x39, 0x61, 1, 0, 1, 0, 0, 0, 0, 0x3b]);
+	const refused = await tech.post(url, { data: gif, headers: { 'content-type': 'image/jpeg' } });
+	expect(refused.status()).toBe(415);
+	expect((await refused.json()).error.message).toContain('JPEG and PNG');
+	expect(await db('field_task_photos').where({ task_id: taskId })).toHaveLength(1);
+	// The stored photo is served to the technician as the JPEG its row says.
+	const served = await tech.get(`${url}/${rows[0].id}`);
+	expect(served.status()).toBe(200);
+	expect(served.headers()['content-type']).toBe('image/jpeg');
+	expect([...(await served.body()).subarray(0, 3)]).toEqual([0xff, 0xd8, 0xff]); // JPEG SOI + marker (ITU-T T.81, B.1.1.3)
+	await tech.dispose();
+
+	// The analyst's Field tasks tab: the photo beside its task, and planned against installed on the map.
+	const analyst = await browser.newContext();
+	const ap = await analyst.newPage();
+	const a = demoUser('analyst');
+	await signInPage(ap, a.email, a.password);
+	await gotoHydrated(ap, `/networks/${networkId}/tasks`);
+	await expect(ap.getByTestId('task-photos-cell').locator('img')).toHaveCount(1);
+	const installed = await db('field_tasks').where({ network_id: networkId, state: 'done' }).whereNotNull('installed_lon').count({ n: '*' }).first();
+	await expect(ap.locator('.cf-field-installed')).toHaveCount(Number(installed!.n));
+	await expect(ap.getByTestId('field-offsets').locator('li')).toHaveCount(Number(installed!.n));
+	await ap.screenshot({ path: '/tmp/field-tasks-tab.png', fullPage: true });
+	await analyst.close();
+});
+
 test('the public map needs no sign-in and shows nothing private, in its HTML or its JSON', async ({ page }) => {
 	const anon = await contextFor(null);
 	const html = await (await anon.get(`/map/${slug}`, { headers: { accept: 'text/html' } })).text();
@@ -184,7 +236,8 @@ test('the public map needs no sign-in and shows nothing private, in its HTML or 
 		...(await db('reviews as r').join('revisions as v', 'v.id', 'r.revision_id').select('r.comment').where('v.network_id', networkId)).map((r) => r.comment).filter((v) => v && v.length > 3),
 		...(await db('field_tasks').select('note', 'blocked_reason').where({ network_id: networkId })).flatMap((t) => [t.note, t.blocked_reason]).filter((v) => v && v.length > 3),
 		...(await db('sensors').select('serial', 'code').where({ network_id: networkId })).flatMap((s) => [s.serial, s.code]).filter(Boolean),
-		DEMO_FIELD.blockedReason
+		DEMO_FIELD.blockedReason,
+		...(await db('field_task_photos').select('object_key', 'id', 'task_id').where({ network_id: networkId })).flatMap((p) => [p.object_key, `/tasks/${p.task_id}/photos/${p.id}`])
 	];
 	const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/'/g, '&#39;').replace(/"/g, '&quot;');
 	for (const v of new Set(privateValues)) {

@@ -20,6 +20,19 @@ import { networkRecipeVersionId } from '../../src/lib/server/repositories/recipe
 import { placementNetwork, type PlacementNetwork } from '../helpers/placement-network';
 import { fsTestStore, type TestStore } from './layers-support';
 import { checkGpx } from '../helpers/gpx-rules';
+import { PNG } from 'pngjs';
+import { addTaskPhoto, photosOfTasks, readTaskPhoto } from '../../src/lib/server/services/field-photos';
+
+/**
+ * The headers of a baseline JPEG of `w` × `h` pixels: SOI, a JFIF APP0 segment (JFIF 1.02), a SOF0
+ * frame header with three components (ITU-T T.81, B.2.2) and EOI. Enough for a reader of the
+ * header; no scan data.
+ */
+function jpegHeader(w: number, h: number): Uint8Array {
+	const app0 = [0xff, 0xe0, 0x00, 0x10, 0x4a, 0x46, 0x49, 0x46, 0x00, 0x01, 0x02, 0x00, 0x00, 0x01, 0x00, 0x01, 0x00, 0x00];
+	const sof0 = [0xff, 0xc0, 0x00, 0x11, 0x08, h >> 8, h & 0xff, w >> 8, w & 0xff, 0x03, 0x01, 0x22, 0x00, 0x02, 0x11, 0x01, 0x03, 0x11, 0x01];
+	return Uint8Array.from([0xff, 0xd8, ...app0, ...sof0, 0xff, 0xd9]);
+}
 
 const ORIGIN = 'https://cairnfield.example.org';
 const KIND_WORDS = { move: 'Move', install: 'Install', remove: 'Remove' } as const;
@@ -197,6 +210,50 @@ describe('field tasks', () => {
 		expect((b.body as { task: TaskView }).task).toMatchObject({ state: 'blocked', blockedReason: 'Flooded ford' });
 	});
 
+	it('photos: JPEG and PNG by content, stored with a row and an audit entry; others refused leaving nothing; a repeated key stores once; private to the task', async () => {
+		const [task] = (await currentTasks(t.db, net.network.id, { assigneeId: techA.id })).filter((x) => x.state !== 'cancelled');
+		const keysBefore = (await s.keys()).length;
+		// A 3 × 2 PNG written by pngjs (a library we did not write): its IHDR gives the size.
+		const png = new PNG({ width: 3, height: 2 });
+		png.data.fill(200);
+		const pngBytes = new Uint8Array(PNG.sync.write(png));
+		const a = await addTaskPhoto(t.db, s.store, net.network, techA, task.id, pngBytes, 'photo-key-0001');
+		expect(a.replayed).toBe(false);
+		expect(a.photo).toMatchObject({ taskId: task.id, contentType: 'image/png', width: 3, height: 2, bytes: pngBytes.byteLength });
+		const b = await addTaskPhoto(t.db, s.store, net.network, techA, task.id, jpegHeader(1600, 1200), null);
+		expect(b.photo).toMatchObject({ contentType: 'image/jpeg', width: 1600, height: 1200 });
+		// The same key again: the first photo, nothing stored twice.
+		const again = await addTaskPhoto(t.db, s.store, net.network, techA, task.id, pngBytes, 'photo-key-0001');
+		expect(again).toMatchObject({ replayed: true, photo: { id: a.photo.id } });
+		expect((await s.keys()).length).toBe(keysBefore + 2);
+		const audits = await t.db('audit_log').where({ action: 'task.photo', object_id: task.id });
+		expect(audits).toHaveLength(2);
+
+		// GIF (signature "GIF89a", GIF89a specification §17) and text that claims nothing: refused, nothing left.
+		const rowsBefore = await t.db('field_task_photos').count({ n: '*' }).first();
+		const gif = Uint8Array.from([0x47, 0x49, 0x46, 0x38, 0x39, 0x61, 1, 0, 1, 0, 0x80, 0, 0, 0, 0, 0, 0xff, 0xff, 0xff, 0x21, 0xf9, 4, 1, 0, 0, 0, 0, 0x2c, 0, 0, 0, 0, 1, 0, 1, 0, 0, 2, 2, 0x44, 1, 0, 0x3b]);
+		for (const bad of [gif, new TextEncoder().encode('<html><script>alert(1)</script></html>')]) {
+			await expect(addTaskPhoto(t.db, s.store, net.network, techA, task.id, bad, null)).rejects.toMatchObject({ status: 415, code: 'unsupported_image' });
+		}
+		await expect(addTaskPhoto(t.db, s.store, net.network, techA, task.id, new Uint8Array(), null)).rejects.toMatchObject({ status: 400 });
+		expect(await t.db('field_task_photos').count({ n: '*' }).first()).toEqual(rowsBefore);
+		expect((await s.keys()).length).toBe(keysBefore + 2);
+
+		// Only the assignee adds; the key of another task's photo is refused.
+		await expect(addTaskPhoto(t.db, s.store, net.network, techB, task.id, pngBytes, null)).rejects.toMatchObject({ status: 403 });
+		const [other] = await currentTasks(t.db, net.network.id, { assigneeId: techA.id }).then((l) => l.filter((x) => x.id !== task.id));
+		if (other) await expect(addTaskPhoto(t.db, s.store, net.network, techA, other.id, pngBytes, 'photo-key-0001')).rejects.toMatchObject({ status: 422 });
+
+		// Reading: the bytes as sent, for the assignee and the analyst; another technician gets 404.
+		const got = await readTaskPhoto(t.db, s.store, net.network.id, task.id, a.photo.id, { id: techA.id, ownTasksOnly: true });
+		expect(new Uint8Array(got.body)).toEqual(pngBytes);
+		expect(got.contentType).toBe('image/png');
+		expect((await readTaskPhoto(t.db, s.store, net.network.id, task.id, b.photo.id, { id: analyst.id, ownTasksOnly: false })).contentType).toBe('image/jpeg');
+		await expect(readTaskPhoto(t.db, s.store, net.network.id, task.id, a.photo.id, { id: techB.id, ownTasksOnly: true })).rejects.toMatchObject({ status: 404 });
+		const listed = await photosOfTasks(t.db, net.network.id, [task.id]);
+		expect(listed[task.id].map((p) => p.id)).toEqual([a.photo.id, b.photo.id]);
+	});
+
 	it('a newer approved plan cancels the open tasks of the one it supersedes, says why, and tells the technicians', async () => {
 		const old = await currentTasks(t.db, net.network.id);
 		const oldPlan = old[0].planId;
@@ -249,6 +306,11 @@ describe('field tasks', () => {
 			expect(text).not.toContain(u.email);
 		}
 		for (const word of ['assignee', 'serial', 'note', 'Flooded ford', 'Set at the fence post', 'author', 'email']) expect(text).not.toContain(word);
+		// Nor any photo: neither its row's key nor its address.
+		const photos = await t.db('field_task_photos').select('object_key').where({ network_id: net.network.id });
+		expect(photos.length).toBeGreaterThan(0);
+		for (const p of photos) expect(text).not.toContain(p.object_key);
+		expect(text).not.toContain('photo');
 
 		// Generalised to a 500 m grid: every position is the centre of the 500 m cell that holds the exact one.
 		await t.db('networks').where({ id: net.network.id }).update({ public_grid_m: 500 });

@@ -23,6 +23,9 @@ describe('per-route body limits', () => {
 		expect(bodyLimitFor('/api/v1/networks', 'POST')).toBe(SMALL_BODY_BYTES);
 		expect(bodyLimitFor('/api/v1/networks/[id=id]/layers', 'POST')).toBe(Infinity);
 		expect(bodyLimitFor('/api/v1/networks/[id=id]/layers', 'GET')).toBe(SMALL_BODY_BYTES);
+		// A task's photo: 8 MiB, the photo service's own limit too; the task's JSON updates keep the small one.
+		expect(bodyLimitFor('/api/v1/networks/[id=id]/tasks/[taskId=id]/photos', 'POST')).toBe(8 * 1024 * 1024);
+		expect(bodyLimitFor('/api/v1/networks/[id=id]/tasks/[taskId=id]/updates', 'POST')).toBe(SMALL_BODY_BYTES);
 	});
 
 	it('refuse a declared length over the limit without reading a byte', async () => {

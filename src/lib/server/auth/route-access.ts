@@ -81,6 +81,8 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/networks/[id=id]/tasks.gpx': 'signed-in',
 	'/api/v1/networks/[id=id]/tasks/assignments': 'signed-in',
 	'/api/v1/networks/[id=id]/tasks/[taskId=id]/updates': 'signed-in',
+	'/api/v1/networks/[id=id]/tasks/[taskId=id]/photos': 'signed-in',
+	'/api/v1/networks/[id=id]/tasks/[taskId=id]/photos/[photoId=id]': 'signed-in',
 	'/(public)/map/[slug]': 'public',
 	'/api/v1/public/networks/[slug]': 'public',
 	'/api/v1/public/networks/[slug]/importance.png': 'public'

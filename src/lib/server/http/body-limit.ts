@@ -8,6 +8,8 @@
 
 export const SMALL_BODY_BYTES = 1024 * 1024;
 export const IMPORT_BODY_BYTES = 16 * 1024 * 1024;
+/** A field task's photo: resized on the phone it is far smaller, but an unresized camera photo fits. */
+export const PHOTO_BODY_BYTES = 8 * 1024 * 1024;
 /** Bodies that the route streams itself and bounds on its own (the layer service's LAYER_MAX_BYTES). */
 export const STREAMED = Infinity;
 
@@ -16,6 +18,7 @@ const LARGER: Record<string, number> = {
 	'POST /api/v1/networks/[id=id]/layers': STREAMED,
 	'POST /api/v1/networks/[id=id]/sensors': IMPORT_BODY_BYTES,
 	'POST /api/v1/networks/[id=id]/zone-sets': IMPORT_BODY_BYTES,
+	'POST /api/v1/networks/[id=id]/tasks/[taskId=id]/photos': PHOTO_BODY_BYTES,
 	'POST /(app)/networks/[id=id]/sensors': IMPORT_BODY_BYTES,
 	'POST /(app)/networks/[id=id]/zones': IMPORT_BODY_BYTES
 };

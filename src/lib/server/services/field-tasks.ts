@@ -353,6 +353,11 @@ export interface TaskUpdateResult {
 	body: { task: TaskView; replayed?: boolean } | { error: { code: string; message: string }; task: TaskView };
 }
 
+/** An Idempotency-Key is 8 to 200 visible ASCII characters; else a 400. */
+export function checkIdempotencyKey(key: string): void {
+	if (!/^[\x21-\x7e]{8,200}$/.test(key)) throw new ServiceError(400, 'idempotency_key', 'Send an Idempotency-Key header of 8 to 200 visible characters (a UUID is good).');
+}
+
 const hashRequest = (taskId: number, body: TaskUpdateInput) => createHash('sha256').update(JSON.stringify({ taskId, ...body })).digest('hex');
 
 const today = () => new Date().toISOString().slice(0, 10);
@@ -362,7 +367,7 @@ const today = () => new Date().toISOString().slice(0, 10);
  * 409) and changes nothing; the same key with a different request is a 422.
  */
 export async function applyTaskUpdate(db: Knex, network: NetworkRef & { install_tolerance_m?: number }, actor: { id: number }, taskId: number, key: string, raw: unknown): Promise<TaskUpdateResult> {
-	if (!/^[\x21-\x7e]{8,200}$/.test(key)) throw new ServiceError(400, 'idempotency_key', 'Send an Idempotency-Key header of 8 to 200 visible characters (a UUID is good).');
+	checkIdempotencyKey(key);
 	const input = parseOr400(taskUpdateInput, raw);
 	const requestHash = hashRequest(taskId, input);
 	const run = () =>

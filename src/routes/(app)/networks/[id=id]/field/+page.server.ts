@@ -7,6 +7,7 @@ import { recordAudit } from '$lib/server/repositories/audit';
 import { ServiceError } from '$lib/server/services/errors';
 import { applyTaskUpdate, currentTasks, fieldSettings } from '$lib/server/services/field-tasks';
 import { routeMap } from '$lib/server/services/route-map';
+import { photosOfTasks } from '$lib/server/services/field-photos';
 import { importanceSource } from '../../../../api/v1/networks/[id=id]/map/importance-source';
 
 const ACK_COOKIE = 'cf-cautions-ack';
@@ -36,7 +37,8 @@ export const load = (async (event) => {
 		})),
 		toleranceM: (await fieldSettings(db, network.id)).installToleranceM,
 		cautionsAcknowledged: event.cookies.get(ACK_COOKIE) === `${actor.id}:${today()}`,
-		map: await routeMap(db, network, active, importanceSource())
+		map: await routeMap(db, network, active, importanceSource()),
+		photos: await photosOfTasks(db, network.id, active.map((t) => t.id))
 	};
 }) satisfies PageServerLoad;
 

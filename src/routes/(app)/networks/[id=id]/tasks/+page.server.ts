@@ -6,6 +6,7 @@ import { serviceFailure } from '$lib/server/forms';
 import { appOrigin } from '$lib/server/mail/origin';
 import { kickOutbox } from '$lib/server/mail/outbox';
 import { currentPlanView } from '$lib/server/services/reviews';
+import { photosOfTasks } from '$lib/server/services/field-photos';
 import { assignTasks, currentTasks, taskProgress, technicians, type AssignInput } from '$lib/server/services/field-tasks';
 
 export const load = (async (event) => {
@@ -13,7 +14,8 @@ export const load = (async (event) => {
 	const db = getDb();
 	const tasks = await currentTasks(db, network.id);
 	const people = (await technicians(db, network.organisation_id)).map(({ id, name }) => ({ id, name }));
-	return { networkId: network.id, plan: await currentPlanView(db, network.id), tasks, progress: taskProgress(tasks), technicians: people };
+	const photos = await photosOfTasks(db, network.id, tasks.map((t) => t.id));
+	return { networkId: network.id, plan: await currentPlanView(db, network.id), tasks, progress: taskProgress(tasks), technicians: people, photos };
 }) satisfies PageServerLoad;
 
 function startOf(data: FormData): { lon: number; lat: number } | undefined {
