@@ -1,4 +1,4 @@
-import { json, type Handle, type HandleServerError } from '@sveltejs/kit';
+import { json, type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { authHandle } from '$lib/server/auth';
 import { loadActor } from '$lib/server/auth/actor';
@@ -11,8 +11,11 @@ import { startOutboxTimer } from '$lib/server/mail/outbox';
 import { startHousekeeping } from '$lib/server/services/housekeeping';
 import { getObjectStore } from '$lib/server/storage/app-store';
 
-startOutboxTimer();
-startHousekeeping(getDb, getObjectStore);
+/** Runs once when the server starts, before the first request (not when a build step imports this module). */
+export const init: ServerInit = () => {
+	startOutboxTimer();
+	startHousekeeping(getDb, getObjectStore);
+};
 
 // adapter-node emits this after it stopped accepting requests (SIGINT/SIGTERM): let the process exit.
 process.on('sveltekit:shutdown', () => {

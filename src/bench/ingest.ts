@@ -39,7 +39,7 @@ import { createWriteStream, existsSync, mkdirSync, readFileSync, renameSync, rmS
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { encodeTiffHeader } from '../lib/geo/tiff-writer';
+import { encodeTiffHeader } from './support/tiff-writer';
 
 const ROOT = resolve(fileURLToPath(new URL('../..', import.meta.url)));
 const DIR = join(ROOT, 'data', 'bench');

@@ -49,7 +49,7 @@ import { enqueueJob } from '../lib/server/jobs';
 import { FsObjectStore } from '../lib/server/storage';
 import { acceptLayerUpload } from '../lib/server/services/layers';
 import { networkZoneSetId } from '../lib/server/repositories/zones';
-import { encodeTiff } from '../lib/geo/tiff-writer';
+import { encodeTiff } from './support/tiff-writer';
 import { importanceForZones } from '../lib/server/services/zones';
 import { findNetwork } from '../lib/server/repositories/networks';
 import { seed, DEMO_NETWORK, DEMO_USERS } from '../../seeds/demo';

@@ -19,7 +19,7 @@
  * Cost grows like the rows crossed (≈ height·√N) plus the O(N log N) diagram: 64× the
  * sensors cost ≈ 12× the time.
  */
-import { bruteForceMoments } from '../lib/engine/brute-force';
+import { bruteForceMoments } from './support/brute-force';
 import { cellMoments, rowScratch } from '../lib/engine/cell-moments';
 import { rowPrefixSums } from '../lib/engine/prefix-sums';
 import { kMeansPlusPlusSeeds } from '../lib/engine/seeding';

@@ -7,7 +7,7 @@ import { randomBytes } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test, type Page } from '@playwright/test';
-import { encodeTiff } from '../../src/lib/geo/tiff-writer';
+import { encodeTiff } from '../../src/bench/support/tiff-writer';
 import { contextFor, demoUser, signInPage, gotoHydrated, waitForHydration } from './support';
 
 const demo = (f: string) => path.resolve(import.meta.dirname, '../../data/demo', f);

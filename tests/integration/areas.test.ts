@@ -4,7 +4,6 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createNetwork } from '../../src/lib/server/services/networks';
 import { areaPatch, areaView, normaliseAreaPatch, parseAreaUpload, setArea } from '../../src/lib/server/services/areas';
 import { findNetwork } from '../../src/lib/server/repositories/networks';
-import { workingCrsOf } from '../../src/lib/server/services/sensors';
 import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpers/db';
 
 const demo = (f: string) => readFileSync(path.resolve(import.meta.dirname, '../../data/demo', f), 'utf8');
@@ -23,7 +22,8 @@ describe('study area and exclusions', () => {
 		const a = await setArea(t.db, id, m.userId, 1, parseAreaUpload('studyArea', demo('study-area.geojson'), 'study-area.geojson'));
 		expect(a.version).toBe(2);
 		expect((a.study_area as { type: string }).type).toBe('MultiPolygon');
-		expect(workingCrsOf(a)).toBe(32754);
+		// Saving the study area settles the working CRS: the demo area near 143.55°E, 32.15°S lies in UTM zone 54S.
+		expect(a.working_epsg).toBe(32754);
 		const b = await setArea(t.db, id, m.userId, 2, parseAreaUpload('exclusions', demo('exclusions.geojson'), 'exclusions.geojson'));
 		expect(areaView(b).exclusions.map((f) => f.properties.name)).toEqual(['Vennarrow Water (reservoir)']);
 		await expect(setArea(t.db, id, m.userId, 2, { exclusions: null })).rejects.toMatchObject({ status: 409, code: 'stale' });
@@ -50,10 +50,11 @@ describe('study area and exclusions', () => {
 
 describe('stored shapes from elsewhere', () => {
 	it('a bare Polygon study area (as the demo seed stores it) and bare-geometry exclusions are read as MultiPolygon features', async () => {
-		const { studyAreaMultiPolygon, exclusionList } = await import('../../src/lib/server/services/areas');
+		const { exclusionList } = await import('../../src/lib/server/services/areas');
+		const { asMultiPolygon } = await import('../../src/lib/geo/polygons');
 		const ring = [[0, 0], [1, 0], [1, 1], [0, 0]];
-		expect(studyAreaMultiPolygon({ type: 'Polygon', coordinates: [ring] })).toEqual({ type: 'MultiPolygon', coordinates: [[ring]] });
-		expect(studyAreaMultiPolygon({ type: 'Point', coordinates: [0, 0] })).toBeNull();
+		expect(asMultiPolygon({ type: 'Polygon', coordinates: [ring] })).toEqual({ type: 'MultiPolygon', coordinates: [[ring]] });
+		expect(asMultiPolygon({ type: 'Point', coordinates: [0, 0] })).toBeNull();
 		expect(exclusionList({ type: 'Polygon', coordinates: [ring] })).toEqual([{ type: 'Feature', properties: { name: 'Exclusion 1' }, geometry: { type: 'MultiPolygon', coordinates: [[ring]] } }]);
 	});
 });

@@ -15,6 +15,8 @@ import { findSensor } from '../../src/lib/server/repositories/sensors';
 import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpers/db';
 import { generalise, publicImportancePng, publicMap } from '../../src/lib/server/services/public-map';
 import { networkImportance } from '../../src/lib/server/services/importance';
+import type { ImportanceSource } from '../../src/lib/server/services/map-data';
+import { networkRecipeVersionId } from '../../src/lib/server/repositories/recipes';
 import { placementNetwork, type PlacementNetwork } from '../helpers/placement-network';
 import { fsTestStore, type TestStore } from './layers-support';
 import { checkGpx } from '../helpers/gpx-rules';
@@ -215,9 +217,12 @@ describe('field tasks', () => {
 	}, 120_000);
 
 	it('the public map: 404 until published, then only public fields; positions generalised to grid centres on request', async () => {
-		const importance = async (id: number) => {
-			const v = await networkImportance(t.db, s.store, id);
-			return v ? { grid: v.grid, data: v.band.data } : null;
+		const importance: ImportanceSource = {
+			versionId: (id) => networkRecipeVersionId(t.db, id),
+			surface: async (id) => {
+				const v = await networkImportance(t.db, s.store, id);
+				return v ? { grid: v.grid, data: v.band.data } : null;
+			}
 		};
 		const slug = net.network.slug;
 		await expect(publicMap(t.db, slug, importance)).rejects.toMatchObject({ status: 404 });

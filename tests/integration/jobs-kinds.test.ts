@@ -4,7 +4,7 @@
  * refused one and fails with the reason), recipe previews, recipe versions, zones, placements.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { encodeTiff } from '../../src/lib/geo/tiff-writer';
+import { encodeTiff } from '../../src/bench/support/tiff-writer';
 import { closeThreadPools, getJob, runQueuedJobs } from '../../src/lib/server/jobs';
 import { registerBuiltInJobKinds } from '../../src/lib/server/jobs/kinds';
 import { acceptLayerUpload, layerPreview } from '../../src/lib/server/services/layers';

@@ -1,6 +1,6 @@
 import { deflateSync } from 'node:zlib';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { encodeTiff } from '../../src/lib/geo/tiff-writer';
+import { encodeTiff } from '../../src/bench/support/tiff-writer';
 import { DEFAULT_MAX_PIXELS } from '../../src/lib/server/layers';
 import { createNetwork } from '../../src/lib/server/services/networks';
 import { deleteLayer, layerLimits, layerPreview, listLayerViews, uploadLayer, UploadTooLarge } from '../../src/lib/server/services/layers';

@@ -2,11 +2,26 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import proj4 from 'proj4';
 import { PNG } from 'pngjs';
 import type { Knex } from 'knex';
-import { importancePng, networkMap, type SurfaceLike } from '../../src/lib/server/services/map-data';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { importancePng, networkMap, type ImportanceSource } from '../../src/lib/server/services/map-data';
+import type { SurfaceLike } from '../../src/lib/map/raster';
 import { findNetwork } from '../../src/lib/server/repositories/networks';
+import { useRecipeVersion } from '../../src/lib/server/services/importance';
+import { parseListQuery, sensorPage } from '../../src/lib/server/services/sensors';
+import { FsObjectStore } from '../../src/lib/server/storage';
 import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
 
 const UTM32 = '+proj=utm +zone=32 +datum=WGS84 +units=m +no_defs';
+
+const noImportance: ImportanceSource = { versionId: async () => null, surface: async () => null };
+
+/** An importance source that counts how often the surface itself is read. */
+function countingSource(versionId: number, surface: SurfaceLike): ImportanceSource & { reads: number } {
+	const source = { reads: 0, versionId: async () => versionId, surface: async () => (source.reads++, surface) };
+	return source;
+}
 
 /** A lon/lat square polygon around (lon, lat), half-side d degrees. */
 function square(lon: number, lat: number, d: number) {
@@ -74,16 +89,16 @@ describe('networkMap (service, test database)', () => {
 
 	it('assembles area, exclusions, zones of the current set and sensors in the UTM zone of the centre', async () => {
 		const network = (await findNetwork(t.db, networkId))!;
-		const doc = await networkMap(t.db, { network, importance: async () => null, apiBase: `/api/v1/networks/${networkId}` });
+		const doc = await networkMap(t.db, { network, importance: noImportance, apiBase: `/api/v1/networks/${networkId}` });
 		// 9°E 52°N lies in UTM zone 32N (6° zones from 180°W: zone 32 spans 6°E–12°E).
 		expect(doc.crs?.epsg).toBe(32632);
 		expect(doc.studyArea).toHaveLength(1);
 		expect(doc.exclusions).toHaveLength(1);
 		expect(doc.zoneSet?.name).toBe('halves');
-		expect(doc.zones.map((z) => z.code)).toEqual(['E', 'W']);
-		const [e, w] = doc.zones;
-		// W holds P1, E holds P2 (faulty still counts); C1 stands on the shared edge at 9°E and the
-		// even-odd test puts it in exactly one of the two. P3 is retired and never counted.
+		expect(doc.zones.map((z) => z.code)).toEqual(['W', 'E']);
+		const [w, e] = doc.zones;
+		// W holds P1, E holds P2 (faulty still counts); C1 stands on the shared edge at 9°E and is
+		// counted in exactly one of the two (a sensor is in one zone). P3 is retired and never counted.
 		expect(w.sensorCount + e.sensorCount).toBe(3);
 		expect(w.importanceShare).toBe(0.4);
 		expect(doc.sensors.map((s) => s.code)).toEqual(['C1', 'P1', 'P2', 'P3']);
@@ -92,8 +107,8 @@ describe('networkMap (service, test database)', () => {
 		expect(c1.x).toBeCloseTo(x, 6);
 		expect(c1.y).toBeCloseTo(y, 6);
 		expect(doc.sensorTypes.map((s) => [s.name, s.radiusM])).toEqual([
-			['soil moisture probe', 30],
-			['cosmic-ray neutron sensor', 150]
+			['cosmic-ray neutron sensor', 150],
+			['soil moisture probe', 30]
 		]);
 		// The extent holds every sensor and the study area.
 		for (const s of doc.sensors) {
@@ -104,11 +119,14 @@ describe('networkMap (service, test database)', () => {
 		expect(doc.contours).toEqual([]);
 	});
 
-	it('with an importance surface: backdrop bounds, legend, contour circles and the PNG', async () => {
+	it('with an importance surface: backdrop bounds, legend, contour circles and the PNG, computed once per recipe version', async () => {
 		const network = (await findNetwork(t.db, networkId))!;
 		const [cx, cy] = proj4('EPSG:4326', UTM32, [9, 52]);
 		const surface = coneSurface(cx, cy);
-		const doc = await networkMap(t.db, { network, importance: async () => surface, apiBase: '/api/v1/networks/1' });
+		const dir = mkdtempSync(path.join(tmpdir(), 'cairnfield-map-'));
+		const cache = new FsObjectStore(dir);
+		const source = countingSource(41, surface);
+		const doc = await networkMap(t.db, { network, importance: source, cache, apiBase: '/api/v1/networks/1' });
 		expect(doc.backdrop?.kind).toBe('importance');
 		expect(doc.backdrop?.url).toBe('/api/v1/networks/1/map/importance.png');
 		expect(doc.backdrop?.bounds[0]).toBeCloseTo(cx - 1000, 6);
@@ -121,9 +139,18 @@ describe('networkMap (service, test database)', () => {
 			const want = 1000 * (1 - c.level);
 			for (const [px, py] of c.lines[0]) expect(Math.abs(Math.hypot(px - cx, py - cy) - want)).toBeLessThan(20);
 		}
-		const png = await importancePng(network, t.db, async () => surface);
+		const png = await importancePng(t.db, network, source, cache);
 		const img = PNG.sync.read(png!);
 		expect([img.width, img.height]).toEqual([100, 100]);
+		// The document again, from another process's view (a new store on the same objects): the
+		// surface is not read again, and the answer is the same.
+		const again = await networkMap(t.db, { network, importance: source, cache: new FsObjectStore(dir), apiBase: '/api/v1/networks/1' });
+		expect(source.reads).toBe(1);
+		expect(again.contours).toEqual(doc.contours);
+		expect(again.backdrop).toEqual(doc.backdrop);
+		// Another recipe version is another surface: it is read.
+		await networkMap(t.db, { network, importance: countingSource(42, surface), cache, apiBase: '' });
+		rmSync(dir, { recursive: true, force: true });
 	});
 
 	it('without importance, the latest ready layer preview is the backdrop, for roles that may view layers only', async () => {
@@ -135,13 +162,13 @@ describe('networkMap (service, test database)', () => {
 			{ network_id: networkId, name: 'failed', kind: 'other', status: 'failed', created_at: new Date('2026-05-01') }
 		]);
 		const newest = await t.db('layers').where({ network_id: networkId, name: 'newest' }).first();
-		const doc = await networkMap(t.db, { network, importance: async () => null, apiBase: '/api/v1/networks/9', mayViewLayers: true });
+		const doc = await networkMap(t.db, { network, importance: noImportance, apiBase: '/api/v1/networks/9', mayViewLayers: true });
 		expect(doc.backdrop).toMatchObject({ kind: 'layer', label: 'newest', url: `/api/v1/networks/9/layers/${newest.id}/preview.png`, min: 0.05, max: 0.15 });
 		// The bounds hold the footprint corners projected with proj4.
 		const [xw, ys] = proj4('EPSG:4326', UTM32, [8.98, 51.98]);
 		expect(doc.backdrop!.bounds[0]).toBeLessThanOrEqual(xw + 1e-6);
 		expect(doc.backdrop!.bounds[1]).toBeCloseTo(Math.min(ys, proj4('EPSG:4326', UTM32, [9.02, 51.98])[1]), 6);
-		const forTechnician = await networkMap(t.db, { network, importance: async () => null, apiBase: '/api/v1/networks/9', mayViewLayers: false });
+		const forTechnician = await networkMap(t.db, { network, importance: noImportance, apiBase: '/api/v1/networks/9', mayViewLayers: false });
 		expect(forTechnician.backdrop).toBeNull();
 		await t.db('layers').where({ network_id: networkId }).delete();
 	});
@@ -149,9 +176,44 @@ describe('networkMap (service, test database)', () => {
 	it('a network with nothing positioned has no map CRS and empty lists', async () => {
 		const admin = await makeMember(t.db, 'admin');
 		const [id] = await t.db('networks').insert({ organisation_id: admin.organisationId, slug: 'empty', name: 'Empty', description: '', public_text: '' });
-		const doc = await networkMap(t.db, { network: (await findNetwork(t.db, id))!, importance: async () => null, apiBase: '' });
+		const doc = await networkMap(t.db, { network: (await findNetwork(t.db, id))!, importance: noImportance, apiBase: '' });
 		expect(doc.crs).toBeNull();
 		expect(doc.sensors).toEqual([]);
-		expect(await importancePng((await findNetwork(t.db, id))!, t.db, async () => null)).toBeNull();
+		expect(await importancePng(t.db, (await findNetwork(t.db, id))!, noImportance)).toBeNull();
+	});
+
+	it('a grid in EPSG:3035 shows the same CRS on the map and in the sensor table', async () => {
+		const admin = await makeMember(t.db, 'admin');
+		const [id] = await t.db('networks').insert({ organisation_id: admin.organisationId, slug: 'laea', name: 'LAEA', description: '', public_text: '', study_area: JSON.stringify(square(9, 52, 0.01)) });
+		const [typeId] = await t.db('sensor_types').insert({ network_id: id, name: 'probe', radius_m: 30, mobility: 'fixed' });
+		await insertSensor(t.db, id, typeId, 'L1', 9.001, 52.002, 'active');
+		// Before any importance: the UTM zone of the study area (9°E 52°N: zone 32N), in both views.
+		let network = (await findNetwork(t.db, id))!;
+		expect((await networkMap(t.db, { network, importance: noImportance, apiBase: '' })).crs?.epsg).toBe(32632);
+		expect((await sensorPage(t.db, (await findNetwork(t.db, id))!, parseListQuery(new URLSearchParams()))).workingCrs).toBe(32632);
+		// A recipe version whose importance grid is in ETRS89-LAEA Europe (EPSG:3035) is put in use.
+		const [recipeId] = await t.db('importance_recipes').insert({ network_id: id, name: 'laea', latest_version: 1 });
+		const [versionId] = await t.db('importance_recipe_versions').insert({ recipe_id: recipeId, version: 1, definition: JSON.stringify({ layers: [] }), grid_epsg: 3035 });
+		await useRecipeVersion(t.db, id, admin.organisationId, admin.userId, versionId);
+		network = (await findNetwork(t.db, id))!;
+		const doc = await networkMap(t.db, { network, importance: noImportance, apiBase: '' });
+		const page = await sensorPage(t.db, network, parseListQuery(new URLSearchParams()));
+		expect(doc.crs?.epsg).toBe(3035);
+		expect(page.workingCrs).toBe(3035);
+		// The same point in both, and where proj4 puts it with the EPSG:3035 definition written out here.
+		const laea = '+proj=laea +lat_0=52 +lon_0=10 +x_0=4321000 +y_0=3210000 +ellps=GRS80 +units=m +no_defs';
+		const [x, y] = proj4('EPSG:4326', laea, [9.001, 52.002]);
+		expect(doc.sensors[0].x).toBeCloseTo(x, 2);
+		expect(page.sensors[0].x).toBeCloseTo(x, 2);
+		expect(page.sensors[0].y).toBeCloseTo(y, 2);
+	});
+
+	it('a map that cannot be drawn is the user\'s to fix (422 map_unavailable), not a server error', async () => {
+		const admin = await makeMember(t.db, 'admin');
+		// A working CRS the app has no definition for (stored before its definition was removed, say).
+		const [id] = await t.db('networks').insert({ organisation_id: admin.organisationId, slug: 'nocrs', name: 'No CRS', description: '', public_text: '', working_epsg: 99999 });
+		const network = (await findNetwork(t.db, id))!;
+		await expect(networkMap(t.db, { network, importance: noImportance, apiBase: '' })).rejects.toMatchObject({ status: 422, code: 'map_unavailable' });
+		await expect(importancePng(t.db, network, noImportance)).rejects.toMatchObject({ status: 422, code: 'map_unavailable' });
 	});
 });

@@ -4,7 +4,7 @@
  * happens in a worker thread with memory limits).
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { encodeTiff } from '../../src/lib/geo/tiff-writer';
+import { encodeTiff } from '../../src/bench/support/tiff-writer';
 import { createNetwork } from '../../src/lib/server/services/networks';
 import { uploadLayer } from '../../src/lib/server/services/layers';
 import type { ServiceError } from '../../src/lib/server/services/errors';

@@ -13,10 +13,10 @@ import {
 	removeSensor,
 	sensorPage,
 	SensorInputError,
-	validateSensorInput,
-	workingCrsOf
+	validateSensorInput
 } from '../../src/lib/server/services/sensors';
 import { seedDemoInventory } from '../../seeds/demo-inventory';
+import { workingCrs } from '../../src/lib/server/services/working-crs';
 import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpers/db';
 
 const demoCsv = readFileSync(path.resolve(import.meta.dirname, '../../data/demo/sensors.csv'), 'utf8');
@@ -70,6 +70,19 @@ describe('sensors service', () => {
 		expect(Number(p01.lon)).toBeCloseTo(143.485353, 9);
 		const audit = await t.db('audit_log').where({ action: 'sensor.import', object_id: String(net.id) }).first();
 		expect(jsonValue(audit.after)).toMatchObject({ format: 'csv', count: 14 });
+	});
+
+	it('an import writes its rows in one multi-row INSERT (500 rows a statement), not one per row', async () => {
+		const net = await freshNetwork();
+		await t.db('sensors').where({ network_id: net.id }).delete();
+		const sql: string[] = [];
+		const onQuery = (q: { sql: string }) => sql.push(q.sql);
+		t.db.on('query', onQuery);
+		const r = await importSensors(t.db, net, member.userId, demoCsv, 'csv', 'sensors.csv');
+		t.db.off('query', onQuery);
+		expect(r).toEqual({ ok: true, count: 14 });
+		expect(sql.filter((q) => /^insert into `sensors`/i.test(q))).toHaveLength(1);
+		expect(await t.db('sensors').where({ network_id: net.id })).toHaveLength(14);
 	});
 
 	it('one bad row stores nothing and the report names the row and the field', async () => {
@@ -139,7 +152,7 @@ describe('sensors service', () => {
 
 	it('positions entered in the working CRS (UTM of the study area centre) are stored as lon/lat and shown in both', async () => {
 		const net = await freshNetwork();
-		expect(workingCrsOf(net)).toBe(32754); // the demo area lies near 143.55°E, 32.15°S: UTM zone 54S
+		expect(await workingCrs(t.db, net)).toBe(32754); // the demo area lies near 143.55°E, 32.15°S: UTM zone 54S
 		const types = await sensorTypesOf(t.db, net.id);
 		// 500000 m E is the zone's central meridian 141°E (UTM definition); 6 440 000 m N ≈ 32.16°S
 		// (southern zones count northings from 10 000 000 m at the equator, UTM definition).

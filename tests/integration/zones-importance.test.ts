@@ -55,6 +55,16 @@ describe('zone shares on the network importance', () => {
 		const shares = set.zones.map((z) => z.importanceShare!);
 		expect(shares.every((v) => v >= 0)).toBe(true);
 		expect(shares.reduce((a, b) => a + b, 0)).toBeCloseTo(1, 3);
+		// Measuring again writes every share in one UPDATE (500 zones a statement), not one per zone.
+		const sql: string[] = [];
+		const onQuery = (q: { sql: string }) => sql.push(q.sql);
+		t.db.on('query', onQuery);
+		await measureZoneSet(t.db, net, actorId, id, imp);
+		t.db.off('query', onQuery);
+		expect(set.zones.length).toBeGreaterThan(20);
+		expect(sql.filter((q) => /^update `zones`/i.test(q))).toHaveLength(1);
+		const again = (await zoneSetViews(t.db, net)).find((x) => x.id === id)!;
+		again.zones.forEach((z, k) => expect(z.importanceShare).toBeCloseTo(shares[k], 12));
 	});
 
 	it('uploaded demo zones partition the catchment: shares sum to 1; computed zones sum to 1 exactly', async () => {

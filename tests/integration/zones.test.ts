@@ -5,19 +5,18 @@ import { createNetwork } from '../../src/lib/server/services/networks';
 import { findNetwork, type NetworkRow } from '../../src/lib/server/repositories/networks';
 import { importSensors } from '../../src/lib/server/services/sensors';
 import {
-	clipRingToRect,
 	createComputedZoneSet,
 	createGridZoneSet,
 	createUploadedZoneSet,
 	gridZones,
-	pointInMultiPolygon,
 	traceZoneMap,
 	useZoneSet,
 	zoneSetViews,
 	zoneShares,
 	type ImportanceSurface
 } from '../../src/lib/server/services/zones';
-import { ringArea2, type MultiPolygonGeometry } from '../../src/lib/geo/polygons';
+import type { MultiPolygonGeometry } from '../../src/lib/geo/polygons';
+import { clipPolygonToRect, pointInPolygons, ringArea2 } from '../../src/lib/geo/geometry';
 import { transformer } from '../../src/lib/geo/crs';
 import { zoneGrid } from '../../src/lib/engine/zones';
 import type { WorkingGrid } from '../../src/lib/engine/types';
@@ -50,7 +49,7 @@ function demoImportance(): ImportanceSurface {
 	for (let r = 0; r < height; r++)
 		for (let c = 0; c < width; c++) {
 			const [lon, lat] = inv(x0 + (c + 0.5) * 500, y0 - (r + 0.5) * 500);
-			if (!pointInMultiPolygon(lon, lat, studyArea)) continue;
+			if (!pointInPolygons([lon, lat], studyArea.coordinates)) continue;
 			feasible[r * width + c] = 1;
 			mass[r * width + c] = 1 + c;
 			total += 1 + c;
@@ -60,11 +59,18 @@ function demoImportance(): ImportanceSurface {
 }
 
 describe('zone geometry', () => {
-	it('clipRingToRect keeps the part of a square inside the window', () => {
+	it('clipPolygonToRect keeps the part of a square inside the window', () => {
 		// A 10 × 10 square clipped to [5, 20] × [−5, 5] leaves a 5 × 5 square: 25 m² (worked by hand).
 		const sq: [number, number][] = [[0, 0], [10, 0], [10, 10], [0, 10], [0, 0]];
-		expect(Math.abs(ringArea2(clipRingToRect(sq, 5, -5, 20, 5))) / 2).toBeCloseTo(25, 9);
-		expect(clipRingToRect(sq, 20, 20, 30, 30)).toEqual([]);
+		const [ring] = clipPolygonToRect([sq], [5, -5, 20, 5]);
+		expect(Math.abs(ringArea2(ring)) / 2).toBeCloseTo(25, 9);
+		expect(clipPolygonToRect([sq], [20, 20, 30, 30])).toEqual([]);
+		// A hole the window misses is dropped; one it cuts is kept (2 × 2 hole, half inside: 2 m²).
+		const hole: [number, number][] = [[1, 1], [1, 3], [3, 3], [3, 1], [1, 1]];
+		expect(clipPolygonToRect([sq, hole], [5, -5, 20, 5])).toHaveLength(1);
+		const cut = clipPolygonToRect([sq, hole], [2, 0, 10, 10]);
+		expect(cut).toHaveLength(2);
+		expect(Math.abs(ringArea2(cut[1])) / 2).toBeCloseTo(2, 9);
 	});
 
 	it('a 3 km grid covers the study area: the cells sum to its area and each point lies in exactly one cell', () => {
@@ -78,8 +84,8 @@ describe('zone geometry', () => {
 		for (let i = -20; i <= 20; i++)
 			for (let j = -20; j <= 20; j++) {
 				const [lon, lat] = f(cx + i * 777, cy + j * 777);
-				const inArea = pointInMultiPolygon(lon, lat, studyArea);
-				const hits = zones.filter((z) => pointInMultiPolygon(lon, lat, z.geometry)).length;
+				const inArea = pointInPolygons([lon, lat], studyArea.coordinates);
+				const hits = zones.filter((z) => pointInPolygons([lon, lat], z.geometry.coordinates)).length;
 				expect(hits).toBe(inArea ? 1 : 0);
 				if (inArea) checked++;
 			}
@@ -121,20 +127,21 @@ describe('zone sets service', () => {
 	});
 	afterAll(async () => t?.drop());
 
-	it('uploaded demo zones: 4 zones, active sensors counted where they stand, shares null without importance', async () => {
+	it('uploaded demo zones: 4 zones, sensors standing in the field counted where they stand, shares null without importance', async () => {
 		const id = await createUploadedZoneSet(t.db, net, m.userId, '', demo('zones.geojson'), 'zones.geojson');
 		const set = (await zoneSetViews(t.db, net)).find((s) => s.id === id)!;
 		expect(set.zones.map((z) => z.code)).toEqual(['north-fell', 'west-moss', 'south-heath', 'eastern-reach']);
 		expect(set.zones.every((z) => z.importanceShare === null)).toBe(true);
-		// Expected counts by testing each active sensor of sensors.csv against each zone polygon directly.
+		// Expected counts by testing each sensor of sensors.csv that stands in the field (active or
+		// faulty; a retired one never counts) against each zone polygon directly.
 		const zonesFc = JSON.parse(demo('zones.geojson'));
-		const active = demo('sensors.csv').trim().split(/\r?\n/).slice(1).map((l) => l.split(',')).filter((c) => c[6] === 'active');
-		expect(active).toHaveLength(13);
+		const active = demo('sensors.csv').trim().split(/\r?\n/).slice(1).map((l) => l.split(',')).filter((c) => c[6] !== 'retired');
+		expect(active).toHaveLength(14);
 		const expected = zonesFc.features.map((f: { geometry: { coordinates: [number, number][][] } }) =>
-			active.filter((c) => pointInMultiPolygon(Number(c[3]), Number(c[4]), { type: 'MultiPolygon', coordinates: [f.geometry.coordinates] })).length
+			active.filter((c) => pointInPolygons([Number(c[3]), Number(c[4])], [f.geometry.coordinates])).length
 		);
 		expect(set.zones.map((z) => z.sensorCount)).toEqual(expected);
-		expect(set.zones.reduce((s, z) => s + z.sensorCount, 0)).toBe(13); // the sub-catchments partition the catchment
+		expect(set.zones.reduce((s, z) => s + z.sensorCount, 0)).toBe(14); // the sub-catchments partition the catchment
 		const audit = await t.db('audit_log').where({ action: 'zone_set.create', object_id: String(id) }).first();
 		expect(jsonValue(audit.after)).toMatchObject({ kind: 'uploaded', zones: 4 });
 	});
@@ -144,7 +151,7 @@ describe('zone sets service', () => {
 		const set = (await zoneSetViews(t.db, net)).find((s) => s.id === id)!;
 		expect(set.zones.length).toBeGreaterThan(20);
 		expect(set.zones.reduce((s, z) => s + (z.importanceShare ?? 0), 0)).toBeCloseTo(1, 6);
-		expect(set.zones.reduce((s, z) => s + z.sensorCount, 0)).toBe(13);
+		expect(set.zones.reduce((s, z) => s + z.sensorCount, 0)).toBe(14);
 		await useZoneSet(t.db, net, m.userId, id);
 		expect((await t.db('networks').where({ id: net.id }).first()).zone_set_id).toBe(id);
 		expect((await zoneSetViews(t.db, net)).find((s) => s.id === id)!.inUse).toBe(true);
@@ -156,7 +163,7 @@ describe('zone sets service', () => {
 		const set = (await zoneSetViews(t.db, net)).find((s) => s.id === id)!;
 		expect(set.zones.map((z) => z.code)).toEqual(['Z1', 'Z2', 'Z3', 'Z4']);
 		expect(set.zones.reduce((s, z) => s + (z.importanceShare ?? 0), 0)).toBeCloseTo(1, 9);
-		expect(set.zones.reduce((s, z) => s + z.sensorCount, 0)).toBe(13);
+		expect(set.zones.reduce((s, z) => s + z.sensorCount, 0)).toBe(14);
 	});
 
 	it('a bad upload is refused with the parser’s message and stores nothing', async () => {

@@ -176,8 +176,10 @@ export const JOB_ENDED: readonly JobState[] = ['finished', 'failed', 'cancelled'
 // (jobs types end)
 
 // ---- Layers and importance recipes (types) ----------------------------------------------
-export type LayerKind = 'soil_moisture' | 'vegetation_index' | 'elevation' | 'other';
-export type LayerPlatform = 'satellite' | 'aircraft' | 'drone' | 'model' | 'other';
+export const LAYER_KINDS = ['soil_moisture', 'vegetation_index', 'elevation', 'other'] as const;
+export type LayerKind = (typeof LAYER_KINDS)[number];
+export const LAYER_PLATFORMS = ['satellite', 'aircraft', 'drone', 'model', 'other'] as const;
+export type LayerPlatform = (typeof LAYER_PLATFORMS)[number];
 
 export interface Layer {
 	id: number;
@@ -272,8 +274,11 @@ export function layerUploadQuery(meta: LayerUploadMeta): string {
 // ---- (layers and recipes types end) -------------------------------------------------------
 
 // ---- Sensors, study area and zones (types) --------------------------------------------------
-export type Mobility = 'fixed' | 'relocatable' | 'mobile';
-export type SensorStatus = 'active' | 'faulty' | 'retired';
+export type { Mobility } from '../engine/types';
+import type { Mobility } from '../engine/types';
+export const SENSOR_STATUSES = ['active', 'faulty', 'retired'] as const;
+export type SensorStatus = (typeof SENSOR_STATUSES)[number];
+export type ZoneSetKind = 'uploaded' | 'grid' | 'computed';
 
 export interface SensorType {
 	id: number;
@@ -362,7 +367,7 @@ export interface Zone {
 export interface ZoneSet {
 	id: number;
 	name: string;
-	kind: 'uploaded' | 'grid' | 'computed';
+	kind: ZoneSetKind;
 	params: Record<string, unknown> | null;
 	inUse: boolean;
 	recipeVersionId: number | null;

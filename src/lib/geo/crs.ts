@@ -85,7 +85,7 @@ export function isProjected(epsg: number): boolean {
 }
 
 /** Projected, and with ground-true metres near any network (not Web Mercator, not EASE-Grid 2.0). */
-export function isSuitableWorkingCrs(epsg: number): boolean {
+function isSuitableWorkingCrs(epsg: number): boolean {
 	return isProjected(epsg) && !GLOBAL_DISTORTED.has(epsg);
 }
 
@@ -125,24 +125,29 @@ export function utmZoneFor(lon: number, lat: number): number {
 }
 
 /**
- * The working CRS of a network: an explicit override wins (it must be known and projected);
- * otherwise the raster's own CRS when projected with ground-true metres (isSuitableWorkingCrs);
- * otherwise (geographic, Web Mercator, EASE-Grid 2.0) the UTM zone of the area's centre.
+ * The one rule for a network's working CRS, in order:
+ *  1. an explicit choice wins (it must be known and projected);
+ *  2. else the importance grid's own CRS when it is projected with ground-true metres
+ *     (isSuitableWorkingCrs: not geographic, not Web Mercator, not EASE-Grid 2.0);
+ *  3. else the UTM zone of the area's centre (lon/lat).
+ * Null when none applies (no explicit choice, no suitable grid, no centre).
  */
-export function chooseWorkingCrs(
-	rasterEpsg: number,
-	centreLonLat: readonly [number, number],
-	override?: number | string | null
-): number {
-	if (override !== undefined && override !== null && override !== '') {
-		const epsg = parseEpsg(override);
+export function decideWorkingCrs(facts: { explicit?: number | string | null; gridEpsg?: number | null; centreLonLat?: readonly [number, number] | null }): number | null {
+	const { explicit, gridEpsg, centreLonLat } = facts;
+	if (explicit !== undefined && explicit !== null && explicit !== '') {
+		const epsg = parseEpsg(explicit);
 		if (!isProjected(epsg)) {
 			throw new CrsError(`EPSG:${epsg} is geographic (degrees); the working CRS must be projected in metres`);
 		}
 		return epsg;
 	}
-	if (isSuitableWorkingCrs(rasterEpsg)) return rasterEpsg;
-	return utmZoneFor(centreLonLat[0], centreLonLat[1]);
+	if (gridEpsg !== undefined && gridEpsg !== null && isSuitableWorkingCrs(gridEpsg)) return gridEpsg;
+	return centreLonLat ? utmZoneFor(centreLonLat[0], centreLonLat[1]) : null;
+}
+
+/** decideWorkingCrs for a raster whose centre is known: never null. */
+export function chooseWorkingCrs(rasterEpsg: number, centreLonLat: readonly [number, number], override?: number | string | null): number {
+	return decideWorkingCrs({ explicit: override, gridEpsg: rasterEpsg, centreLonLat }) as number;
 }
 
 export type PointTransform = (x: number, y: number) => [number, number];

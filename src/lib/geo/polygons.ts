@@ -4,15 +4,16 @@
  *
  * Every ring must be closed (first position = last), hold at least four positions and three
  * distinct points, enclose some area and stay within lon −180…180, lat −90…90; a hole must start
- * inside its exterior ring. Self-intersection is not checked. Winding is normalised to RFC 7946
+ * inside its exterior ring, and no ring may cross itself or another (a bow-tie is refused, naming
+ * where it crosses). Winding is normalised to RFC 7946
  * §3.1.6: exterior rings counter-clockwise, holes clockwise. Heights are dropped.
  * Problems come back as a PolygonError whose message names the feature and ring.
  */
 import { kml } from '@tmcw/togeojson';
 import { DOMParser } from '@xmldom/xmldom';
+import { orientRing, pointInPolygons, ringArea2, selfIntersection, type Position, type Ring } from './geometry';
 
-export type Position = [number, number];
-export type Ring = Position[];
+export type { Position, Ring };
 
 export interface MultiPolygonGeometry {
 	type: 'MultiPolygon';
@@ -47,22 +48,23 @@ function isObject(v: unknown): v is Json {
 	return typeof v === 'object' && v !== null && !Array.isArray(v);
 }
 
-/** Twice the signed area of a closed ring in (lon, lat): > 0 counter-clockwise (shoelace formula). */
-export function ringArea2(ring: readonly Position[]): number {
-	let a = 0;
-	for (let i = 0; i < ring.length - 1; i++) a += ring[i][0] * ring[i + 1][1] - ring[i + 1][0] * ring[i][1];
-	return a;
-}
-
-/** Even-odd point-in-ring test (ray casting). */
-function insideRing(p: Position, ring: readonly Position[]): boolean {
-	let inside = false;
-	for (let i = 0, j = ring.length - 1; i < ring.length; j = i++) {
-		const [xi, yi] = ring[i];
-		const [xj, yj] = ring[j];
-		if (yi > p[1] !== yj > p[1] && p[0] < ((xj - xi) * (p[1] - yi)) / (yj - yi) + xi) inside = !inside;
+/**
+ * A stored polygon value (study area, exclusion, zone, layer outline) as one MultiPolygon, without
+ * validating it again: the services store MultiPolygons; older rows and the demo seed may hold a
+ * Polygon, a Feature or a FeatureCollection. Null when it holds no polygon.
+ */
+export function asMultiPolygon(v: unknown): MultiPolygonGeometry | null {
+	if (!v || typeof v !== 'object') return null;
+	const g = v as { type?: unknown; coordinates?: unknown; geometry?: unknown; features?: unknown };
+	if (g.type === 'Feature') return asMultiPolygon(g.geometry);
+	if (g.type === 'FeatureCollection' && Array.isArray(g.features)) {
+		const parts = g.features.flatMap((f) => asMultiPolygon(f)?.coordinates ?? []);
+		return parts.length ? { type: 'MultiPolygon', coordinates: parts } : null;
 	}
-	return inside;
+	if (!Array.isArray(g.coordinates) || g.coordinates.length === 0) return null;
+	if (g.type === 'MultiPolygon') return v as MultiPolygonGeometry;
+	if (g.type === 'Polygon') return { type: 'MultiPolygon', coordinates: [g.coordinates as MultiPolygonGeometry['coordinates'][number]] };
+	return null;
 }
 
 interface Counter {
@@ -98,14 +100,15 @@ function parseRing(raw: unknown, where: string, counter: Counter): Ring {
 function parsePolygon(raw: unknown, where: string, counter: Counter): Ring[] {
 	if (!Array.isArray(raw) || raw.length === 0) throw new PolygonError(`${where}: a polygon needs at least an exterior ring`);
 	const rings = raw.map((r, k) => parseRing(r, `${where}, ${k === 0 ? 'exterior ring' : `hole ${k}`}`, counter));
-	const out = rings.map((ring, k) => {
-		const ccw = ringArea2(ring) > 0;
-		const wantCcw = k === 0;
-		return ccw === wantCcw ? ring : [...ring].reverse();
-	});
+	const out = rings.map((ring, k) => orientRing(ring, k === 0));
 	for (let k = 1; k < out.length; k++) {
 		const p = out[k].find((q) => !out[0].some((e) => e[0] === q[0] && e[1] === q[1]));
-		if (p && !insideRing(p, out[0])) throw new PolygonError(`${where}, hole ${k}: the hole lies outside the exterior ring`);
+		if (p && !pointInPolygons(p, [[out[0]]])) throw new PolygonError(`${where}, hole ${k}: the hole lies outside the exterior ring`);
+	}
+	const crossing = selfIntersection(out);
+	if (crossing) {
+		const at = `${crossing[0].toFixed(6)}, ${crossing[1].toFixed(6)}`;
+		throw new PolygonError(`${where}: the outline crosses itself near lon/lat ${at} (a bow-tie or a figure of eight); redraw it so that no edge crosses another`);
 	}
 	return out;
 }

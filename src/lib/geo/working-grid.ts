@@ -10,6 +10,7 @@
 import type { WorkingGrid } from '../engine/types';
 import { rasterizeRings, type GridGeometry, type Ring } from '../engine/rasterize';
 import { chooseWorkingCrs, crsLabel, transformer, type PointTransform } from './crs';
+import { boundsOf } from './geometry';
 import { crsToPixel, pixelToCrs, storedNodata, type RasterBand } from './geotiff';
 import { projectRings } from './geojson';
 
@@ -175,13 +176,9 @@ export function planFrame(raster: RasterGeometry, opts: Pick<WorkingGridOptions,
 	// Centre of the area: the study area's bounding box if given, else the raster's centre.
 	const toLonLat = transformer(raster.epsg, 4326).forward;
 	let centre: [number, number];
-	if (opts.studyArea && opts.studyArea.length > 0) {
-		let minLon = Infinity, maxLon = -Infinity, minLat = Infinity, maxLat = -Infinity;
-		for (const ring of opts.studyArea.flat()) for (const [lon, lat] of ring) {
-			minLon = Math.min(minLon, lon); maxLon = Math.max(maxLon, lon);
-			minLat = Math.min(minLat, lat); maxLat = Math.max(maxLat, lat);
-		}
-		centre = [(minLon + maxLon) / 2, (minLat + maxLat) / 2];
+	const areaBox = opts.studyArea ? boundsOf([], opts.studyArea) : null;
+	if (areaBox) {
+		centre = [(areaBox[0] + areaBox[2]) / 2, (areaBox[1] + areaBox[3]) / 2];
 	} else {
 		const [cx, cy] = pixelToCrs(raster.transform, raster.width / 2, raster.height / 2);
 		centre = toLonLat(cx, cy);
@@ -224,12 +221,9 @@ export function planFrame(raster: RasterGeometry, opts: Pick<WorkingGridOptions,
 	const projLonLat = transformer(4326, epsg).forward;
 	const project = (polys: ReadonlyArray<readonly Ring[]> | undefined, size: number) => (polys ?? []).map((p) => projectRings(p, projLonLat, size * 4));
 	let studyPolygons = opts.studyArea && opts.studyArea.length > 0 ? project(opts.studyArea, cellSize) : null;
-	if (studyPolygons) {
-		let sMinX = Infinity, sMaxX = -Infinity, sMinY = Infinity, sMaxY = -Infinity;
-		for (const ring of studyPolygons.flat()) for (const [x, y] of ring) {
-			sMinX = Math.min(sMinX, x); sMaxX = Math.max(sMaxX, x);
-			sMinY = Math.min(sMinY, y); sMaxY = Math.max(sMaxY, y);
-		}
+	const studyBox = studyPolygons ? boundsOf([], studyPolygons) : null;
+	if (studyBox) {
+		const [sMinX, sMinY, sMaxX, sMaxY] = studyBox;
 		minX = Math.max(minX, sMinX); maxX = Math.min(maxX, sMaxX);
 		minY = Math.max(minY, sMinY); maxY = Math.min(maxY, sMaxY);
 		if (!(maxX > minX && maxY > minY)) throw new WorkingGridError('the study area does not overlap the raster');

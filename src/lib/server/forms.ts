@@ -1,7 +1,7 @@
 /** Helpers for form actions: read validated fields, and turn service errors into fail(). */
 import { fail, type ActionFailure } from '@sveltejs/kit';
 import type { ZodType } from 'zod';
-import { ServiceError } from './services/errors';
+import { ServiceError, zodFields } from './services/errors';
 
 export type FormErrors = Record<string, string>;
 
@@ -18,15 +18,13 @@ export function formFields(data: FormData, names: string[]): Record<string, stri
 export function parseForm<T>(schema: ZodType<T>, values: Record<string, string>, echo: string[] = []): { ok: true; data: T } | { ok: false; failure: ActionFailure<{ errors: FormErrors; values: Record<string, string> }> } {
 	const r = schema.safeParse(values);
 	if (r.success) return { ok: true, data: r.data };
-	const errors: FormErrors = {};
-	for (const issue of r.error.issues) errors[String(issue.path[0] ?? '_')] ??= issue.message;
-	return { ok: false, failure: fail(400, { errors, values: Object.fromEntries(echo.filter((k) => k in values).map((k) => [k, values[k]])) }) };
+	return { ok: false, failure: fail(400, { errors: zodFields(r.error), values: Object.fromEntries(echo.filter((k) => k in values).map((k) => [k, values[k]])) }) };
 }
 
 /** Maps a ServiceError to fail(); rethrows anything else (handled by handleError). */
 export function serviceFailure(err: unknown, values: Record<string, string> = {}) {
 	if (err instanceof ServiceError) {
-		return fail(err.status, { errors: { [err.field ?? '_']: err.message }, values });
+		return fail(err.status, { errors: err.fields ?? { [err.field ?? '_']: err.message }, values });
 	}
 	throw err;
 }

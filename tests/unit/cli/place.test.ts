@@ -5,7 +5,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import proj4 from 'proj4';
 import { Geodesic } from 'geographiclib-geodesic';
-import { encodeTiff } from '../../../src/lib/geo/tiff-writer';
+import { encodeTiff } from '../../../src/bench/support/tiff-writer';
 import { main } from '../../../src/cli/main';
 
 const root = join(import.meta.dirname, '..', '..', '..');

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { place } from '../../../src/lib/engine';
-import { bruteForceMoments } from '../../../src/lib/engine/brute-force';
+import { bruteForceMoments } from '../../../src/bench/support/brute-force';
 import { cellMoments } from '../../../src/lib/engine/cell-moments';
 import { rowPrefixSums } from '../../../src/lib/engine/prefix-sums';
 import { mulberry32 } from '../../../src/lib/engine/prng';

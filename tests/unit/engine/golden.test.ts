@@ -3,7 +3,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { EngineInputError, place } from '../../../src/lib/engine';
 import type { PlacementOptions, PlacementResult, SensorInput, WorkingGrid, ZoneMap } from '../../../src/lib/engine';
-import { bruteForceMoments } from '../../../src/lib/engine/brute-force';
+import { bruteForceMoments } from '../../../src/bench/support/brute-force';
 
 // Golden fixtures for the degenerate inputs: tests/fixtures/engine/in/NAME.json → out/NAME.json.
 // The outputs were produced by this engine and checked by hand against the properties asserted

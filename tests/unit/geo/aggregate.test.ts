@@ -6,7 +6,7 @@ import proj4 from 'proj4';
 import { afterAll, describe, expect, it } from 'vitest';
 import { aggregateToWorkingGrid, blockAverage, FEASIBLE_SHARE } from '../../../src/lib/geo/aggregate';
 import { openGeoTiff, readGeoTiff } from '../../../src/lib/geo/geotiff';
-import { encodeTiff } from '../../../src/lib/geo/tiff-writer';
+import { encodeTiff } from '../../../src/bench/support/tiff-writer';
 import { place, zoneGrid } from '../../../src/lib/engine';
 import { rasterizeZones } from '../../../src/lib/engine/rasterize';
 import { projectRings } from '../../../src/lib/geo/geojson';

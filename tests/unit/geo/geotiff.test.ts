@@ -4,7 +4,7 @@ import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { writeArrayBuffer } from 'geotiff';
 import { readGeoTiff, RasterError, pixelToCrs, crsToPixel, storedNodata } from '../../../src/lib/geo/geotiff';
-import { encodeTiff, type TiffWriteOptions } from '../../../src/lib/geo/tiff-writer';
+import { encodeTiff, type TiffWriteOptions } from '../../../src/bench/support/tiff-writer';
 
 // GeoKey ids from the GeoTIFF 1.0 specification, section 6.2 (GTModelType 1024, GTRasterType 1025,
 // GeographicType 2048, ProjectedCSType 3072).

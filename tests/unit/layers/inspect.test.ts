@@ -1,6 +1,6 @@
 import { deflateSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
-import { encodeTiff } from '../../../src/lib/geo/tiff-writer';
+import { encodeTiff } from '../../../src/bench/support/tiff-writer';
 import { inspectLayer, LayerRejected, loadLayer, toGridBand, type LayerRejectedCode } from '../../../src/lib/server/layers';
 import { geotiffOf } from './helpers';
 

@@ -1,6 +1,7 @@
 import { Geodesic } from 'geographiclib-geodesic';
 import { describe, expect, it } from 'vitest';
-import { parseGeoJsonPolygons, parseKmlPolygons, parsePolygonUpload, PolygonError, ringArea2 } from '../../../src/lib/geo/polygons';
+import { parseGeoJsonPolygons, parseKmlPolygons, parsePolygonUpload, PolygonError } from '../../../src/lib/geo/polygons';
+import { ringArea2 } from '../../../src/lib/geo/geometry';
 
 // A 1°×1° square listed clockwise (wrong for an exterior ring under RFC 7946).
 const cwSquare = [

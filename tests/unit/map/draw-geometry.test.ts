@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import proj4 from 'proj4';
 import { crsDefinition } from '../../../src/lib/geo/crs';
-import { closedCounterClockwise, drawnPolygon, DrawGeometryError, dropRepeats, signedArea2, type XY } from '../../../src/lib/components/map/draw-geometry';
+import { closedCounterClockwise, drawnPolygon, DrawGeometryError, dropRepeats, type XY } from '../../../src/lib/components/map/draw-geometry';
+import { closeRing, ringArea2 } from '../../../src/lib/geo/geometry';
 
 // An independent definition of UTM zone 32N (EPSG:32632), written here rather than taken from the app.
 const UTM32N = '+proj=utm +zone=32 +datum=WGS84 +units=m +no_defs';
@@ -54,7 +55,7 @@ describe('drawnPolygon', () => {
 	});
 
 	it('closes the ring and makes it counter-clockwise (RFC 7946) from a clockwise drawing', () => {
-		expect(signedArea2(clockwise)).toBeLessThan(0);
+		expect(ringArea2(closeRing(clockwise))).toBeLessThan(0);
 		const ring = drawnPolygon(clockwise, docDef).coordinates[0];
 		expect(ring[0]).toEqual(ring[ring.length - 1]);
 		expect(shoelace(ring)).toBeGreaterThan(0);

@@ -4,6 +4,7 @@
  * rings closed, exterior rings counter-clockwise). Pure functions, no Leaflet, no DOM.
  */
 import proj4, { type Converter } from 'proj4';
+import { closeRing, orientRing, ringArea2 } from '../../geo/geometry';
 
 export type XY = [number, number];
 export type LonLat = [number, number];
@@ -28,26 +29,9 @@ export function dropRepeats(points: readonly XY[]): XY[] {
 	return out;
 }
 
-/**
- * Twice the signed area of a ring by the shoelace formula (> 0 counter-clockwise in a
- * right-handed x/y or lon/lat frame). Works on open and closed rings alike.
- */
-export function signedArea2(ring: readonly (readonly [number, number])[]): number {
-	let a = 0;
-	for (let i = 0, n = ring.length; i < n; i++) {
-		const [x0, y0] = ring[i];
-		const [x1, y1] = ring[(i + 1) % n];
-		a += x0 * y1 - x1 * y0;
-	}
-	return a;
-}
-
 /** A closed, counter-clockwise copy of an open or closed ring. */
 export function closedCounterClockwise(ring: readonly LonLat[]): LonLat[] {
-	const open = ring.map(([x, y]) => [x, y] as LonLat);
-	if (open.length > 1 && open[0][0] === open[open.length - 1][0] && open[0][1] === open[open.length - 1][1]) open.pop();
-	if (signedArea2(open) < 0) open.reverse();
-	return [...open, [open[0][0], open[0][1]]];
+	return orientRing(closeRing(ring), true) as LonLat[];
 }
 
 /**
@@ -62,7 +46,7 @@ export function drawnPolygon(vertices: readonly XY[], proj4Definition: string): 
 	}
 	const pts = dropRepeats(vertices);
 	if (pts.length < 3) throw new DrawGeometryError(`An outline needs at least 3 different points (it has ${pts.length}).`);
-	if (signedArea2(pts) === 0) throw new DrawGeometryError('The points lie on one line and enclose no area; add a point off the line.');
+	if (ringArea2(closeRing(pts)) === 0) throw new DrawGeometryError('The points lie on one line and enclose no area; add a point off the line.');
 	let toLonLat: Converter;
 	try {
 		toLonLat = proj4(proj4Definition, 'EPSG:4326');
@@ -77,6 +61,6 @@ export function drawnPolygon(vertices: readonly XY[], proj4Definition: string): 
 		return [lon, lat] as LonLat;
 	});
 	const ring = closedCounterClockwise(lonLat);
-	if (signedArea2(ring) === 0) throw new DrawGeometryError('The outline encloses no area once converted to longitude/latitude.');
+	if (ringArea2(ring) === 0) throw new DrawGeometryError('The outline encloses no area once converted to longitude/latitude.');
 	return { type: 'Polygon', coordinates: [ring] };
 }

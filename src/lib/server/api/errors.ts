@@ -1,40 +1,34 @@
 /** The one error shape of the JSON API: { "error": { "code", "message", "fields"? } }. */
-import { json, isHttpError, isRedirect, type RequestEvent, type RequestHandler } from '@sveltejs/kit';
+import { json, isHttpError, isRedirect, type RequestEvent } from '@sveltejs/kit';
 import type { ZodError } from 'zod';
-import { ServiceError } from '../services/errors';
+import { ApiClientError } from '../../api/client';
+import { ServiceError, zodFields } from '../services/errors';
 
-export class ApiError extends Error {
-	constructor(
-		public status: number,
-		public code: string,
-		message: string,
-		public fields?: Record<string, string>
-	) {
-		super(message);
-	}
-}
+/** An error the endpoint answers with: the same shape the typed client raises on the other side. */
+export class ApiError extends ApiClientError {}
 
 export function apiErrorBody(code: string, message: string, fields?: Record<string, string>) {
 	return { error: fields ? { code, message, fields } : { code, message } };
 }
 
-export function zodFields(err: ZodError): Record<string, string> {
-	const fields: Record<string, string> = {};
-	for (const issue of err.issues) {
-		const key = issue.path.join('.') || '_';
-		fields[key] ??= issue.message;
-	}
-	return fields;
+/** A service's failure in the API's terms: its field (or fields) become `fields`. */
+function fromServiceError(err: ServiceError): ApiError {
+	const fields = err.fields ?? (err.field ? { [err.field]: err.message } : undefined);
+	return new ApiError(err.status, err.code, err.message, fields);
 }
 
-/** Wraps an endpoint so every failure leaves in the API error shape, never as a stack trace. */
-export function apiHandler(fn: (event: RequestEvent) => Promise<Response>): RequestHandler {
+/**
+ * Wraps an endpoint so every failure leaves in the API error shape, never as a stack trace:
+ * ApiError and ServiceError with their status, SvelteKit's error() with its own, anything else a 500.
+ * The route's own event type is kept, so `event.params` stays typed.
+ */
+export function apiHandler<E extends RequestEvent>(fn: (event: E) => Promise<Response>): (event: E) => Promise<Response> {
 	return async (event) => {
 		try {
 			return await fn(event);
-		} catch (err) {
+		} catch (caught) {
+			const err = caught instanceof ServiceError ? fromServiceError(caught) : caught;
 			if (err instanceof ApiError) return json(apiErrorBody(err.code, err.message, err.fields), { status: err.status });
-			if (err instanceof ServiceError) return json(apiErrorBody(err.code, err.message, err.field ? { [err.field]: err.message } : undefined), { status: err.status });
 			if (isHttpError(err)) return json(apiErrorBody(err.status === 404 ? 'not_found' : 'http_error', err.body.message), { status: err.status });
 			if (isRedirect(err)) throw err;
 			console.error(err);

@@ -5,8 +5,10 @@
 import { z } from 'zod';
 import { CrsError, parseEpsg, transformer } from '../../geo/crs';
 
-export const SENSOR_STATUSES = ['active', 'faulty', 'retired'] as const;
-export type SensorStatus = (typeof SENSOR_STATUSES)[number];
+import { SENSOR_STATUSES, type SensorStatus } from '../../api/client';
+import { zodFields } from '../services/errors';
+
+export { SENSOR_STATUSES, type SensorStatus };
 
 export interface SensorRecord {
 	id: string;
@@ -39,7 +41,7 @@ const ID_PATTERN = /^[A-Za-z0-9][A-Za-z0-9._:-]*$/;
 
 const text = (field: string, max: number) =>
 	z
-		.string({ error: `${field} must be text` })
+		.string({ error: (issue) => (issue.input === undefined ? `${field} is required` : `${field} must be text`) })
 		.trim()
 		.min(1, { message: `${field} is required`, abort: true })
 		.max(max, `${field} is longer than ${max} characters`);
@@ -55,7 +57,7 @@ export const isoDate = z
 	}, 'install_date is not a real calendar date');
 
 /** Raw fields as text (CSV) or JSON values (GeoJSON), before coordinates are resolved. */
-export const sensorFieldsSchema = z.object({
+const sensorFieldsSchema = z.object({
 	id: text('id', 64).regex(ID_PATTERN, 'id may hold only letters, digits, ".", "_", ":" and "-", starting with a letter or digit'),
 	serial: text('serial', 100),
 	type: text('type', 100),
@@ -65,7 +67,7 @@ export const sensorFieldsSchema = z.object({
 });
 
 /** Number from a CSV cell or a JSON value; '' and null mean "not given". */
-export function numberField(raw: unknown): number | null | 'invalid' {
+function numberField(raw: unknown): number | null | 'invalid' {
 	if (raw === undefined || raw === null) return null;
 	if (typeof raw === 'number') return Number.isFinite(raw) ? raw : 'invalid';
 	if (typeof raw !== 'string') return 'invalid';
@@ -133,7 +135,7 @@ export function resolvePosition(p: PositionInput, row: number): { lon: number; l
 }
 
 /** Match a type name case-insensitively against the known names; the canonical spelling is kept. */
-export function typeMatcher(knownTypes: readonly string[]): (name: string) => string | null {
+function typeMatcher(knownTypes: readonly string[]): (name: string) => string | null {
 	const byKey = new Map(knownTypes.map((t) => [t.trim().toLowerCase(), t]));
 	return (name) => byKey.get(name.trim().toLowerCase()) ?? null;
 }
@@ -146,7 +148,7 @@ function emptyToUndefined(v: unknown): unknown {
  * Validate one record's fields and position. `raw` holds the file's own names
  * (id, serial, type, lon, lat, x, y, crs, install_date, status, notes).
  */
-export function validateSensor(raw: Record<string, unknown>, row: number, matchType: (name: string) => string | null, knownTypes: readonly string[]): SensorRecord | RowError[] {
+function validateSensor(raw: Record<string, unknown>, row: number, matchType: (name: string) => string | null, knownTypes: readonly string[]): SensorRecord | RowError[] {
 	const errors: RowError[] = [];
 	const parsed = sensorFieldsSchema.safeParse({
 		id: raw.id,
@@ -157,11 +159,7 @@ export function validateSensor(raw: Record<string, unknown>, row: number, matchT
 		notes: emptyToUndefined(raw.notes)
 	});
 	if (!parsed.success) {
-		for (const issue of parsed.error.issues) {
-			const field = String(issue.path[0] ?? '');
-			const message = issue.code === 'invalid_type' && issue.input === undefined ? `${field} is required` : issue.message;
-			errors.push({ row, field, message });
-		}
+		for (const [field, message] of Object.entries(zodFields(parsed.error))) errors.push({ row, field, message });
 	}
 	// The type is checked whenever it is present, so one pass shows every problem of the row.
 	let type: string | null = null;

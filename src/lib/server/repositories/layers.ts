@@ -1,8 +1,7 @@
 /** Layers: the uploaded rasters of a network, with their metadata. */
 import type { Db } from '../db';
+import type { LayerKind, LayerPlatform } from '../../api/client';
 
-export type LayerKind = 'soil_moisture' | 'vegetation_index' | 'elevation' | 'other';
-export type LayerPlatform = 'satellite' | 'aircraft' | 'drone' | 'model' | 'other';
 export type LayerStatus = 'uploading' | 'processing' | 'ready' | 'failed';
 
 export interface LayerRow {
@@ -65,24 +64,26 @@ export async function listLayers(db: Db, networkId: number): Promise<LayerRow[]>
 	return rows.map(parseRow);
 }
 
+/** The newest ready layer with a preview image, or undefined. */
+export async function latestPreviewedLayer(db: Db, networkId: number): Promise<LayerRow | undefined> {
+	const row = await db('layers')
+		.select(columns)
+		.where({ network_id: networkId, status: 'ready' })
+		.whereNotNull('preview_key')
+		.orderBy([{ column: 'created_at', order: 'desc' }, { column: 'id', order: 'desc' }])
+		.first();
+	return row ? parseRow(row) : undefined;
+}
+
 export async function findLayer(db: Db, networkId: number, id: number): Promise<LayerRow | undefined> {
 	const row = await db('layers').select(columns).where({ network_id: networkId, id }).first();
 	return row ? parseRow(row) : undefined;
 }
 
-export interface NewLayer {
-	network_id: number;
-	name: string;
-	kind: LayerKind;
-	units: string;
-	acquired_on: string | null;
-	platform: LayerPlatform;
-	band: number;
-	original_name: string;
-	created_by: number | null;
+export type NewLayer = Pick<LayerRow, 'network_id' | 'name' | 'kind' | 'units' | 'acquired_on' | 'platform' | 'band' | 'original_name' | 'created_by'> & {
 	/** Known before the upload starts, so that a crash mid-upload leaves a key the sweeper can remove. */
 	storage_key?: string | null;
-}
+};
 
 export async function insertLayer(db: Db, f: NewLayer): Promise<number> {
 	const [id] = await db('layers').insert({ ...f, status: 'uploading' });

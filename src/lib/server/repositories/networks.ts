@@ -7,6 +7,8 @@ export interface NetworkRow {
 	name: string;
 	description: string;
 	crs_epsg: number | null;
+	/** The working CRS decided for the network (services/working-crs.ts); null until something has a position. */
+	working_epsg: number | null;
 	study_area: unknown | null;
 	exclusions: unknown | null;
 	publication: 'private' | 'published';
@@ -16,7 +18,7 @@ export interface NetworkRow {
 	updated_at: Date;
 }
 
-const columns = ['id', 'organisation_id', 'slug', 'name', 'description', 'crs_epsg', 'study_area', 'exclusions', 'publication', 'public_text', 'version', 'created_at', 'updated_at'] as const;
+const columns = ['id', 'organisation_id', 'slug', 'name', 'description', 'crs_epsg', 'working_epsg', 'study_area', 'exclusions', 'publication', 'public_text', 'version', 'created_at', 'updated_at'] as const;
 
 function parseJsonColumns(row: Record<string, unknown>): NetworkRow {
 	const parse = (v: unknown) => (typeof v === 'string' ? JSON.parse(v) : v ?? null);
@@ -83,4 +85,25 @@ export async function updateNetwork(db: Db, id: number, version: number, patch: 
 	if ('exclusions' in patch) row.exclusions = patch.exclusions === null ? null : JSON.stringify(patch.exclusions);
 	const n = await db('networks').where({ id, version }).update(row);
 	return n === 1;
+}
+
+/** The facts the working CRS is decided from: the explicit choice, the study area, the grid in use, the sensors' extent. */
+export async function workingCrsFacts(db: Db, id: number): Promise<{ crsEpsg: number | null; studyArea: unknown; gridEpsg: number | null; sensorBox: [number, number, number, number] | null } | undefined> {
+	const row = await db('networks as n')
+		.leftJoin('importance_recipe_versions as v', 'v.id', 'n.recipe_version_id')
+		.select('n.crs_epsg', 'n.study_area', 'v.grid_epsg')
+		.where('n.id', id)
+		.first();
+	if (!row) return undefined;
+	const box = await db('sensors').where({ network_id: id }).min({ w: 'lon', s: 'lat' }).max({ e: 'lon', n: 'lat' }).first();
+	return {
+		crsEpsg: row.crs_epsg ?? null,
+		studyArea: typeof row.study_area === 'string' ? JSON.parse(row.study_area) : (row.study_area ?? null),
+		gridEpsg: row.grid_epsg ?? null,
+		sensorBox: box && box.w !== null ? [Number(box.w), Number(box.s), Number(box.e), Number(box.n)] : null
+	};
+}
+
+export async function setWorkingEpsg(db: Db, id: number, epsg: number | null): Promise<void> {
+	await db('networks').where({ id }).update({ working_epsg: epsg });
 }

@@ -82,6 +82,8 @@ export interface NewVersion {
 	definition: unknown;
 	note: string;
 	surface_key: string | null;
+	/** EPSG code of the computed surface's grid. */
+	grid_epsg: number | null;
 	created_by: number | null;
 }
 

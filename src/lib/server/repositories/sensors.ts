@@ -139,6 +139,13 @@ export async function insertSensor(db: Db, networkId: number, f: SensorFields): 
 	return id;
 }
 
+/** Many sensors in a few multi-row INSERTs (500 rows each). */
+export async function insertSensors(db: Db, networkId: number, rows: readonly SensorFields[]): Promise<void> {
+	for (let i = 0; i < rows.length; i += 500) {
+		await db('sensors').insert(rows.slice(i, i + 500).map((f) => ({ ...f, network_id: networkId, position: pointWkt(db, f.lon, f.lat) })));
+	}
+}
+
 /** Optimistic update: succeeds only when the row still has `version`. */
 export async function updateSensor(db: Db, networkId: number, id: number, version: number, f: SensorFields): Promise<boolean> {
 	const n = await db('sensors')

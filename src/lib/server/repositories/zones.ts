@@ -2,7 +2,9 @@
 import type { Db } from '../db';
 import type { MultiPolygonGeometry } from '../../geo/polygons';
 
-export type ZoneSetKind = 'uploaded' | 'grid' | 'computed';
+import type { ZoneSetKind } from '../../api/client';
+
+export type { ZoneSetKind };
 
 export interface ZoneSetRow {
 	id: number;
@@ -57,8 +59,15 @@ export async function insertZones(db: Db, zoneSetId: number, zones: { code: stri
 	}
 }
 
-export async function setZoneShare(db: Db, zoneId: number, share: number | null): Promise<void> {
-	await db('zones').where({ id: zoneId }).update({ importance_share: share });
+/** Every zone's importance share in a few UPDATEs (one CASE per 500 zones), not one per zone. */
+export async function setZoneShares(db: Db, shares: readonly { id: number; share: number | null }[]): Promise<void> {
+	for (let i = 0; i < shares.length; i += 500) {
+		const part = shares.slice(i, i + 500);
+		const cases = part.map(() => 'WHEN ? THEN ?').join(' ');
+		await db('zones')
+			.whereIn('id', part.map((s) => s.id))
+			.update({ importance_share: db.raw(`CASE id ${cases} END`, part.flatMap((s) => [s.id, s.share])) });
+	}
 }
 
 export async function deleteZoneSet(db: Db, networkId: number, id: number): Promise<boolean> {

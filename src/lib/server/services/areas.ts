@@ -10,8 +10,9 @@ import type { Knex } from 'knex';
 import { z } from 'zod';
 import { recordAudit } from '../repositories/audit';
 import { findNetwork, updateNetwork, type NetworkRow } from '../repositories/networks';
-import { parseGeoJsonPolygons, parsePolygonUpload, PolygonError, type MultiPolygonGeometry, type PolygonFeature } from '../../geo/polygons';
+import { asMultiPolygon, parseGeoJsonPolygons, parsePolygonUpload, PolygonError, type MultiPolygonGeometry, type PolygonFeature } from '../../geo/polygons';
 import { ServiceError } from './errors';
+import { settleWorkingCrs } from './working-crs';
 
 export interface ExclusionFeature {
 	type: 'Feature';
@@ -34,25 +35,15 @@ export const areaPatch = z
 export type AreaPatch = z.infer<typeof areaPatch>;
 
 /** All parts of all features as one MultiPolygon. */
-export function mergeFeatures(features: readonly PolygonFeature[]): MultiPolygonGeometry {
+function mergeFeatures(features: readonly PolygonFeature[]): MultiPolygonGeometry {
 	return { type: 'MultiPolygon', coordinates: features.flatMap((f) => f.geometry.coordinates) };
 }
 
-export function toExclusions(features: readonly PolygonFeature[]): ExclusionCollection {
+function toExclusions(features: readonly PolygonFeature[]): ExclusionCollection {
 	return {
 		type: 'FeatureCollection',
 		features: features.map((f, i) => ({ type: 'Feature', properties: { name: f.name ?? f.id ?? `Exclusion ${i + 1}` }, geometry: f.geometry }))
 	};
-}
-
-/** A stored study area as a MultiPolygon (older rows, e.g. the demo seed, hold a bare Polygon). */
-export function studyAreaMultiPolygon(v: unknown): MultiPolygonGeometry | null {
-	if (!v || typeof v !== 'object') return null;
-	const g = v as { type?: unknown; coordinates?: unknown };
-	if (!Array.isArray(g.coordinates) || g.coordinates.length === 0) return null;
-	if (g.type === 'MultiPolygon') return v as MultiPolygonGeometry;
-	if (g.type === 'Polygon') return { type: 'MultiPolygon', coordinates: [g.coordinates as MultiPolygonGeometry['coordinates'][number]] };
-	return null;
 }
 
 /**
@@ -64,7 +55,7 @@ export function exclusionList(v: unknown): ExclusionFeature[] {
 	const list: unknown[] = Array.isArray(v) ? v : Array.isArray((v as { features?: unknown }).features) ? (v as ExclusionCollection).features : [{ type: 'Feature', properties: {}, geometry: v }];
 	const out: ExclusionFeature[] = [];
 	list.forEach((f, i) => {
-		const geometry = studyAreaMultiPolygon((f as { geometry?: unknown } | null)?.geometry);
+		const geometry = asMultiPolygon((f as { geometry?: unknown } | null)?.geometry);
 		if (!geometry) return;
 		const name = (f as { properties?: { name?: unknown } }).properties?.name;
 		out.push({ type: 'Feature', properties: { name: typeof name === 'string' && name ? name : `Exclusion ${i + 1}` }, geometry });
@@ -119,11 +110,12 @@ export async function setArea(
 			...('study_area' in change ? { study_area: n.study_area ?? null } : {}),
 			...('exclusions' in change ? { exclusions: n.exclusions ?? null } : {})
 		});
+		if ('study_area' in change) await settleWorkingCrs(trx, networkId);
 		await recordAudit(trx, { organisationId: before.organisation_id, actorUserId: actorId, action: 'network.area', objectType: 'network', objectId: networkId, before: summary(before), after: summary(change) });
 		return (await findNetwork(trx, networkId))!;
 	});
 }
 
 export function areaView(n: NetworkRow) {
-	return { version: n.version, studyArea: studyAreaMultiPolygon(n.study_area), exclusions: exclusionList(n.exclusions) };
+	return { version: n.version, studyArea: asMultiPolygon(n.study_area), exclusions: exclusionList(n.exclusions) };
 }

@@ -56,8 +56,7 @@ interface NetworkRef {
 function parseOr400<T>(schema: z.ZodType<T>, raw: unknown): T {
 	const r = schema.safeParse(raw);
 	if (r.success) return r.data;
-	const i = r.error.issues[0];
-	throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
+	throw ServiceError.fromZod(r.error);
 }
 
 export const fieldUrl = (origin: string, networkId: number) => `${origin.replace(/\/$/, '')}/networks/${networkId}/field`;

@@ -40,9 +40,10 @@ import {
 	type RecipeVersionRow
 } from '../repositories/recipes';
 import { ServiceError } from './errors';
+import { settleWorkingCrs } from './working-crs';
 
 /** Largest surface, in cells (4 million Float32 = 16 MB). */
-export const MAX_SURFACE_CELLS = 4_000_000;
+const MAX_SURFACE_CELLS = 4_000_000;
 
 /**
  * The importance surface a network currently works with.
@@ -276,7 +277,7 @@ export interface RecipeView {
 	versions: RecipeVersionView[];
 }
 
-export function versionView(v: RecipeVersionRow): RecipeVersionView {
+function versionView(v: RecipeVersionRow): RecipeVersionView {
 	return { id: v.id, recipeId: v.recipe_id, version: v.version, definition: v.definition, note: v.note, createdBy: v.created_by_name, createdAt: v.created_at, hasSurface: v.surface_key !== null };
 }
 
@@ -316,8 +317,7 @@ export type SaveVersionInput = z.input<typeof saveVersionInput>;
 export async function saveRecipeVersion(db: Knex, store: ObjectStore, networkId: number, organisationId: number, actorId: number, input: SaveVersionInput): Promise<RecipeVersionView> {
 	const parsed = saveVersionInput.safeParse(input);
 	if (!parsed.success) {
-		const i = parsed.error.issues[0];
-		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
+		throw ServiceError.fromZod(parsed.error);
 	}
 	const { recipeId, name, note } = parsed.data;
 	const recipe = parseOrFail(parsed.data.definition);
@@ -336,7 +336,7 @@ export async function saveRecipeVersion(db: Knex, store: ObjectStore, networkId:
 				row = (await findRecipe(trx, networkId, id, { forUpdate: true }))!;
 			}
 			const version = row.latest_version + 1;
-			const versionId = await insertVersion(trx, { recipe_id: row.id, version, definition: recipe, note, surface_key: key, created_by: actorId });
+			const versionId = await insertVersion(trx, { recipe_id: row.id, version, definition: recipe, note, surface_key: key, grid_epsg: surface.grid.epsg, created_by: actorId });
 			await bumpLatestVersion(trx, row.id, version);
 			await recordAudit(trx, { organisationId, actorUserId: actorId, action: 'recipe.version.create', objectType: 'importance_recipe_version', objectId: versionId, after: { recipe: row.name, version, definition: recipe, note } });
 			return versionView((await findVersion(trx, networkId, versionId))!);
@@ -354,6 +354,7 @@ export async function useRecipeVersion(db: Knex, networkId: number, organisation
 		if (!v) throw new ServiceError(404, 'not_found', 'No such recipe version in this network.', 'versionId');
 		const before = await networkRecipeVersionId(trx, networkId);
 		await setNetworkRecipeVersion(trx, networkId, versionId);
+		await settleWorkingCrs(trx, networkId);
 		await recordAudit(trx, { organisationId, actorUserId: actorId, action: 'network.recipe_version', objectType: 'network', objectId: networkId, before: { recipeVersionId: before }, after: { recipeVersionId: versionId } });
 	});
 }

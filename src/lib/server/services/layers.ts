@@ -26,7 +26,7 @@ import { recordAudit } from '../repositories/audit';
 import { deleteLayerRow, findLayer, insertLayer, listLayers, updateLayer, type LayerRow } from '../repositories/layers';
 import { versionsCitingLayer } from '../repositories/recipes';
 import { ServiceError } from './errors';
-import type { Layer } from '../../api/client';
+import { LAYER_KINDS, LAYER_PLATFORMS, type Layer } from '../../api/client';
 import { enqueueJob, jobView, type JobView } from '../jobs/queue';
 
 /** The job kind that processes a stored upload (see ../jobs/kinds/layer-processing.ts). */
@@ -35,9 +35,7 @@ const LAYER_PROCESSING = 'layer-processing';
 /** Largest band of an upload, in pixels: 250 million (a 500 MB file of Float16 samples). */
 export const DEFAULT_LAYER_MAX_PIXELS = 250_000_000;
 
-export const LAYER_KINDS = ['soil_moisture', 'vegetation_index', 'elevation', 'other'] as const;
-export const LAYER_PLATFORMS = ['satellite', 'aircraft', 'drone', 'model', 'other'] as const;
-export const DEFAULT_LAYER_MAX_BYTES = 500 * 1024 * 1024;
+const DEFAULT_LAYER_MAX_BYTES = 500 * 1024 * 1024;
 
 export interface LayerLimits {
 	maxBytes: number;
@@ -62,11 +60,9 @@ export function layerLimits(env: Record<string, string | undefined>): LayerLimit
 }
 
 /** The upload is larger than LAYER_MAX_BYTES (answered with 413). */
-export class UploadTooLarge extends Error {
-	readonly status = 413;
-	readonly code = 'too_large';
+export class UploadTooLarge extends ServiceError {
 	constructor(maxBytes: number) {
-		super(`The file is larger than the limit of ${formatBytes(maxBytes)}. Clip or resample the raster, or ask an administrator to raise LAYER_MAX_BYTES.`);
+		super(413, 'too_large', `The file is larger than the limit of ${formatBytes(maxBytes)}. Clip or resample the raster, or ask an administrator to raise LAYER_MAX_BYTES.`);
 		this.name = 'UploadTooLarge';
 	}
 }
@@ -79,7 +75,7 @@ export function formatBytes(n: number): string {
 
 const emptyToUndefined = (v: unknown) => (typeof v === 'string' && v.trim() === '' ? undefined : v);
 
-export const layerMetaInput = z.object({
+const layerMetaInput = z.object({
 	name: z.string({ error: 'Give the layer a name.' }).trim().min(1, 'Give the layer a name.').max(200, 'Keep the name under 200 characters.'),
 	kind: z.enum(LAYER_KINDS, { error: 'Choose what the layer measures.' }),
 	units: z.string().trim().max(50, 'Keep the units under 50 characters.').default(''),
@@ -179,8 +175,7 @@ export async function storeLayerUpload(db: Knex, store: ObjectStore, ctx: Upload
 	const parsed = layerMetaInput.safeParse(meta);
 	if (!parsed.success) {
 		if (body instanceof Readable) body.resume(); // drain, so the client sees our answer
-		const i = parsed.error.issues[0];
-		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
+		throw ServiceError.fromZod(parsed.error);
 	}
 	const m = parsed.data;
 	const storageKey = newObjectKey('layers');

@@ -4,11 +4,12 @@ import { z } from 'zod';
 import { recordAudit } from '../repositories/audit';
 import { findNetwork, insertNetwork, listNetworks, slugTaken, updateNetwork, type NetworkRow, type NetworkSummaryRow } from '../repositories/networks';
 import { ServiceError } from './errors';
+import { settleWorkingCrs } from './working-crs';
 
 const slugRe = /^[a-z0-9]+(?:-[a-z0-9]+)*$/;
 
 /** Projected EPSG codes we accept as a working CRS: UTM north/south (WGS 84) and a few equal-area grids. */
-export function isAcceptedWorkingCrs(code: number): boolean {
+function isAcceptedWorkingCrs(code: number): boolean {
 	return (code >= 32601 && code <= 32660) || (code >= 32701 && code <= 32760) || [3035, 6933, 3857, 27700, 2154, 25832, 25833].includes(code);
 }
 
@@ -33,7 +34,7 @@ export const networkPatch = networkInput.partial().extend({
 export type NetworkInput = z.infer<typeof networkInput>;
 export type NetworkPatch = z.infer<typeof networkPatch>;
 
-export function slugify(name: string): string {
+function slugify(name: string): string {
 	return (
 		name
 			.normalize('NFKD')
@@ -51,6 +52,7 @@ export async function createNetwork(db: Knex, organisationId: number, actorId: n
 		if (await slugTaken(trx, organisationId, slug)) throw new ServiceError(409, 'slug_taken', `A network with the short name "${slug}" already exists.`, 'slug');
 		const fields = { name: input.name, slug, description: input.description, crs_epsg: input.crsEpsg, publication: 'private' as const, public_text: input.publicText, study_area: null, exclusions: null };
 		const id = await insertNetwork(trx, organisationId, actorId, fields);
+		await settleWorkingCrs(trx, id);
 		await recordAudit(trx, { organisationId, actorUserId: actorId, action: 'network.create', objectType: 'network', objectId: id, after: fields });
 		return id;
 	});
@@ -120,6 +122,7 @@ export async function updateNetworkDetails(db: Knex, networkId: number, actorId:
 			throw e;
 		});
 		if (!ok) throw new ServiceError(409, 'stale', 'Someone else changed this network meanwhile. Reload and try again.');
+		if (patch.crsEpsg !== undefined && patch.crsEpsg !== before.crs_epsg) await settleWorkingCrs(trx, networkId);
 		const after = (await findNetwork(trx, networkId))!;
 		const pick = (n: NetworkRow) => Object.fromEntries(Object.keys(fields).map((k) => [k, (n as unknown as Record<string, unknown>)[k]]));
 		await recordAudit(trx, { organisationId: before.organisation_id, actorUserId: actorId, action: 'network.update', objectType: 'network', objectId: networkId, before: pick(before), after: pick(after) });

@@ -29,9 +29,10 @@ import { listSensorTypes } from '../repositories/sensor-types';
 import { findZoneSet, listZones, networkZoneSetId } from '../repositories/zones';
 import { findNetwork } from '../repositories/networks';
 import type { ObjectStore } from '../storage';
-import { exclusionList, studyAreaMultiPolygon } from './areas';
+import { exclusionList } from './areas';
+import { asMultiPolygon } from '../../geo/polygons';
 import { recipeLayerIds, recipeVersionImportance, surfaceRasterBand } from './importance';
-import { workingCrsOf } from './sensors';
+import { workingCrs } from './working-crs';
 import { ServiceError } from './errors';
 import type { Recipe } from '../../importance';
 
@@ -129,10 +130,7 @@ function inputFailure(e: unknown): never {
 /** Reads and checks everything a run needs; throws ServiceError (422) for anything the analyst can fix. */
 export async function preparePlacement(db: Knex, store: ObjectStore, networkId: number, raw: unknown): Promise<PreparedPlacement> {
 	const parsed = runInput.safeParse(raw);
-	if (!parsed.success) {
-		const i = parsed.error.issues[0];
-		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
-	}
+	if (!parsed.success) throw ServiceError.fromZod(parsed.error);
 	const p = parsed.data;
 	const network = await findNetwork(db, networkId);
 	if (!network) throw new ServiceError(404, 'not_found', 'No such network.');
@@ -144,13 +142,14 @@ export async function preparePlacement(db: Knex, store: ObjectStore, networkId: 
 
 	let grid: WorkingGrid;
 	let epsg: number;
-	const area = studyAreaMultiPolygon(network.study_area);
+	const area = asMultiPolygon(network.study_area);
+	const workingEpsg = await workingCrs(db, network);
 	const exclusions = exclusionList(network.exclusions);
 	try {
 		const imp = await recipeVersionImportance(db, store, networkId, versionId);
 		if (!imp) throw new ServiceError(422, 'no_importance', 'The recipe version has no importance surface.', 'recipeVersionId');
 		({ grid, epsg } = buildWorkingGrid(surfaceRasterBand(imp), {
-			crs: workingCrsOf(network),
+			crs: workingEpsg,
 			cellSize: p.cellSize,
 			studyArea: area?.coordinates?.length ? area.coordinates : undefined,
 			exclusions: exclusions.map((f) => f.geometry.coordinates).flat(),

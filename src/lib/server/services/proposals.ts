@@ -33,8 +33,7 @@ export const proposalInput = z
 	.strict();
 
 function invalid(err: z.ZodError): never {
-	const i = err.issues[0];
-	throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
+	throw ServiceError.fromZod(err);
 }
 
 export async function createProposal(db: Knex, network: { id: number; organisation_id: number }, actorId: number, raw: unknown): Promise<number> {

@@ -133,7 +133,7 @@ export async function publicMap(db: Db, slug: string, importance: ImportanceSour
 /** The importance overlay PNG of a published network (404 when unpublished or without importance). */
 export async function publicImportancePng(db: Db, slug: string, importance: ImportanceSource): Promise<Buffer> {
 	const network = await findPublishedNetwork(db, slug);
-	const png = await importancePng(network, db, importance);
+	const png = await importancePng(db, network, importance);
 	if (!png) throw new ServiceError(404, 'not_found', 'This map has no importance overlay.');
 	return png;
 }

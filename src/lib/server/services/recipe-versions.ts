@@ -21,10 +21,7 @@ export interface RecipeVersionWork {
 
 export async function queueRecipeVersion(db: Knex, networkId: number, organisationId: number, actorId: number, input: SaveVersionInput): Promise<JobView> {
 	const parsed = saveVersionInput.safeParse(input);
-	if (!parsed.success) {
-		const i = parsed.error.issues[0];
-		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
-	}
+	if (!parsed.success) throw ServiceError.fromZod(parsed.error);
 	const { recipeId, name } = parsed.data;
 	await checkRecipe(db, networkId, parsed.data.definition);
 	if (recipeId !== undefined) {

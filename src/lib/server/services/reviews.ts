@@ -58,8 +58,7 @@ export const decisionInput = z
 function parseOr400<T>(schema: z.ZodType<T>, raw: unknown): T {
 	const r = schema.safeParse(raw);
 	if (r.success) return r.data;
-	const i = r.error.issues[0];
-	throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
+	throw ServiceError.fromZod(r.error);
 }
 
 export function revisionUrl(origin: string, networkId: number, r: Pick<RevisionRow, 'proposal_id' | 'id'>): string {

@@ -5,7 +5,8 @@
 import type { Db } from '../db';
 import { transformer } from '../../geo/crs';
 import type { NetworkRow } from '../repositories/networks';
-import { boundsOf, networkMap, padBounds, type ImportanceSource } from './map-data';
+import { boundsOf, padBounds } from '../../geo/geometry';
+import { networkMap, type ImportanceSource } from './map-data';
 import type { TaskView } from './field-tasks';
 
 export async function routeMap(db: Db, network: NetworkRow, tasks: readonly TaskView[], importance: ImportanceSource) {

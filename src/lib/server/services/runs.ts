@@ -58,10 +58,7 @@ interface NetworkRef {
 
 function parseParams(raw: unknown): RunInput {
 	const parsed = runInput.safeParse(raw);
-	if (!parsed.success) {
-		const i = parsed.error.issues[0];
-		throw new ServiceError(400, 'invalid_input', i.message, String(i.path[0] ?? '_'));
-	}
+	if (!parsed.success) throw ServiceError.fromZod(parsed.error);
 	return parsed.data;
 }
 

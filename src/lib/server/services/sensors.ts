@@ -15,6 +15,7 @@ import {
 	existingCodes,
 	findSensor,
 	insertSensor,
+	insertSensors,
 	listSensors,
 	SENSOR_SORTS,
 	updateSensor,
@@ -32,58 +33,24 @@ import {
 	type SensorRecord
 } from '../inventory';
 import { isoDate, resolvePosition } from '../inventory/sensor-record';
-import { chooseWorkingCrs, CrsError, transformer, utmZoneFor } from '../../geo/crs';
-import { ServiceError } from './errors';
+import { transformer } from '../../geo/crs';
+import { workingCrs } from './working-crs';
+import type { Sensor } from '../../api/client';
+import { ServiceError, zodFields } from './errors';
 
 export type FieldErrors = Record<string, string>;
 
 /** A form or request that failed validation, with a message per field. */
-export class SensorInputError extends Error {
+export class SensorInputError extends ServiceError {
 	constructor(public fields: FieldErrors) {
-		super('Some fields are not valid.');
+		super(400, 'invalid_input', 'Some fields are not valid.', undefined, fields);
 		this.name = 'SensorInputError';
 	}
 }
 
-// ---------------------------------------------------------------- working CRS
-
-/** Centre of the bounding box of a GeoJSON (Multi)Polygon geometry, or null. */
-export function geometryCentre(g: unknown): [number, number] | null {
-	if (!g || typeof g !== 'object') return null;
-	const coords = (g as { coordinates?: unknown }).coordinates;
-	let minX = Infinity, minY = Infinity, maxX = -Infinity, maxY = -Infinity;
-	const walk = (v: unknown): void => {
-		if (Array.isArray(v) && v.length >= 2 && typeof v[0] === 'number' && typeof v[1] === 'number') {
-			minX = Math.min(minX, v[0]); maxX = Math.max(maxX, v[0]);
-			minY = Math.min(minY, v[1]); maxY = Math.max(maxY, v[1]);
-		} else if (Array.isArray(v)) v.forEach(walk);
-	};
-	walk(coords);
-	return Number.isFinite(minX) ? [(minX + maxX) / 2, (minY + maxY) / 2] : null;
-}
-
-/**
- * The network's working CRS: its explicit crs_epsg, otherwise the UTM zone of the study area's
- * centre; null when neither is known (then only lon/lat can be entered).
- */
-export function workingCrsOf(network: Pick<NetworkRow, 'crs_epsg' | 'study_area'>): number | null {
-	if (network.crs_epsg) return network.crs_epsg;
-	const c = geometryCentre(network.study_area);
-	if (!c) return null;
-	try {
-		// 4326 is never suitable as a working CRS, so this is the UTM zone of the centre.
-		return chooseWorkingCrs(4326, c, null);
-	} catch (e) {
-		if (e instanceof CrsError) return null;
-		throw e;
-	}
-}
-
-export { utmZoneFor };
-
 // ---------------------------------------------------------------- views
 
-export function sensorView(s: SensorRow, crs: number | null) {
+export function sensorView(s: SensorRow, crs: number | null): Sensor {
 	let x: number | null = null;
 	let y: number | null = null;
 	if (crs) {
@@ -107,14 +74,13 @@ export function sensorView(s: SensorRow, crs: number | null) {
 		version: s.version
 	};
 }
-export type SensorView = ReturnType<typeof sensorView>;
 
 // ---------------------------------------------------------------- list query
 
 export const PER_PAGE_CHOICES = [10, 25, 50, 100] as const;
 
 /** Sort, filter and page from URL query parameters; unknown values fall back to defaults. */
-export const sensorListQuery = z.object({
+const sensorListQuery = z.object({
 	sort: z.enum(SENSOR_SORTS).catch('code'),
 	dir: z.enum(['asc', 'desc']).catch('asc'),
 	type: z.coerce.number().int().positive().nullable().catch(null),
@@ -135,7 +101,7 @@ export function parseListQuery(params: URLSearchParams): SensorListQuery {
 }
 
 export async function sensorPage(db: Knex, network: NetworkRow, q: SensorListQuery) {
-	const crs = workingCrsOf(network);
+	const crs = await workingCrs(db, network);
 	const query: SensorQuery = { sort: q.sort, dir: q.dir, typeId: q.type, status: q.status, text: q.q, page: q.page, perPage: q.perPage };
 	let { rows, total } = await listSensors(db, network.id, query);
 	const pages = Math.max(1, Math.ceil(total / q.perPage));
@@ -176,9 +142,9 @@ const FIELD_OF: Record<string, string> = { lon: 'lon', lat: 'lat', x: 'x', y: 'y
 export async function validateSensorInput(db: Knex, network: NetworkRow, raw: Record<string, unknown>): Promise<SensorFields> {
 	const errors: FieldErrors = {};
 	const parsed = sensorFormSchema.safeParse(raw);
-	if (!parsed.success) for (const i of parsed.error.issues) errors[String(i.path[0] ?? '_')] ??= i.message;
+	if (!parsed.success) Object.assign(errors, zodFields(parsed.error));
 	const mode = raw.positionMode === 'xy' ? 'xy' : 'lonlat';
-	const crs = workingCrsOf(network);
+	const crs = await workingCrs(db, network);
 	let pos: { lon: number; lat: number } | null = null;
 	if (mode === 'xy' && !crs) errors.x = 'The working CRS is not known yet (set it on the overview or outline the study area); enter lon/lat.';
 	else {
@@ -289,8 +255,10 @@ export async function importSensors(db: Knex, network: NetworkRow, actorId: numb
 			return { ok: false as const, errors };
 		}
 		const typeId = new Map(types.map((t) => [t.name, t.id]));
-		for (const r of result.rows) {
-			await insertSensor(trx, network.id, {
+		await insertSensors(
+			trx,
+			network.id,
+			result.rows.map((r) => ({
 				code: r.id,
 				serial: r.serial,
 				sensor_type_id: typeId.get(r.type)!,
@@ -299,8 +267,8 @@ export async function importSensors(db: Knex, network: NetworkRow, actorId: numb
 				status: r.status,
 				installed_on: r.installDate,
 				notes: r.notes ?? ''
-			});
-		}
+			}))
+		);
 		await recordAudit(trx, {
 			organisationId: network.organisation_id,
 			actorUserId: actorId,
@@ -313,7 +281,7 @@ export async function importSensors(db: Knex, network: NetworkRow, actorId: numb
 	});
 }
 
-export async function sensorRecords(db: Knex, networkId: number): Promise<SensorRecord[]> {
+async function sensorRecords(db: Knex, networkId: number): Promise<SensorRecord[]> {
 	const { rows } = await listSensors(db, networkId, { sort: 'code' });
 	return rows.map((s) => ({ id: s.code, serial: s.serial, type: s.type_name, lon: s.lon, lat: s.lat, installDate: s.installed_on, status: s.status, notes: s.notes || null }));
 }

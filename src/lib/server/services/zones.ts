@@ -9,6 +9,7 @@ import type { Knex } from 'knex';
 import { z } from 'zod';
 import { recordAudit } from '../repositories/audit';
 import type { NetworkRow } from '../repositories/networks';
+import type { SensorStatus, ZoneSet } from '../../api/client';
 import { listSensors } from '../repositories/sensors';
 import {
 	deleteZoneSet,
@@ -19,12 +20,13 @@ import {
 	listZoneSets,
 	networkZoneSetId,
 	setNetworkZoneSet,
-	setZoneShare,
+	setZoneShares,
 	type ZoneRow,
 	type ZoneSetKind,
 	type ZoneSetRow
 } from '../repositories/zones';
-import { parsePolygonUpload, PolygonError, ringArea2, type MultiPolygonGeometry, type Position } from '../../geo/polygons';
+import { asMultiPolygon, parsePolygonUpload, PolygonError, type MultiPolygonGeometry, type Position } from '../../geo/polygons';
+import { boundsOf, clipPolygonToRect, closeRing, orientRing, pointInPolygons, ringArea2 } from '../../geo/geometry';
 import { projectRings } from '../../geo/geojson';
 import { CrsError, parseEpsg, transformer } from '../../geo/crs';
 import { computeZones } from '../../engine/zones';
@@ -35,13 +37,13 @@ import { buildWorkingGrid, WorkingGridError } from '../../geo/working-grid';
 import { ImportanceError } from '../../importance/grid';
 import type { ObjectStore } from '../storage';
 import { networkImportance, surfaceRasterBand } from './importance';
-import { exclusionList, studyAreaMultiPolygon } from './areas';
-import { workingCrsOf } from './sensors';
+import { exclusionList } from './areas';
+import { workingCrs } from './working-crs';
 import { ServiceError } from './errors';
 
 /** Cell sizes offered for grid zones: the SMAP EASE-Grid 2.0 product sizes (FIELD-FACTS.md [S]). */
 export const GRID_PRESETS_M = [1000, 3000, 9000, 36000] as const;
-export const MAX_ZONES = 2500;
+const MAX_ZONES = 2500;
 
 /** The importance on the working grid, with the recipe version it came from. */
 export interface ImportanceSurface {
@@ -57,57 +59,6 @@ export interface NewZone {
 
 // ---------------------------------------------------------------- pure geometry helpers
 
-/** Even-odd point-in-polygon over every ring of a MultiPolygon (the rasteriser's rule). */
-export function pointInMultiPolygon(lon: number, lat: number, g: MultiPolygonGeometry): boolean {
-	let inside = false;
-	for (const poly of g.coordinates)
-		for (const ring of poly)
-			for (let i = 0, j = ring.length - 1; i < ring.length; j = i++) {
-				const [xi, yi] = ring[i];
-				const [xj, yj] = ring[j];
-				if (yi > lat !== yj > lat && lon < ((xj - xi) * (lat - yi)) / (yj - yi) + xi) inside = !inside;
-			}
-	return inside;
-}
-
-/** Sutherland–Hodgman: clip a (closed) ring to an axis-aligned rectangle; [] when nothing is left. */
-export function clipRingToRect(ring: readonly Position[], xmin: number, ymin: number, xmax: number, ymax: number): Position[] {
-	let pts: Position[] = ring.slice(0, ring.length - 1).map((p) => [p[0], p[1]]);
-	const edges: Array<[(p: Position) => boolean, (a: Position, b: Position) => Position]> = [
-		[(p) => p[0] >= xmin, (a, b) => [xmin, a[1] + ((b[1] - a[1]) * (xmin - a[0])) / (b[0] - a[0])]],
-		[(p) => p[0] <= xmax, (a, b) => [xmax, a[1] + ((b[1] - a[1]) * (xmax - a[0])) / (b[0] - a[0])]],
-		[(p) => p[1] >= ymin, (a, b) => [a[0] + ((b[0] - a[0]) * (ymin - a[1])) / (b[1] - a[1]), ymin]],
-		[(p) => p[1] <= ymax, (a, b) => [a[0] + ((b[0] - a[0]) * (ymax - a[1])) / (b[1] - a[1]), ymax]]
-	];
-	for (const [inside, cut] of edges) {
-		if (pts.length === 0) break;
-		const out: Position[] = [];
-		for (let i = 0; i < pts.length; i++) {
-			const cur = pts[i];
-			const prev = pts[(i + pts.length - 1) % pts.length];
-			const ci = inside(cur);
-			if (ci !== inside(prev)) out.push(cut(prev, cur));
-			if (ci) out.push(cur);
-		}
-		pts = out;
-	}
-	if (pts.length < 3) return [];
-	const closed = [...pts, pts[0]];
-	return Math.abs(ringArea2(closed)) > 1e-9 * (xmax - xmin) * (ymax - ymin) ? closed : [];
-}
-
-function orient(ring: Position[], ccw: boolean): Position[] {
-	return ringArea2(ring) > 0 === ccw ? ring : [...ring].reverse();
-}
-
-function closeRing(r: readonly (readonly [number, number])[]): Position[] {
-	const out = r.map((p) => [p[0], p[1]] as Position);
-	const a = out[0];
-	const b = out[out.length - 1];
-	if (a[0] !== b[0] || a[1] !== b[1]) out.push([a[0], a[1]]);
-	return out;
-}
-
 /** A rectangle in working-CRS metres as a lon/lat ring, edges densified so it follows the projection. */
 function rectToLonLat(xmin: number, ymin: number, xmax: number, ymax: number, inverse: (x: number, y: number) => [number, number], pieces = 8): Position[] {
 	const pts: Position[] = [];
@@ -119,7 +70,7 @@ function rectToLonLat(xmin: number, ymin: number, xmax: number, ymax: number, in
 	side(xmax, ymax, xmin, ymax);
 	side(xmin, ymax, xmin, ymin);
 	pts.push(pts[0]);
-	return orient(pts, true);
+	return orientRing(pts, true);
 }
 
 function roundPos(p: Position): Position {
@@ -136,10 +87,7 @@ export function gridZones(studyArea: MultiPolygonGeometry, epsg: number, cellSiz
 	if (!(cellSize > 0) || !Number.isFinite(cellSize)) throw new ServiceError(400, 'invalid_input', 'The cell size must be a positive number of metres.', 'cellSize');
 	const t = transformer(4326, epsg);
 	const polys = studyArea.coordinates.map((poly) => projectRings(poly, t.forward, cellSize / 8).map((r) => closeRing(r)));
-	let xmin = Infinity, ymin = Infinity, xmax = -Infinity, ymax = -Infinity;
-	for (const poly of polys) for (const [x, y] of poly[0]) {
-		xmin = Math.min(xmin, x); xmax = Math.max(xmax, x); ymin = Math.min(ymin, y); ymax = Math.max(ymax, y);
-	}
+	const [xmin, ymin, xmax, ymax] = boundsOf([], polys) ?? [0, 0, 0, 0];
 	const c0 = Math.floor(xmin / cellSize), c1 = Math.ceil(xmax / cellSize);
 	const r0 = Math.floor(ymin / cellSize), r1 = Math.ceil(ymax / cellSize);
 	const total = (c1 - c0) * (r1 - r0);
@@ -150,16 +98,14 @@ export function gridZones(studyArea: MultiPolygonGeometry, epsg: number, cellSiz
 			const bx0 = c * cellSize, bx1 = bx0 + cellSize, by0 = r * cellSize, by1 = by0 + cellSize;
 			const parts: Position[][][] = [];
 			for (const poly of polys) {
-				const ext = clipRingToRect(poly[0], bx0, by0, bx1, by1);
-				if (ext.length === 0) continue;
-				const holes = poly.slice(1).map((h) => clipRingToRect(h, bx0, by0, bx1, by1)).filter((h) => h.length);
-				parts.push([orient(ext, true), ...holes.map((h) => orient(h, false))]);
+				const clipped = clipPolygonToRect(poly, [bx0, by0, bx1, by1]);
+				if (clipped.length > 0) parts.push(clipped.map((ring, k) => orientRing(ring, k === 0)));
 			}
 			if (parts.length === 0) continue;
 			const whole = parts.length === 1 && parts[0].length === 1 && Math.abs(ringArea2(parts[0][0]) / 2 - cellSize * cellSize) < 1e-6 * cellSize * cellSize;
 			const coordinates = whole
 				? [[rectToLonLat(bx0, by0, bx1, by1, t.inverse).map(roundPos)]]
-				: parts.map((poly) => poly.map((ring, k) => orient(ring.map((p) => roundPos(t.inverse(p[0], p[1]))), k === 0)));
+				: parts.map((poly) => poly.map((ring, k) => orientRing(ring.map((p) => roundPos(t.inverse(p[0], p[1]))), k === 0)));
 			zones.push({ code: `G${zones.length + 1}`, name: `r${row} c${col}`, geometry: { type: 'MultiPolygon', coordinates } });
 			if (zones.length > maxZones) throw new ServiceError(422, 'too_many_zones', `More than ${maxZones} grid cells fall in the study area; choose a larger cell size.`, 'cellSize');
 		}
@@ -223,7 +169,7 @@ export function traceZoneMap(grid: Pick<WorkingGrid, 'width' | 'height' | 'x0' |
 		for (const h of holes) {
 			const owner = exteriors
 				.map((e, k) => ({ k, a: ringArea2(e) }))
-				.filter(({ k }) => pointInMultiPolygon(h[0][0] + 0, h[0][1] + 0, { type: 'MultiPolygon', coordinates: [[exteriors[k]]] }) || h.some((p) => pointInMultiPolygon(p[0], p[1], { type: 'MultiPolygon', coordinates: [[exteriors[k]]] })))
+				.filter(({ k }) => h.some((p) => pointInPolygons(p, [[exteriors[k]]])))
 				.sort((a, b) => a.a - b.a)[0];
 			if (owner) polys[owner.k].push(h);
 		}
@@ -262,9 +208,9 @@ export async function importanceForZones(db: Knex, store: ObjectStore, network: 
 	try {
 		const imp = await networkImportance(db, store, network.id);
 		if (!imp) return null;
-		const area = studyAreaMultiPolygon(network.study_area);
+		const area = asMultiPolygon(network.study_area);
 		const opts = {
-			crs: workingCrsOf(network),
+			crs: await workingCrs(db, network),
 			studyArea: area?.coordinates?.length ? area.coordinates : undefined,
 			exclusions: exclusionList(network.exclusions).map((f) => f.geometry.coordinates).flat()
 		};
@@ -288,7 +234,7 @@ export async function measureZoneSet(db: Knex, network: NetworkRow, actorId: num
 		if (!set) throw new ServiceError(404, 'not_found', 'No such zone set.');
 		const zones = await listZones(trx, [set.id]);
 		const shares = importance ? zoneShares(importance.grid, zones.map((z) => z.geometry)) : zones.map(() => null);
-		for (let k = 0; k < zones.length; k++) await setZoneShare(trx, zones[k].id, shares[k]);
+		await setZoneShares(trx, zones.map((z, k) => ({ id: z.id, share: shares[k] })));
 		await trx('zone_sets').where({ id: set.id }).update({ recipe_version_id: importance?.recipeVersionId ?? null });
 		await recordAudit(trx, { organisationId: network.organisation_id, actorUserId: actorId, action: 'zone_set.measure', objectType: 'zone_set', objectId: set.id, after: { recipe_version_id: importance?.recipeVersionId ?? null } });
 	});
@@ -313,7 +259,7 @@ export const zoneSetApiInput = z.discriminatedUnion('kind', [
 // ---------------------------------------------------------------- use cases
 
 function studyAreaOf(network: NetworkRow): MultiPolygonGeometry {
-	const a = studyAreaMultiPolygon(network.study_area);
+	const a = asMultiPolygon(network.study_area);
 	if (!a) throw new ServiceError(422, 'no_study_area', 'Outline the study area first.');
 	return a;
 }
@@ -355,7 +301,7 @@ export async function createUploadedZoneSet(db: Knex, network: NetworkRow, actor
 
 export async function createGridZoneSet(db: Knex, network: NetworkRow, actorId: number, name: string, cellSizeKm: number, importance: ImportanceSurface | null = null): Promise<number> {
 	const area = studyAreaOf(network);
-	const epsg = workingCrsOf(network);
+	const epsg = await workingCrs(db, network);
 	if (!epsg) throw new ServiceError(422, 'no_crs', 'The working CRS is not known; set it on the overview.');
 	const cellSize = cellSizeKm * 1000;
 	const zones = gridZones(area, epsg, cellSize);
@@ -397,28 +343,48 @@ export async function removeZoneSet(db: Knex, network: NetworkRow, actorId: numb
 	});
 }
 
-export interface ZoneView {
-	id: number;
-	code: string;
-	name: string;
-	importanceShare: number | null;
-	sensorCount: number;
-	geometry?: MultiPolygonGeometry;
+/** A zone set as the API returns it: the typed client's ZoneSet, with its timestamp as a Date. */
+export type ZoneSetView = Omit<ZoneSet, 'createdAt'> & { createdAt: Date };
+
+/**
+ * "The current zone set" of a network: the one it uses (networks.zone_set_id), chosen on the zones
+ * page; null when it uses none. Nothing falls back to another set.
+ */
+export async function currentZoneSet(db: Knex, networkId: number): Promise<ZoneSetRow | null> {
+	const id = await networkZoneSetId(db, networkId);
+	return id === null ? null : ((await findZoneSet(db, networkId, id)) ?? null);
 }
 
-export interface ZoneSetView {
-	id: number;
-	name: string;
-	kind: ZoneSetKind;
-	params: Record<string, unknown> | null;
-	inUse: boolean;
-	/** The importance recipe version the shares were measured with (null: not measured). */
-	recipeVersionId: number | null;
-	createdAt: Date;
-	zones: ZoneView[];
+/** Whether a sensor counts as standing in the field: every status but `retired` (a faulty sensor still occupies its site). */
+function standsInField(s: { status: SensorStatus }): boolean {
+	return s.status !== 'retired';
 }
 
-function view(set: ZoneSetRow, zones: ZoneRow[], points: { lon: number; lat: number }[], inUse: boolean, withGeometry: boolean): ZoneSetView {
+/**
+ * "Sensors in a zone": for each zone of one zone set, how many sensors standing in the field
+ * (standsInField) lie inside it (lon/lat, holes excluded). A sensor is in one zone only: one on an
+ * edge two zones share counts for the first of them, so the counts add up to the sensors in the
+ * set's union. Each zone's bounding box is taken once and only sensors inside it are tested.
+ */
+export function sensorsInZones(zones: readonly unknown[], sensors: readonly { lon: number; lat: number; status: SensorStatus }[]): number[] {
+	let left = sensors.filter(standsInField);
+	return zones.map((geometry) => {
+		const polygons = asMultiPolygon(geometry)?.coordinates ?? [];
+		const box = boundsOf([], polygons);
+		if (!box) return 0;
+		const outside: typeof left = [];
+		for (const s of left) {
+			const inBox = s.lon >= box[0] && s.lon <= box[2] && s.lat >= box[1] && s.lat <= box[3];
+			if (!inBox || !pointInPolygons([s.lon, s.lat], polygons)) outside.push(s);
+		}
+		const n = left.length - outside.length;
+		left = outside;
+		return n;
+	});
+}
+
+function view(set: ZoneSetRow, zones: ZoneRow[], sensors: readonly { lon: number; lat: number; status: SensorStatus }[], inUse: boolean, withGeometry: boolean): ZoneSetView {
+	const counts = sensorsInZones(zones.map((z) => z.geometry), sensors);
 	return {
 		id: set.id,
 		name: set.name,
@@ -427,26 +393,26 @@ function view(set: ZoneSetRow, zones: ZoneRow[], points: { lon: number; lat: num
 		inUse,
 		recipeVersionId: set.recipe_version_id,
 		createdAt: set.created_at,
-		zones: zones.map((z) => ({
+		zones: zones.map((z, i) => ({
 			id: z.id,
 			code: z.code,
 			name: z.name,
 			importanceShare: z.importance_share,
-			sensorCount: points.filter((p) => pointInMultiPolygon(p.lon, p.lat, z.geometry)).length,
+			sensorCount: counts[i],
 			...(withGeometry ? { geometry: z.geometry } : {})
 		}))
 	};
 }
 
-async function activePoints(db: Knex, networkId: number) {
-	const { rows } = await listSensors(db, networkId, { status: 'active' });
-	return rows.map((r) => ({ lon: r.lon, lat: r.lat }));
+async function sensorPositions(db: Knex, networkId: number) {
+	const { rows } = await listSensors(db, networkId);
+	return rows.map((r) => ({ lon: r.lon, lat: r.lat, status: r.status }));
 }
 
 export async function zoneSetViews(db: Knex, network: NetworkRow, opts: { withGeometry?: boolean } = {}): Promise<ZoneSetView[]> {
 	const sets = await listZoneSets(db, network.id);
 	const zones = await listZones(db, sets.map((s) => s.id));
-	const points = await activePoints(db, network.id);
+	const points = await sensorPositions(db, network.id);
 	const current = await networkZoneSetId(db, network.id);
 	return sets.map((s) => view(s, zones.filter((z) => z.zone_set_id === s.id), points, s.id === current, !!opts.withGeometry));
 }
@@ -455,5 +421,5 @@ export async function zoneSetView(db: Knex, network: NetworkRow, zoneSetId: numb
 	const set = await findZoneSet(db, network.id, zoneSetId);
 	if (!set) throw new ServiceError(404, 'not_found', 'No such zone set.');
 	const zones = await listZones(db, [set.id]);
-	return view(set, zones, await activePoints(db, network.id), (await networkZoneSetId(db, network.id)) === set.id, true);
+	return view(set, zones, await sensorPositions(db, network.id), (await networkZoneSetId(db, network.id)) === set.id, true);
 }

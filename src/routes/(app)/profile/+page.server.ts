@@ -3,9 +3,8 @@ import type { Actions, PageServerLoad } from './$types';
 import { getDb } from '$lib/server/db';
 import { requireActor } from '$lib/server/auth/guard';
 import { serviceFailure } from '$lib/server/forms';
-import { recordAudit } from '$lib/server/repositories/audit';
-import { updateUser } from '$lib/server/repositories/users';
 import { changePassword } from '$lib/server/services/passwords';
+import { renameUser } from '$lib/server/services/profile';
 import { signOutEverywhere } from '$lib/server/services/sessions';
 
 export const load = (async (event) => {
@@ -16,12 +15,12 @@ export const load = (async (event) => {
 export const actions = {
 	name: async (event) => {
 		const actor = requireActor(event);
-		const name = String((await event.request.formData()).get('name') ?? '').trim();
-		if (name.length < 2 || name.length > 200) return fail(400, { errors: { name: 'Enter a name of 2 to 200 characters.' } });
-		await getDb().transaction(async (trx) => {
-			await updateUser(trx, actor.id, { name });
-			await recordAudit(trx, { organisationId: null, actorUserId: actor.id, action: 'user.rename', objectType: 'user', objectId: actor.id, before: { name: actor.name }, after: { name } });
-		});
+		const name = String((await event.request.formData()).get('name') ?? '');
+		try {
+			await renameUser(getDb(), actor.id, name);
+		} catch (err) {
+			return serviceFailure(err);
+		}
 		return { saved: 'name' };
 	},
 	password: async (event) => {

@@ -5,7 +5,6 @@ import { apiHandler, readJson, ApiError } from '$lib/server/api/errors';
 import { organisationsWith, requireActor, requirePermission } from '$lib/server/auth/guard';
 import { findNetwork } from '$lib/server/repositories/networks';
 import { createNetwork, networkInput, networkPage, publicView } from '$lib/server/services/networks';
-import { ServiceError } from '$lib/server/services/errors';
 import { z } from 'zod';
 
 /**
@@ -27,11 +26,6 @@ export const POST: RequestHandler = apiHandler(async (event) => {
 	const body = await readJson(event, createBody);
 	const organisationId = body.organisationId ?? organisationsWith(actor, 'network.create')[0];
 	requirePermission(event, 'network.create', organisationId);
-	try {
-		const id = await createNetwork(getDb(), organisationId, actor.id, body);
-		return json({ network: publicView((await findNetwork(getDb(), id))!) }, { status: 201 });
-	} catch (err) {
-		if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-		throw err;
-	}
+	const id = await createNetwork(getDb(), organisationId, actor.id, body);
+	return json({ network: publicView((await findNetwork(getDb(), id))!) }, { status: 201 });
 });

@@ -13,12 +13,11 @@ import {
 	parseListQuery,
 	PER_PAGE_CHOICES,
 	removeSensor,
-	SensorInputError,
 	sensorPage,
 	sensorView,
-	validateSensorInput,
-	workingCrsOf
+	validateSensorInput
 } from '$lib/server/services/sensors';
+import { workingCrs } from '$lib/server/services/working-crs';
 
 const SENSOR_FIELDS = ['code', 'serial', 'typeId', 'positionMode', 'lon', 'lat', 'x', 'y', 'installedOn', 'status', 'notes'];
 const TYPE_FIELDS = ['name', 'radiusM', 'mobility', 'relocationMinutes', 'notes'];
@@ -32,7 +31,7 @@ export const load = (async (event) => {
 	const canEdit = roleAllows(role, 'sensor.edit');
 	const editId = Number(event.url.searchParams.get('edit'));
 	const editing = canEdit && Number.isInteger(editId) && editId > 0 ? await findSensor(db, network.id, editId) : undefined;
-	const crs = workingCrsOf(network);
+	const crs = await workingCrs(db, network);
 	return {
 		network: { id: network.id, slug: network.slug, crsEpsg: network.crs_epsg },
 		query,
@@ -47,7 +46,6 @@ export const load = (async (event) => {
 }) satisfies PageServerLoad;
 
 function sensorFailure(err: unknown, values: Record<string, string>, action: string) {
-	if (err instanceof SensorInputError) return fail(400, { action, errors: err.fields, values });
 	const f = serviceFailure(err, values);
 	return fail(f.status, { ...f.data, action });
 }

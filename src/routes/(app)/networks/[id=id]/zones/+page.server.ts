@@ -6,7 +6,8 @@ import { roleAllows } from '$lib/server/auth/roles';
 import { formFields, parseForm, serviceFailure } from '$lib/server/forms';
 import { getObjectStore } from '$lib/server/storage/app-store';
 import { areaView, parseAreaUpload, setArea } from '$lib/server/services/areas';
-import { workingCrsOf } from '$lib/server/services/sensors';
+import { workingCrs } from '$lib/server/services/working-crs';
+import { networkRecipeVersionId } from '$lib/server/repositories/recipes';
 import {
 	computedInput,
 	createGridZoneSet,
@@ -28,7 +29,6 @@ export const load = (async (event) => {
 	const { network, role } = await networkAccess(event, 'layer.view');
 	const db = getDb();
 	const area = areaView(network);
-	const recipe = await db('networks').select('recipe_version_id').where({ id: network.id }).first();
 	return {
 		area: {
 			version: area.version,
@@ -36,9 +36,9 @@ export const load = (async (event) => {
 			parts: area.studyArea?.coordinates.length ?? 0,
 			exclusions: area.exclusions.map((f) => f.properties.name)
 		},
-		workingCrs: workingCrsOf(network),
+		workingCrs: await workingCrs(db, network),
 		zoneSets: (await zoneSetViews(db, network)).map((s) => ({ ...s, createdAt: s.createdAt.toISOString() })),
-		recipeVersionId: (recipe?.recipe_version_id as number | null) ?? null,
+		recipeVersionId: await networkRecipeVersionId(db, network.id),
 		presetsKm: GRID_PRESETS_M.map((m) => m / 1000),
 		canEditArea: roleAllows(role, 'area.edit'),
 		canEditZones: roleAllows(role, 'zone.edit')

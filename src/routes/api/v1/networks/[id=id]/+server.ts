@@ -1,11 +1,10 @@
 import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
-import { apiHandler, readJson, ApiError } from '$lib/server/api/errors';
+import { apiHandler, readJson } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { roleAllows } from '$lib/server/auth/roles';
 import { networkPatch, publicView, updateNetworkDetails } from '$lib/server/services/networks';
-import { ServiceError } from '$lib/server/services/errors';
 
 /** GET /api/v1/networks/:id */
 export const GET: RequestHandler = apiHandler(async (event) => {
@@ -17,11 +16,6 @@ export const GET: RequestHandler = apiHandler(async (event) => {
 export const POST: RequestHandler = apiHandler(async (event) => {
 	const { network, actor, role } = await networkAccess(event, 'network.edit');
 	const patch = await readJson(event, networkPatch.strict());
-	try {
-		const after = await updateNetworkDetails(getDb(), network.id, actor.id, patch, { mayPublish: roleAllows(role, 'network.publish') });
-		return json({ network: publicView(after) });
-	} catch (err) {
-		if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-		throw err;
-	}
+	const after = await updateNetworkDetails(getDb(), network.id, actor.id, patch, { mayPublish: roleAllows(role, 'network.publish') });
+	return json({ network: publicView(after) });
 });

@@ -1,9 +1,8 @@
 import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
-import { apiHandler, ApiError, readJson } from '$lib/server/api/errors';
+import { apiHandler, readJson } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
-import { ServiceError } from '$lib/server/services/errors';
 import { areaPatch, areaView, normaliseAreaPatch, setArea } from '$lib/server/services/areas';
 
 /** GET /api/v1/networks/:id/area: {version, studyArea: MultiPolygon | null, exclusions: Feature[]} */
@@ -19,11 +18,6 @@ export const GET: RequestHandler = apiHandler(async (event) => {
 export const POST: RequestHandler = apiHandler(async (event) => {
 	const { network, actor } = await networkAccess(event, 'area.edit');
 	const patch = await readJson(event, areaPatch);
-	try {
-		const after = await setArea(getDb(), network.id, actor.id, patch.version, normaliseAreaPatch(patch));
-		return json({ area: areaView(after) });
-	} catch (err) {
-		if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-		throw err;
-	}
+	const after = await setArea(getDb(), network.id, actor.id, patch.version, normaliseAreaPatch(patch));
+	return json({ area: areaView(after) });
 });

@@ -4,11 +4,10 @@ import { json } from '@sveltejs/kit';
 import { env } from '$env/dynamic/private';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
-import { apiHandler, ApiError } from '$lib/server/api/errors';
+import { apiHandler } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { getObjectStore } from '$lib/server/storage/app-store';
 import { acceptLayerUpload, layerLimits, listLayerViews, UploadTooLarge } from '$lib/server/services/layers';
-import { ServiceError } from '$lib/server/services/errors';
 
 /** GET /api/v1/networks/:id/layers */
 export const GET: RequestHandler = apiHandler(async (event) => {
@@ -27,20 +26,11 @@ export const POST: RequestHandler = apiHandler(async (event) => {
 	const { network, actor } = await networkAccess(event, 'layer.edit');
 	const limits = layerLimits(env);
 	const declared = Number(event.request.headers.get('content-length') ?? NaN);
-	if (Number.isFinite(declared) && declared > limits.maxBytes) {
-		const e = new UploadTooLarge(limits.maxBytes);
-		throw new ApiError(413, e.code, e.message);
-	}
+	if (Number.isFinite(declared) && declared > limits.maxBytes) throw new UploadTooLarge(limits.maxBytes);
 	const q = event.url.searchParams;
 	const meta = Object.fromEntries(['name', 'kind', 'units', 'acquiredOn', 'platform', 'band', 'fileName'].filter((k) => q.has(k)).map((k) => [k, q.get(k)]));
 	const webBody = event.request.body;
 	const body = webBody ? Readable.fromWeb(webBody as unknown as NodeWebStream<Uint8Array>) : Readable.from([]);
-	try {
-		const accepted = await acceptLayerUpload(getDb(), getObjectStore(), { networkId: network.id, organisationId: network.organisation_id, actorId: actor.id }, meta, body, limits);
-		return json(accepted, { status: 202 });
-	} catch (err) {
-		if (err instanceof UploadTooLarge) throw new ApiError(413, err.code, err.message);
-		if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-		throw err;
-	}
+	const accepted = await acceptLayerUpload(getDb(), getObjectStore(), { networkId: network.id, organisationId: network.organisation_id, actorId: actor.id }, meta, body, limits);
+	return json(accepted, { status: 202 });
 });

@@ -1,6 +1,7 @@
 import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
+import { getObjectStore } from '$lib/server/storage/app-store';
 import { apiHandler } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { roleAllows } from '$lib/server/auth/roles';
@@ -13,6 +14,7 @@ export const GET: RequestHandler = apiHandler(async (event) => {
 	const map = await networkMap(getDb(), {
 		network,
 		importance: importanceSource(),
+		cache: getObjectStore(),
 		apiBase: `/api/v1/networks/${network.id}`,
 		mayViewLayers: roleAllows(role, 'layer.view')
 	});

@@ -1,11 +1,10 @@
 import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
-import { apiHandler, ApiError, readJson } from '$lib/server/api/errors';
+import { apiHandler, readJson } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { listRecipeViews, saveVersionInput } from '$lib/server/services/importance';
 import { queueRecipeVersion } from '$lib/server/services/recipe-versions';
-import { ServiceError } from '$lib/server/services/errors';
 
 /** GET /api/v1/networks/:id/recipes: recipes with their versions, and the network's current version. */
 export const GET: RequestHandler = apiHandler(async (event) => {
@@ -20,10 +19,5 @@ export const GET: RequestHandler = apiHandler(async (event) => {
 export const POST: RequestHandler = apiHandler(async (event) => {
 	const { network, actor } = await networkAccess(event, 'recipe.edit');
 	const input = await readJson(event, saveVersionInput);
-	try {
-		return json({ job: await queueRecipeVersion(getDb(), network.id, network.organisation_id, actor.id, input) }, { status: 202 });
-	} catch (err) {
-		if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-		throw err;
-	}
+	return json({ job: await queueRecipeVersion(getDb(), network.id, network.organisation_id, actor.id, input) }, { status: 202 });
 });

@@ -1,9 +1,8 @@
 import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
-import { apiHandler, ApiError, readJson } from '$lib/server/api/errors';
+import { apiHandler, readJson } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
-import { ServiceError } from '$lib/server/services/errors';
 import { createSensorType, sensorTypeInput, sensorTypesOf } from '$lib/server/services/sensor-types';
 
 /** GET /api/v1/networks/:id/sensor-types */
@@ -16,12 +15,7 @@ export const GET: RequestHandler = apiHandler(async (event) => {
 export const POST: RequestHandler = apiHandler(async (event) => {
 	const { network, actor } = await networkAccess(event, 'sensor.edit');
 	const input = await readJson(event, sensorTypeInput.strict());
-	try {
-		const id = await createSensorType(getDb(), network.organisation_id, network.id, actor.id, input);
-		const t = (await sensorTypesOf(getDb(), network.id)).find((x) => x.id === id)!;
-		return json({ sensorType: t }, { status: 201 });
-	} catch (err) {
-		if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-		throw err;
-	}
+	const id = await createSensorType(getDb(), network.organisation_id, network.id, actor.id, input);
+	const t = (await sensorTypesOf(getDb(), network.id)).find((x) => x.id === id)!;
+	return json({ sensorType: t }, { status: 201 });
 });

@@ -3,9 +3,9 @@ import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
 import { apiHandler, ApiError } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
-import { ServiceError } from '$lib/server/services/errors';
 import { findSensor } from '$lib/server/repositories/sensors';
-import { createSensor, exportSensors, parseListQuery, sensorPage, SensorInputError, sensorView, validateSensorInput, workingCrsOf } from '$lib/server/services/sensors';
+import { createSensor, exportSensors, parseListQuery, sensorPage, sensorView, validateSensorInput } from '$lib/server/services/sensors';
+import { workingCrs } from '$lib/server/services/working-crs';
 
 /**
  * GET /api/v1/networks/:id/sensors?sort=&dir=&type=&status=&q=&page=&perPage=
@@ -47,13 +47,7 @@ function asFields(b: Record<string, unknown>): Record<string, unknown> {
 export const POST: RequestHandler = apiHandler(async (event) => {
 	const { network, actor } = await networkAccess(event, 'sensor.edit');
 	const b = asFields(await body(event.request));
-	try {
-		const f = await validateSensorInput(getDb(), network, b);
-		const id = await createSensor(getDb(), network, actor.id, f);
-		return json({ sensor: sensorView((await findSensor(getDb(), network.id, id))!, workingCrsOf(network)) }, { status: 201 });
-	} catch (err) {
-		if (err instanceof SensorInputError) throw new ApiError(400, 'invalid_input', err.message, err.fields);
-		if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-		throw err;
-	}
+	const f = await validateSensorInput(getDb(), network, b);
+	const id = await createSensor(getDb(), network, actor.id, f);
+	return json({ sensor: sensorView((await findSensor(getDb(), network.id, id))!, await workingCrs(getDb(), network)) }, { status: 201 });
 });

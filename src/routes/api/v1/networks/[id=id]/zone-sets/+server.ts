@@ -1,10 +1,9 @@
 import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
-import { apiHandler, ApiError, readJson } from '$lib/server/api/errors';
+import { apiHandler, readJson } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { getObjectStore } from '$lib/server/storage/app-store';
-import { ServiceError } from '$lib/server/services/errors';
 import { queueComputedZones } from '$lib/server/services/zone-jobs';
 import { createGridZoneSet, createUploadedZoneSet, importanceForZones, zoneSetApiInput, zoneSetView, zoneSetViews } from '$lib/server/services/zones';
 
@@ -23,16 +22,11 @@ export const POST: RequestHandler = apiHandler(async (event) => {
 	const { network, actor } = await networkAccess(event, 'zone.edit');
 	const input = await readJson(event, zoneSetApiInput);
 	const db = getDb();
-	try {
-		if (input.kind === 'computed') return json({ job: await queueComputedZones(db, network, actor.id, input.name, input.k) }, { status: 202 });
-		const importance = await importanceForZones(db, getObjectStore(), network);
-		const id =
-			input.kind === 'uploaded'
-				? await createUploadedZoneSet(db, network, actor.id, input.name, JSON.stringify(input.geojson), 'upload.geojson', importance)
-				: await createGridZoneSet(db, network, actor.id, input.name, input.cellSizeKm, importance);
-		return json({ zoneSet: await zoneSetView(db, network, id) }, { status: 201 });
-	} catch (err) {
-		if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-		throw err;
-	}
+	if (input.kind === 'computed') return json({ job: await queueComputedZones(db, network, actor.id, input.name, input.k) }, { status: 202 });
+	const importance = await importanceForZones(db, getObjectStore(), network);
+	const id =
+		input.kind === 'uploaded'
+			? await createUploadedZoneSet(db, network, actor.id, input.name, JSON.stringify(input.geojson), 'upload.geojson', importance)
+			: await createGridZoneSet(db, network, actor.id, input.name, input.cellSizeKm, importance);
+	return json({ zoneSet: await zoneSetView(db, network, id) }, { status: 201 });
 });

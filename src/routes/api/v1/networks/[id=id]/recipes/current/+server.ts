@@ -2,11 +2,10 @@ import { json } from '@sveltejs/kit';
 import { z } from 'zod';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
-import { apiHandler, ApiError, readJson } from '$lib/server/api/errors';
+import { apiHandler, readJson } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { useRecipeVersion } from '$lib/server/services/importance';
 import { networkRecipeVersionId } from '$lib/server/repositories/recipes';
-import { ServiceError } from '$lib/server/services/errors';
 
 const input = z.object({ versionId: z.number({ error: 'versionId must be a number' }).int().positive('versionId must be a positive id') }).strict();
 
@@ -20,11 +19,6 @@ export const GET: RequestHandler = apiHandler(async (event) => {
 export const POST: RequestHandler = apiHandler(async (event) => {
 	const { network, actor } = await networkAccess(event, 'recipe.edit');
 	const { versionId } = await readJson(event, input);
-	try {
-		await useRecipeVersion(getDb(), network.id, network.organisation_id, actor.id, versionId);
-		return json({ versionId });
-	} catch (err) {
-		if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-		throw err;
-	}
+	await useRecipeVersion(getDb(), network.id, network.organisation_id, actor.id, versionId);
+	return json({ versionId });
 });

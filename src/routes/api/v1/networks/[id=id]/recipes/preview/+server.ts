@@ -2,10 +2,9 @@ import { json } from '@sveltejs/kit';
 import { z } from 'zod';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
-import { apiHandler, ApiError, readJson } from '$lib/server/api/errors';
+import { apiHandler, readJson } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { queueRecipePreview } from '$lib/server/services/recipe-previews';
-import { ServiceError } from '$lib/server/services/errors';
 
 const input = z.object({ definition: z.unknown() }).strict();
 
@@ -18,10 +17,5 @@ const input = z.object({ definition: z.unknown() }).strict();
 export const POST: RequestHandler = apiHandler(async (event) => {
 	const { network, actor } = await networkAccess(event, 'recipe.edit');
 	const { definition } = await readJson(event, input);
-	try {
-		return json({ job: await queueRecipePreview(getDb(), network.id, actor.id, definition) }, { status: 202 });
-	} catch (err) {
-		if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-		throw err;
-	}
+	return json({ job: await queueRecipePreview(getDb(), network.id, actor.id, definition) }, { status: 202 });
 });

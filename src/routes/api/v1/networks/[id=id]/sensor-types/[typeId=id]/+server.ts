@@ -3,13 +3,7 @@ import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
 import { apiHandler, ApiError, readJson } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
-import { ServiceError } from '$lib/server/services/errors';
 import { removeSensorType, sensorTypeInput, sensorTypesOf, updateSensorTypeDetails } from '$lib/server/services/sensor-types';
-
-function apiError(err: unknown): never {
-	if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-	throw err;
-}
 
 /** GET /api/v1/networks/:id/sensor-types/:typeId */
 export const GET: RequestHandler = apiHandler(async (event) => {
@@ -23,21 +17,13 @@ export const GET: RequestHandler = apiHandler(async (event) => {
 export const POST: RequestHandler = apiHandler(async (event) => {
 	const { network, actor } = await networkAccess(event, 'sensor.edit');
 	const input = await readJson(event, sensorTypeInput.strict());
-	try {
-		await updateSensorTypeDetails(getDb(), network.organisation_id, network.id, actor.id, Number(event.params.typeId), input);
-	} catch (err) {
-		apiError(err);
-	}
+	await updateSensorTypeDetails(getDb(), network.organisation_id, network.id, actor.id, Number(event.params.typeId), input);
 	return json({ sensorType: (await sensorTypesOf(getDb(), network.id)).find((x) => x.id === Number(event.params.typeId)) });
 });
 
 /** DELETE /api/v1/networks/:id/sensor-types/:typeId (refused while sensors use it). */
 export const DELETE: RequestHandler = apiHandler(async (event) => {
 	const { network, actor } = await networkAccess(event, 'sensor.edit');
-	try {
-		await removeSensorType(getDb(), network.organisation_id, network.id, actor.id, Number(event.params.typeId));
-	} catch (err) {
-		apiError(err);
-	}
+	await removeSensorType(getDb(), network.organisation_id, network.id, actor.id, Number(event.params.typeId));
 	return new Response(null, { status: 204 });
 });

@@ -4,14 +4,8 @@ import { getDb } from '$lib/server/db';
 import { apiHandler, ApiError } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { findSensor } from '$lib/server/repositories/sensors';
-import { ServiceError } from '$lib/server/services/errors';
-import { editSensor, removeSensor, SensorInputError, sensorView, validateSensorInput, workingCrsOf } from '$lib/server/services/sensors';
-
-function apiError(err: unknown): never {
-	if (err instanceof SensorInputError) throw new ApiError(400, 'invalid_input', err.message, err.fields);
-	if (err instanceof ServiceError) throw new ApiError(err.status, err.code, err.message, err.field ? { [err.field]: err.message } : undefined);
-	throw err;
-}
+import { editSensor, removeSensor, sensorView, validateSensorInput } from '$lib/server/services/sensors';
+import { workingCrs } from '$lib/server/services/working-crs';
 
 function version(v: unknown): number {
 	const n = Number(v);
@@ -24,7 +18,7 @@ export const GET: RequestHandler = apiHandler(async (event) => {
 	const { network } = await networkAccess(event, 'sensor.view');
 	const s = await findSensor(getDb(), network.id, Number(event.params.sensorId));
 	if (!s) throw new ApiError(404, 'not_found', 'No such sensor.');
-	return json({ sensor: sensorView(s, workingCrsOf(network)) });
+	return json({ sensor: sensorView(s, await workingCrs(getDb(), network)) });
 });
 
 /** POST /api/v1/networks/:id/sensors/:sensorId: all fields of the sensor plus the `version` last read. */
@@ -39,22 +33,14 @@ export const POST: RequestHandler = apiHandler(async (event) => {
 	if (typeof b !== 'object' || b === null || Array.isArray(b)) throw new ApiError(400, 'invalid_input', 'Send a JSON object.');
 	const v = version(b.version);
 	const fields = Object.fromEntries(Object.entries(b).map(([k, x]) => [k, typeof x === 'number' ? String(x) : x === null ? '' : x]));
-	try {
-		const f = await validateSensorInput(getDb(), network, fields);
-		const after = await editSensor(getDb(), network, actor.id, Number(event.params.sensorId), v, f);
-		return json({ sensor: sensorView(after, workingCrsOf(network)) });
-	} catch (err) {
-		apiError(err);
-	}
+	const f = await validateSensorInput(getDb(), network, fields);
+	const after = await editSensor(getDb(), network, actor.id, Number(event.params.sensorId), v, f);
+	return json({ sensor: sensorView(after, await workingCrs(getDb(), network)) });
 });
 
 /** DELETE /api/v1/networks/:id/sensors/:sensorId?version=n */
 export const DELETE: RequestHandler = apiHandler(async (event) => {
 	const { network, actor } = await networkAccess(event, 'sensor.edit');
-	try {
-		await removeSensor(getDb(), network, actor.id, Number(event.params.sensorId), version(event.url.searchParams.get('version')));
-	} catch (err) {
-		apiError(err);
-	}
+	await removeSensor(getDb(), network, actor.id, Number(event.params.sensorId), version(event.url.searchParams.get('version')));
 	return new Response(null, { status: 204 });
 });

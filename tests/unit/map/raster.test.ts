@@ -1,28 +1,12 @@
 import { describe, expect, it } from 'vitest';
 import proj4 from 'proj4';
 import { PNG } from 'pngjs';
-import {
-	boundsOf,
-	coarsen,
-	contourLevels,
-	contourLines,
-	fillGaps,
-	insideRings,
-	labelPoint,
-	lonLatRings,
-	mapCrs,
-	MapDataError,
-	padBounds,
-	projectMapRings,
-	rasterBounds,
-	rasterPng,
-	resampleToMap,
-	unionBounds,
-	valueRange,
-	type MapPoint,
-	type MapRaster
-} from '../../../src/lib/server/services/map-data';
-import { transformer } from '../../../src/lib/geo/crs';
+import { coarsen, fillGaps, MapRasterError, rasterBounds, resampleToMap, valueRange, type MapRaster } from '../../../src/lib/map/raster';
+import { contourLevels, contourLines } from '../../../src/lib/map/contours';
+import { boundsOf, padBounds, unionBounds } from '../../../src/lib/geo/geometry';
+import { asMultiPolygon } from '../../../src/lib/geo/polygons';
+import { decideWorkingCrs } from '../../../src/lib/geo/crs';
+import { rampPng } from '../../../src/lib/server/layers/preview';
 import { rampColour } from '../../../src/lib/importance/colour-ramp';
 
 /** A cone of height `h` at the centre of a square grid of n cells of `cell` metres. */
@@ -65,7 +49,7 @@ describe('contourLines', () => {
 		expect(out.map((c) => c.level)).toEqual([50, 100]);
 		const cx = 500000 + 150;
 		const cy = 5800000 - 150;
-		const meanRadius = (line: MapPoint[]) => line.reduce((s, [x, y]) => s + Math.hypot(x - cx, y - cy), 0) / line.length;
+		const meanRadius = (line: [number, number][]) => line.reduce((s, [x, y]) => s + Math.hypot(x - cx, y - cy), 0) / line.length;
 		expect(meanRadius(out[0].lines[0])).toBeCloseTo(100, 0);
 		expect(meanRadius(out[1].lines[0])).toBeCloseTo(50, 0);
 	});
@@ -133,26 +117,8 @@ describe('contourLevels', () => {
 });
 
 describe('coordinates and bounds', () => {
-	it('projectMapRings agrees with proj4 for UTM 32N (EPSG:32632)', () => {
-		// Oracle: proj4 with the UTM definition written out here, not through src/lib/geo/crs.ts.
-		const utm = '+proj=utm +zone=32 +datum=WGS84 +units=m +no_defs';
-		const ring: MapPoint[] = [
-			[9.0, 52.0],
-			[9.1, 52.0],
-			[9.1, 52.1]
-		];
-		const out = projectMapRings([ring], transformer(4326, 32632).forward);
-		ring.forEach((p, i) => {
-			const [x, y] = proj4('EPSG:4326', utm, p);
-			expect(out[0][i][0]).toBeCloseTo(x, 6);
-			expect(out[0][i][1]).toBeCloseTo(y, 6);
-		});
-		// 9°E is the central meridian of zone 32: easting 500 000 m exactly (UTM false easting).
-		expect(out[0][0][0]).toBeCloseTo(500000, 6);
-	});
-
 	it('boundsOf, unionBounds and padBounds', () => {
-		expect(boundsOf([[1, 2]], [[[3, -1], [0, 5], [2, 2]]])).toEqual([0, -1, 3, 5]);
+		expect(boundsOf([[1, 2]], [[[[3, -1], [0, 5], [2, 2]]]])).toEqual([0, -1, 3, 5]);
 		expect(boundsOf([])).toBeNull();
 		expect(boundsOf([[NaN, 1]])).toBeNull();
 		expect(unionBounds(null, [0, 0, 1, 1], [2, -1, 3, 0])).toEqual([0, -1, 3, 1]);
@@ -161,7 +127,7 @@ describe('coordinates and bounds', () => {
 		expect(padBounds([5, 5, 5, 5], 0.1, 50)).toEqual([-45, -45, 55, 55]);
 	});
 
-	it('lonLatRings reads Polygon, MultiPolygon, Feature and FeatureCollection and drops closing points', () => {
+	it('asMultiPolygon reads Polygon, MultiPolygon, Feature and FeatureCollection as one MultiPolygon', () => {
 		const sq = [
 			[0, 0],
 			[1, 0],
@@ -169,33 +135,11 @@ describe('coordinates and bounds', () => {
 			[0, 1],
 			[0, 0]
 		];
-		expect(lonLatRings({ type: 'Polygon', coordinates: [sq] })).toEqual([sq.slice(0, 4)]);
-		expect(lonLatRings({ type: 'MultiPolygon', coordinates: [[sq], [sq]] })).toHaveLength(2);
-		expect(lonLatRings({ type: 'FeatureCollection', features: [{ type: 'Feature', geometry: { type: 'Polygon', coordinates: [sq] } }] })).toHaveLength(1);
-		expect(lonLatRings(JSON.stringify({ type: 'Polygon', coordinates: [sq] }))).toHaveLength(1);
-		expect(lonLatRings(null)).toEqual([]);
-		expect(lonLatRings('not json')).toEqual([]);
-		expect(lonLatRings({ type: 'Point', coordinates: [0, 0] })).toEqual([]);
-	});
-
-	it('insideRings is even-odd: a hole is outside', () => {
-		const outer: MapPoint[] = [[0, 0], [10, 0], [10, 10], [0, 10]];
-		const hole: MapPoint[] = [[4, 4], [6, 4], [6, 6], [4, 6]];
-		expect(insideRings([2, 2], [outer, hole])).toBe(true);
-		expect(insideRings([5, 5], [outer, hole])).toBe(false);
-		expect(insideRings([11, 5], [outer, hole])).toBe(false);
-	});
-
-	it('labelPoint is the area centroid of the largest ring', () => {
-		// Centroid of an L-shape made of a 2×1 and a 1×1 square: ((1·1 + 0.5·... ) worked by hand:
-		// squares [0,2]×[0,1] (area 2, centre (1, 0.5)) and [0,1]×[1,2] (area 1, centre (0.5, 1.5))
-		// → ((2·1 + 0.5)/3, (2·0.5 + 1.5)/3) = (5/6, 5/6).
-		const L: MapPoint[] = [[0, 0], [2, 0], [2, 1], [1, 1], [1, 2], [0, 2]];
-		const small: MapPoint[] = [[10, 10], [10.1, 10], [10.1, 10.1]];
-		const [x, y] = labelPoint([small, L]);
-		expect(x).toBeCloseTo(5 / 6, 12);
-		expect(y).toBeCloseTo(5 / 6, 12);
-		expect(() => labelPoint([])).toThrow(MapDataError);
+		expect(asMultiPolygon({ type: 'Polygon', coordinates: [sq] })).toEqual({ type: 'MultiPolygon', coordinates: [[sq]] });
+		expect(asMultiPolygon({ type: 'MultiPolygon', coordinates: [[sq], [sq]] })?.coordinates).toHaveLength(2);
+		expect(asMultiPolygon({ type: 'FeatureCollection', features: [{ type: 'Feature', geometry: { type: 'Polygon', coordinates: [sq] } }, { type: 'Feature', geometry: { type: 'Polygon', coordinates: [sq] } }] })?.coordinates).toHaveLength(2);
+		expect(asMultiPolygon(null)).toBeNull();
+		expect(asMultiPolygon({ type: 'Point', coordinates: [0, 0] })).toBeNull();
 	});
 });
 
@@ -241,12 +185,12 @@ describe('resampleToMap', () => {
 	});
 
 	it('refuses a grid whose values do not match its size', () => {
-		expect(() => resampleToMap({ grid, data: [1, 2] }, 32632)).toThrow(MapDataError);
-		expect(() => resampleToMap({ grid: { ...grid, width: 0 }, data: [] }, 32632)).toThrow(MapDataError);
+		expect(() => resampleToMap({ grid, data: [1, 2] }, 32632)).toThrow(MapRasterError);
+		expect(() => resampleToMap({ grid: { ...grid, width: 0 }, data: [] }, 32632)).toThrow(MapRasterError);
 	});
 });
 
-describe('valueRange, coarsen and rasterPng', () => {
+describe('valueRange, coarsen and the ramp image', () => {
 	it('valueRange skips NaN and answers null for an all-empty raster', () => {
 		expect(valueRange([NaN, 3, -1, Infinity])).toEqual({ min: -1, max: 3 });
 		expect(valueRange([NaN])).toBeNull();
@@ -260,9 +204,9 @@ describe('valueRange, coarsen and rasterPng', () => {
 		expect(coarsen(r, 8).values).not.toBe(r.values);
 	});
 
-	it('rasterPng colours min with the ramp start, max with its end, no value transparent', () => {
+	it('rampPng colours min with the ramp start, max with its end, no value transparent', () => {
 		const r: MapRaster = { x0: 0, y0: 1, dx: 1, dy: 1, width: 3, height: 1, values: Float64Array.from([0, 1, NaN]) };
-		const png = PNG.sync.read(rasterPng(r, 0, 1));
+		const png = PNG.sync.read(rampPng(r.values, r.width, r.height, 0, 1, 'moorland'));
 		expect([png.width, png.height]).toEqual([3, 1]);
 		expect(Array.from(png.data.slice(0, 4))).toEqual([...rampColour(0), 255]);
 		expect(Array.from(png.data.slice(4, 8))).toEqual([...rampColour(1), 255]);
@@ -270,19 +214,21 @@ describe('valueRange, coarsen and rasterPng', () => {
 	});
 });
 
-describe('mapCrs', () => {
+describe('decideWorkingCrs (the one working-CRS rule)', () => {
 	it('an explicit projected working CRS wins', () => {
-		expect(mapCrs(32633, 32632, [[9, 52]])).toBe(32633);
+		expect(decideWorkingCrs({ explicit: 32633, gridEpsg: 32632, centreLonLat: [9, 52] })).toBe(32633);
 	});
 	it('else the grid CRS when it has ground metres; else the UTM zone of the centre', () => {
-		expect(mapCrs(null, 32632, [[9, 52]])).toBe(32632);
-		// 3857 is not a working CRS: the centre 9°E 52°N lies in UTM zone 32N.
-		expect(mapCrs(null, 3857, [[9, 52]])).toBe(32632);
-		expect(mapCrs(null, null, [[-3.2, 55.9]])).toBe(32630);
-		// A geographic explicit CRS is not a map CRS.
-		expect(mapCrs(4326, null, [[9, 52]])).toBe(32632);
+		expect(decideWorkingCrs({ gridEpsg: 32632, centreLonLat: [9, 52] })).toBe(32632);
+		expect(decideWorkingCrs({ gridEpsg: 3035, centreLonLat: [9, 52] })).toBe(3035);
+		// 3857 is not a working CRS: the centre 9°E 52°N lies in UTM zone 32N (zone 32 spans 6°E–12°E).
+		expect(decideWorkingCrs({ gridEpsg: 3857, centreLonLat: [9, 52] })).toBe(32632);
+		expect(decideWorkingCrs({ gridEpsg: null, centreLonLat: [-3.2, 55.9] })).toBe(32630);
+		// A geographic explicit CRS is refused, never silently replaced.
+		expect(() => decideWorkingCrs({ explicit: 4326, centreLonLat: [9, 52] })).toThrow(/geographic/);
 	});
-	it('nothing with a position gives no map CRS', () => {
-		expect(mapCrs(null, null, [])).toBeNull();
+	it('nothing with a position gives no working CRS', () => {
+		expect(decideWorkingCrs({})).toBeNull();
+		expect(decideWorkingCrs({ gridEpsg: 4326 })).toBeNull();
 	});
 });

@@ -1,4 +1,4 @@
-import type { CellMoments } from './cell-moments';
+import type { CellMoments } from '../../lib/engine/cell-moments';
 
 /**
  * Reference integration by brute force: every cell with mass is assigned to its nearest
