@@ -7,13 +7,13 @@
  */
 import path from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { FALLBACK_CSP, SECURITY_HEADERS } from '../lib/server/http/security-headers.js';
+import { FALLBACK_CSP, SECURITY_HEADERS, SERVICE_WORKER_CSP } from '../lib/server/http/security-headers.js';
 
 const root = path.resolve(import.meta.dirname, '../..');
 const { server } = await import(pathToFileURL(path.join(root, 'build', 'index.js')).href);
 
 // Runs before the app's own listener; SvelteKit's page CSP, when it sets one, replaces the fallback.
-server.server.prependListener('request', (_req, res) => {
+server.server.prependListener('request', (req, res) => {
 	for (const [name, value] of Object.entries(SECURITY_HEADERS)) res.setHeader(name, value);
-	res.setHeader('Content-Security-Policy', FALLBACK_CSP);
+	res.setHeader('Content-Security-Policy', req.url?.split('?')[0] === '/service-worker.js' ? SERVICE_WORKER_CSP : FALLBACK_CSP);
 });

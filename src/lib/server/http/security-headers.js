@@ -22,6 +22,13 @@ export const SECURITY_HEADERS = {
 export const FALLBACK_CSP = "default-src 'none'; frame-ancestors 'none'; base-uri 'none'; form-action 'self'";
 
 /**
+ * For the service worker's script (/service-worker.js): a worker's own response CSP governs what
+ * it may fetch, so it may reach this origin (to keep the route page, its data and the backdrop for
+ * the technician offline) and nothing else.
+ */
+export const SERVICE_WORKER_CSP = "default-src 'none'; connect-src 'self'; img-src 'self'; frame-ancestors 'none'; base-uri 'none'";
+
+/**
  * Sets the headers on a Fetch API Headers object, keeping a Content-Security-Policy already there.
  * @param {Headers} headers
  */

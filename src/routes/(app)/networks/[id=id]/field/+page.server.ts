@@ -8,6 +8,7 @@ import { ServiceError } from '$lib/server/services/errors';
 import { applyTaskUpdate, currentTasks, fieldSettings } from '$lib/server/services/field-tasks';
 import { routeMap } from '$lib/server/services/route-map';
 import { photosOfTasks } from '$lib/server/services/field-photos';
+import { updateFromForm } from '$lib/field/update-form';
 import { importanceSource } from '../../../../api/v1/networks/[id=id]/map/importance-source';
 
 const ACK_COOKIE = 'cf-cautions-ack';
@@ -42,12 +43,6 @@ export const load = (async (event) => {
 	};
 }) satisfies PageServerLoad;
 
-const num = (v: FormDataEntryValue | null) => {
-	const s = typeof v === 'string' ? v.trim().replace(',', '.') : '';
-	return s === '' ? undefined : Number(s);
-};
-const text = (v: FormDataEntryValue | null) => (typeof v === 'string' && v.trim() !== '' ? v.trim() : undefined);
-
 export const actions = {
 	acknowledge: async (event) => {
 		const { network, actor } = await networkAccess(event, 'task.work');
@@ -57,16 +52,9 @@ export const actions = {
 	},
 	update: async (event) => {
 		const { network, actor } = await networkAccess(event, 'task.work');
-		const data = await event.request.formData();
-		const taskId = Number(data.get('taskId'));
-		const lon = num(data.get('lon'));
-		const lat = num(data.get('lat'));
-		const body: Record<string, unknown> = { state: data.get('state'), fromState: text(data.get('fromState')) };
-		if (lon !== undefined || lat !== undefined) body.position = { lon, lat, ...(num(data.get('accuracyM')) !== undefined ? { accuracyM: num(data.get('accuracyM')) } : {}) };
-		if (text(data.get('note'))) body.note = text(data.get('note'));
-		if (text(data.get('reason'))) body.reason = text(data.get('reason'));
+		const { taskId, key, body } = updateFromForm(await event.request.formData());
 		try {
-			const r = await applyTaskUpdate(getDb(), network, actor, taskId, String(data.get('key') ?? ''), body);
+			const r = await applyTaskUpdate(getDb(), network, actor, taskId, key, body);
 			if (r.status === 409) return fail(409, { taskId, message: 'error' in r.body ? r.body.error.message : 'Conflict.' });
 		} catch (e) {
 			if (e instanceof ServiceError) return fail(e.status, { taskId, message: e.message, field: e.field ?? null });
