@@ -1,8 +1,8 @@
 /**
  * The demo's field stage, after the proposals stage: the "Summer field season" proposal (Lloyd,
  * with one new probe) approved as the network's plan, its tasks spread to the demo technician
- * from the first site, the first two done (one set 4 m from its site, one 14 m away and so flagged
- * against the default 10 m tolerance) and the third blocked with a reason. The network stays
+ * from the first site, the first two moves on the route done (one set 4 m from its site, one 14 m away and so flagged
+ * against the default 10 m tolerance) and the next task blocked with a reason. The network stays
  * published, so /map/{slug} shows the result on a fresh start.
  *
  * Idempotent: nothing happens when a proposal of that title exists. Runs on the calling thread.
@@ -54,7 +54,10 @@ export async function seedDemoField(db: Knex, store: ObjectStore, a: DemoFieldAc
 	if (tasks.length === 0) return;
 	await assignTasks(db, network, a.analyst, { spread: true, assigneeIds: [a.technician.id], start: tasks[0].target }, origin);
 	const route = await currentTasks(db, network.id, { assigneeId: a.technician.id });
-	const [first, second, third] = route;
+	// The two done are moves, so the demo's inventory keeps its fourteen sensors; the blocked one is
+	// the next task on the route that is still open.
+	const [first, second] = route.filter((t) => t.kind === 'move');
+	const third = route.find((t) => t !== first && t !== second);
 	const key = (n: string) => `demo-field-${network.id}-${n}`;
 	const finish = async (t: (typeof route)[number], metres: number, tag: string, note: string) => {
 		await applyTaskUpdate(db, network, a.technician, t.id, key(`${tag}-start`), { state: 'started', fromState: 'open' });

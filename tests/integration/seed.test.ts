@@ -61,11 +61,11 @@ describe('demo seed', () => {
 		// (cells are taken by their centre, so a few boundary cells may fall between polygons).
 		expect(shares.reduce((a, b) => a + b, 0)).toBeGreaterThan(0.99);
 		expect(shares.reduce((a, b) => a + b, 0)).toBeLessThanOrEqual(1 + 1e-9);
-		// data/demo/README.md: 12 probes and 2 neutron sensors, plus the new probe when the field stage's
-		// route puts its installation among the tasks it marks done.
-		const installed = Number((await t.db('field_tasks').where({ network_id: net.id, kind: 'install', state: 'done' }).count({ n: '*' }).first())!.n);
-		expect(installed).toBeLessThanOrEqual(1);
-		expect(Number((await t.db('sensors').where({ network_id: net.id }).count({ n: '*' }).first())!.n)).toBe(14 + installed);
+		// data/demo/README.md: 12 probes and 2 neutron sensors; the field stage completes moves only,
+		// so its new probe stays planned and the inventory keeps fourteen.
+		expect(Number((await t.db('field_tasks').where({ network_id: net.id, kind: 'install', state: 'done' }).count({ n: '*' }).first())!.n)).toBe(0);
+		expect(Number((await t.db('field_tasks').where({ network_id: net.id, kind: 'move', state: 'done' }).count({ n: '*' }).first())!.n)).toBe(2);
+		expect(Number((await t.db('sensors').where({ network_id: net.id }).count({ n: '*' }).first())!.n)).toBe(14);
 		// Written through the services, each with its audit entry.
 		const actions = new Set((await t.db('audit_log').select('action')).map((a: { action: string }) => a.action));
 		for (const a of ['network.area', 'layer.create', 'recipe.version.create', 'network.recipe_version', 'network.zone_set', 'sensor.import']) expect(actions, a).toContain(a);
@@ -95,7 +95,6 @@ describe('demo seed over a demo network from before it had content', () => {
 		expect(area.coordinates[0][0][0][0]).toBeGreaterThan(143);
 		expect(area.coordinates[0][0][0][1]).toBeLessThan(-32);
 		expect(net.zone_set_id).not.toBeNull();
-		const installed = Number((await t.db('field_tasks').where({ network_id: net.id, kind: 'install', state: 'done' }).count({ n: '*' }).first())!.n);
-		expect(Number((await t.db('sensors').where({ network_id: net.id }).count({ n: '*' }).first())!.n)).toBe(14 + installed);
+		expect(Number((await t.db('sensors').where({ network_id: net.id }).count({ n: '*' }).first())!.n)).toBe(14);
 	});
 });
