@@ -56,7 +56,7 @@ import type { CrossingGate } from './zone-balance';
  * 7. zone-balanced: the crossing admission above; a refused move falls back to the local
  *    step, and to staying put if that crosses too.
  *
- * Mass that does not sum to 1 is normalised (a copy; inputs are never mutated).
+ * Mass that does not sum to 1 is normalised (a copy; inputs are never mutated, nor is the mass).
  */
 export function place(
 	grid: WorkingGrid,
@@ -73,8 +73,12 @@ export function place(
 
 	let total = 0;
 	for (let k = 0; k < cells; k++) total += grid.mass[k];
-	const mass = new Float64Array(cells);
-	if (total > 0) for (let k = 0; k < cells; k++) mass[k] = grid.mass[k] / total;
+	// Read only from here on, so mass that already sums to 1 is used as it is.
+	let mass = grid.mass;
+	if (total !== 1) {
+		mass = new Float64Array(cells);
+		if (total > 0) for (let k = 0; k < cells; k++) mass[k] = grid.mass[k] / total;
+	}
 
 	// Sensors in grid units.
 	const greenfield = sensors.length === 0;
