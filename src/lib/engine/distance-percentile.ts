@@ -17,11 +17,13 @@ export function weightedDistanceQuantile(
 	pv: Float64Array,
 	q: number
 ): number {
-	// Three passes, each with its loop written out: a callback per cell would box every distance.
-	let total = 0;
-	let maxD = 0;
+	// Three passes, each with its loop written out: a callback per cell would box every distance
+	// (and so would sums kept in variables the callbacks assign: they live in a typed array).
+	const first = new Float64Array(2); // total mass, largest distance
 	forEachOwnedRun(width, height, pu, pv, (r, c0, c1, i) => {
 		const dv = r + 0.5 - pv[i];
+		let total = 0;
+		let maxD = first[1];
 		for (let c = c0; c < c1; c++) {
 			const m = mass[r * width + c];
 			if (!(m > 0)) continue;
@@ -30,7 +32,10 @@ export function weightedDistanceQuantile(
 			total += m;
 			if (d > maxD) maxD = d;
 		}
+		first[0] += total;
+		first[1] = maxD;
 	});
+	const [total, maxD] = first;
 	if (!(total > 0)) return 0;
 	const bins = 4096;
 	const hist = new Float64Array(bins);

@@ -153,8 +153,6 @@ interface Accumulator {
 	height: number;
 	mass: Float64Array;
 	validArea: Float32Array;
-	/** Sub-pixels added so far. */
-	validPixels: number;
 }
 
 /** How the image's pixels map onto the grid: its size, sub-pixels per side, the lattice. */
@@ -169,10 +167,12 @@ interface Spread {
 
 /**
  * Adds one block's valid pixels to the grid, each split into ku × kv sub-pixels placed by the
- * lattice. A plain function, kept out of the async reading loop so that its numbers stay in
- * registers (an async function's locals that live across an await are boxed on the heap).
+ * lattice; returns the number of sub-pixels added. A plain function, kept out of the async
+ * reading loop so that its numbers stay in registers (an async function's locals that live
+ * across an await are boxed on the heap), and with nothing after its loop that the first block
+ * has not run yet: such code would throw the optimised loop away at the end of every block.
  */
-function accumulateBlock(block: RasterBlock, spread: Spread, target: Accumulator): void {
+function accumulateBlock(block: RasterBlock, spread: Spread, target: Accumulator): number {
 	const { W, H, ku, kv, lattice, nodata } = spread;
 	const { width, height, mass, validArea } = target;
 	const { nx, step, gx: LX, gy: LY, area: LA } = lattice;
@@ -242,7 +242,7 @@ function accumulateBlock(block: RasterBlock, spread: Spread, target: Accumulator
 			}
 		}
 	}
-	target.validPixels += added;
+	return added;
 }
 
 /** Ingest one band into a working grid: the single pass over the raster described above. */
@@ -294,16 +294,17 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 	}
 
 	const n = width * height;
-	const target: Accumulator = { width, height, mass: new Float64Array(n), validArea: new Float32Array(n), validPixels: 0 };
+	const target: Accumulator = { width, height, mass: new Float64Array(n), validArea: new Float32Array(n) };
 	const spread: Spread = { W, H, ku, kv, lattice, nodata: source.nodata };
 	let pixelsRead = 0;
+	let validPixels = 0;
 	const readOpts: BlockReadOptions = { image: image.index, pool: opts.pool ?? null };
 	for await (const block of source.blocks(readOpts)) {
 		opts.onBlock?.(block, image.index);
 		pixelsRead += block.width * block.height;
-		accumulateBlock(block, spread, target);
+		validPixels += accumulateBlock(block, spread, target);
 	}
-	const { mass, validArea, validPixels } = target;
+	const { mass, validArea } = target;
 
 	if (validPixels === 0) throw noValidCells();
 	const allowed = allowedShare(geom, frame.studyPolygons, frame.exclusionPolygons);
