@@ -99,7 +99,7 @@ interface Measured {
 	error: string;
 }
 
-/** Run a command under /usr/bin/time: wall seconds and peak RSS. */
+/** Run a command under /usr/bin/time: wall seconds of the whole command and its peak RSS. */
 function timed(cmd: string, args: string[], env: NodeJS.ProcessEnv = process.env): Measured {
 	const r = spawnSync('/usr/bin/time', ['-f', '@@time %e %M', cmd, ...args], { encoding: 'utf8', env, maxBuffer: 1 << 28 });
 	const m = /@@time ([\d.]+) (\d+)/.exec(r.stderr ?? '');
@@ -110,13 +110,42 @@ function timed(cmd: string, args: string[], env: NodeJS.ProcessEnv = process.env
 const f1 = (v: number) => (Number.isFinite(v) ? v.toFixed(2) : '–');
 const f0 = (v: number) => (Number.isFinite(v) ? v.toFixed(0) : '–');
 
+function median(values: number[]): number {
+	const v = values.filter(Number.isFinite).sort((a, b) => a - b);
+	if (v.length === 0) return NaN;
+	const m = v.length >> 1;
+	return v.length % 2 ? v[m] : (v[m - 1] + v[m]) / 2;
+}
+
+/** The 1-, 5- and 15-minute load averages: the machine is shared, so every figure carries them. */
+function loadAverage(): string {
+	try {
+		return readFileSync('/proc/loadavg', 'utf8').split(' ').slice(0, 3).join(' ');
+	} catch {
+		return '?';
+	}
+}
+
 function hasGdal(): boolean {
 	return spawnSync('gdalwarp', ['--version'], { encoding: 'utf8' }).status === 0;
+}
+
+/** Several runs of one command: median wall time, the largest peak RSS, and every run's time. */
+interface Runs {
+	runs: Measured[];
+	seconds: number;
+	peakMB: number;
+}
+
+function summary(runs: Measured[]): Runs {
+	return { runs, seconds: median(runs.map((r) => r.seconds)), peakMB: Math.max(...runs.map((r) => r.peakMB)) };
 }
 
 export async function run(args: string[]): Promise<void> {
 	const sizesArg = args.find((a) => a.startsWith('--sizes='))?.slice(8);
 	const sizes = sizesArg ? sizesArg.split(',').map(Number).filter((n) => n > 0) : ALL_SIZES;
+	const repeats = Math.max(1, Number(args.find((a) => a.startsWith('--repeats='))?.slice(10) ?? 3) || 3);
+	const web = !args.includes('--no-web');
 	const gdal = hasGdal();
 	if (!gdal) console.log('gdalwarp not found (Debian: apt-get install gdal-bin); GDAL columns are left empty');
 	const t0 = performance.now();
@@ -126,37 +155,58 @@ export async function run(args: string[]): Promise<void> {
 	const out = join(tmpdir(), `cairnfield-bench-${process.pid}`);
 	mkdirSync(out, { recursive: true });
 	const cli = join(ROOT, 'src', 'cli', 'bin.js');
-	console.log('pixels   raw MB | cli s  peak MB  ×raw | gdal near s  peak MB | gdal avg s  peak MB | time ratio near  avg | grid');
+	// Bring the command line's bundle up to date before anything is timed.
+	spawnSync(process.execPath, [cli, '--help'], { encoding: 'utf8' });
+	console.log(`each command runs ${repeats} times, the three in turn (cli, gdal near, gdal avg), so that load from other work falls on all alike;`);
+	console.log('time: median wall time of the whole command (Node or GDAL start-up included); peak: the largest maximum RSS of the runs');
+	console.log('pixels   raw MB | cli s  peak MB  ×raw | gdal near s  peak MB | gdal avg s  peak MB | time ratio near  avg | load average | grid');
 	try {
 		for (const size of sizes) {
 			const file = files.get(size)!;
 			const raw = (size * size * 4) / 1048576;
-			const c = timed(process.execPath, [cli, 'place', '--importance', file, '--count', '1', '--radius', String(RADIUS), '--max-iterations', '0', '--out', join(out, 'sites.geojson')]);
+			const loadBefore = loadAverage();
+			const cliRuns: Measured[] = [];
+			const nearRuns: Measured[] = [];
+			const avgRuns: Measured[] = [];
 			let grid = '';
 			let te: string[] = [];
 			let tr = '';
-			if (c.ok) {
-				const p = JSON.parse(readFileSync(join(out, 'sites.geojson'), 'utf8')).placement;
-				grid = `${p.grid.width}×${p.grid.height} cells of ${p.cell_size_m} m (${p.cell_size.rule})`;
-				tr = String(p.cell_size_m);
-				te = [String(p.grid.x0), String(p.grid.y0 - p.grid.height * p.cell_size_m), String(p.grid.x0 + p.grid.width * p.cell_size_m), String(p.grid.y0)];
-			} else grid = `cli failed: ${c.error}`;
-			const near = gdal ? timed('gdalwarp', ['-q', '-overwrite', '-t_srs', 'EPSG:32633', '-r', 'near', '-wo', 'NUM_THREADS=1', file, join(out, 'near.tif')]) : null;
-			const avg = gdal && tr ? timed('gdalwarp', ['-q', '-overwrite', '-t_srs', 'EPSG:32633', '-r', 'average', '-tr', tr, tr, '-te', ...te, '-wo', 'NUM_THREADS=1', file, join(out, 'avg.tif')]) : null;
-			rmSync(join(out, 'near.tif'), { force: true });
+			for (let rep = 0; rep < repeats; rep++) {
+				const c = timed(process.execPath, [cli, 'place', '--importance', file, '--count', '1', '--radius', String(RADIUS), '--max-iterations', '0', '--out', join(out, 'sites.geojson')]);
+				cliRuns.push(c);
+				if (c.ok && !tr) {
+					const p = JSON.parse(readFileSync(join(out, 'sites.geojson'), 'utf8')).placement;
+					grid = `${p.grid.width}×${p.grid.height} cells of ${p.cell_size_m} m (${p.cell_size.rule})`;
+					tr = String(p.cell_size_m);
+					te = [String(p.grid.x0), String(p.grid.y0 - p.grid.height * p.cell_size_m), String(p.grid.x0 + p.grid.width * p.cell_size_m), String(p.grid.y0)];
+				} else if (!c.ok) grid = `cli failed: ${c.error}`;
+				if (gdal) nearRuns.push(timed('gdalwarp', ['-q', '-overwrite', '-t_srs', 'EPSG:32633', '-r', 'near', '-wo', 'NUM_THREADS=1', file, join(out, 'near.tif')]));
+				if (gdal && tr) avgRuns.push(timed('gdalwarp', ['-q', '-overwrite', '-t_srs', 'EPSG:32633', '-r', 'average', '-tr', tr, tr, '-te', ...te, '-wo', 'NUM_THREADS=1', file, join(out, 'avg.tif')]));
+				rmSync(join(out, 'near.tif'), { force: true });
+			}
+			const c = summary(cliRuns);
+			const near = summary(nearRuns);
+			const avg = summary(avgRuns);
 			console.log(
 				`${`${size}²`.padEnd(8)} ${f0(raw).padStart(6)} | ${f1(c.seconds).padStart(5)} ${f0(c.peakMB).padStart(8)} ${f1(c.peakMB / raw).padStart(5)} | ` +
-					`${f1(near?.seconds ?? NaN).padStart(11)} ${f0(near?.peakMB ?? NaN).padStart(8)} | ${f1(avg?.seconds ?? NaN).padStart(10)} ${f0(avg?.peakMB ?? NaN).padStart(8)} | ` +
-					`${f1(c.seconds / (near?.seconds ?? NaN)).padStart(15)} ${f1(c.seconds / (avg?.seconds ?? NaN)).padStart(4)} | ${grid}`
+					`${f1(near.seconds).padStart(11)} ${f0(near.peakMB).padStart(8)} | ${f1(avg.seconds).padStart(10)} ${f0(avg.peakMB).padStart(8)} | ` +
+					`${f1(c.seconds / near.seconds).padStart(15)} ${f1(c.seconds / avg.seconds).padStart(4)} | ${loadBefore} → ${loadAverage()} | ${grid}`
 			);
+			const list = (r: Measured[]) => r.map((m) => f1(m.seconds)).join(' ');
+			console.log(`         runs (s): cli ${list(cliRuns)} | gdal near ${list(nearRuns)} | gdal avg ${list(avgRuns)}`);
 		}
-		const big = Math.max(...sizes);
-		const web = timed(process.execPath, ['--import', 'tsx', join(ROOT, 'src', 'bench', 'ingest-upload.ts'), files.get(big)!], { ...process.env });
-		const raw = (big * big * 4) / 1048576;
-		if (web.ok) {
-			console.log(`web upload of ${big}² (${f0(statSync(files.get(big)!).size / 1048576)} MB): ${web.stdout.trim()}`);
-			console.log(`  whole process: ${f1(web.seconds)} s, peak ${f0(web.peakMB)} MB (${f1(web.peakMB / raw)} × raw)`);
-		} else console.log(`web upload of ${big}²: failed (${web.error})`);
+		if (web) {
+			const big = Math.max(...sizes);
+			const raw = (big * big * 4) / 1048576;
+			console.log(`web upload of the ${big}² file (${f0(statSync(files.get(big)!).size / 1048576)} MB, raw samples ${f0(raw)} MB), load average ${loadAverage()}:`);
+			try {
+				const { webUpload } = await import('./ingest-upload');
+				for (const line of await webUpload(ROOT, files.get(big)!)) console.log(`  ${line}`);
+				console.log(`  load average after: ${loadAverage()}`);
+			} catch (e) {
+				console.log(`  failed: ${e instanceof Error ? e.message : String(e)}`);
+			}
+		}
 	} finally {
 		rmSync(out, { recursive: true, force: true });
 	}

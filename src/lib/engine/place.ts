@@ -1,4 +1,4 @@
-import { cellMoments, rowScratch } from './cell-moments';
+import { cellCostAndCoverage, cellMoments, rowScratch } from './cell-moments';
 import { centroidTargets } from './centroid-step';
 import { clampTravel, Occupancy, separate, snapToFeasible } from './constraints';
 import { weightedDistanceQuantile } from './distance-percentile';
@@ -119,6 +119,14 @@ export function place(
 		// Nothing to serve: no step has a direction. Sensors stay where they are.
 		record({ iteration: 0, cost: 0, coverage: 0 });
 		return finish({ grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, inputs: sensors, greenfield, options }, 0, true, history);
+	}
+
+	if (maxIterations === 0) {
+		// Only the start is described: one evaluation, summed directly, without the prefix sums
+		// (24 bytes a cell) that make each of many iterations cheap.
+		const start = cellCostAndCoverage(mass, width, height, pu, pv, rho);
+		record({ iteration: 0, cost: sumOf(start.cost) * cellSize * cellSize, coverage: Math.min(1, sumOf(start.diskMass)) });
+		return finish({ grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, inputs: sensors, greenfield, options }, 0, false, history);
 	}
 
 	const prefix = rowPrefixSums(mass, width, height);
