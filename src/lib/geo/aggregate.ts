@@ -29,7 +29,7 @@ import type { WorkingGrid } from '../engine/types';
 import { rasterizeRings, type GridGeometry, type Ring } from '../engine/rasterize';
 import { crsLabel, type PointTransform } from './crs';
 import { chooseCellSize, type CellSizeChoice } from './cell-size';
-import { pixelToCrs, type BlockReadOptions, type DecoderPool, type GeoTiffSource, type GeoTransform, type RasterBlock } from './geotiff';
+import { pixelToCrs, type BlockReadOptions, type DecoderPool, type GeoTiffSource, type GeoTransform, type RasterBand, type RasterBlock } from './geotiff';
 import { noValidCells, planFrame, WorkingGridError, type WorkingGridOptions } from './working-grid';
 
 export interface AggregateOptions extends Pick<WorkingGridOptions, 'crs' | 'studyArea' | 'exclusions' | 'maxCells'> {
@@ -332,6 +332,24 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 		latticeStep: step,
 		latticeError: err,
 		pixelsRead
+	};
+}
+
+/**
+ * A band held in memory (an importance surface) as a source of one block, so that it goes through
+ * the same aggregation as a streamed GeoTIFF (placement runs and zone shares use it).
+ */
+export function bandSource(band: RasterBand): GeoTiffSource {
+	const { data, ...header } = band;
+	return {
+		...header,
+		blockWidth: band.width,
+		blockHeight: band.height,
+		overviews: [],
+		async *blocks() {
+			yield { row0: 0, width: band.width, height: band.height, data };
+		},
+		async close() {}
 	};
 }
 
