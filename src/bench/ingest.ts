@@ -146,6 +146,7 @@ export async function run(args: string[]): Promise<void> {
 	const sizes = sizesArg ? sizesArg.split(',').map(Number).filter((n) => n > 0) : ALL_SIZES;
 	const repeats = Math.max(1, Number(args.find((a) => a.startsWith('--repeats='))?.slice(10) ?? 3) || 3);
 	const web = !args.includes('--no-web');
+	const cliPart = !args.includes('--web-only');
 	const gdal = hasGdal();
 	if (!gdal) console.log('gdalwarp not found (Debian: apt-get install gdal-bin); GDAL columns are left empty');
 	const t0 = performance.now();
@@ -161,7 +162,7 @@ export async function run(args: string[]): Promise<void> {
 	console.log('time: median wall time of the whole command (Node or GDAL start-up included); peak: the largest maximum RSS of the runs');
 	console.log('pixels   raw MB | cli s  peak MB  ×raw | gdal near s  peak MB | gdal avg s  peak MB | time ratio near  avg | load average | grid');
 	try {
-		for (const size of sizes) {
+		for (const size of cliPart ? sizes : []) {
 			const file = files.get(size)!;
 			const raw = (size * size * 4) / 1048576;
 			const loadBefore = loadAverage();
