@@ -123,6 +123,6 @@ describe('zone shares on the aggregated importance grid', () => {
 		}
 		const errors = rects.map((_, z) => Math.abs(shares[z]! - integral[z] / total) / (integral[z] / total));
 		expect(Math.max(...errors)).toBeLessThan(1e-3);
-		expect(shares.reduce((s, v) => s + v!, 0)).toBeCloseTo(1, 9);
+		expect(shares.reduce<number>((sum, v) => sum + (v ?? Number.NaN), 0)).toBeCloseTo(1, 9);
 	});
 });
