@@ -158,7 +158,7 @@ export async function webUpload(root: string, file: string): Promise<string[]> {
 		};
 		const sampler = setInterval(sample, 50);
 		const size = statSync(file).size;
-		const query = new URLSearchParams({ name: `bench ${basename(file)}`, kind: 'importance', fileName: basename(file) });
+		const query = new URLSearchParams({ name: `bench ${basename(file)}`, kind: 'other', fileName: basename(file) });
 		const t0 = performance.now();
 		let t1 = t0;
 		let t2 = t0;
