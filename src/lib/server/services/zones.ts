@@ -211,10 +211,21 @@ export const ZONE_CELL_BUDGET = 250_000;
  * mass-preserving aggregation and cell-size rule as a placement run's grid (aggregateToWorkingGrid,
  * chooseCellSize), with the zones' budget and no sensing radius (zones do not depend on one); the
  * study area and exclusions count as shares of cells, so each zone's importance is the surface's
- * integral over it, up to edge cells.
+ * integral over it, up to edge cells. Zones are counted by cell centre, and zones drawn to the study
+ * area's outline would leave out the cells it only grazes: a cell whose centre lies outside the
+ * study area gives its (partial) mass up, and the rest is normalised again, so that zones which
+ * partition the study area hold all of it.
  */
 export async function zoneImportanceGrid(band: RasterBand, opts: Pick<WorkingGridOptions, 'crs' | 'studyArea' | 'exclusions'>): Promise<WorkingGrid> {
-	return (await aggregateToWorkingGrid(bandSource(band), { ...opts, smallestRadius: null, cellBudget: ZONE_CELL_BUDGET })).grid;
+	const { grid } = await aggregateToWorkingGrid(bandSource(band), { ...opts, smallestRadius: null, cellBudget: ZONE_CELL_BUDGET });
+	if (!opts.studyArea?.length) return grid;
+	const fwd = transformer(4326, parseEpsg(grid.crs)).forward;
+	const inside = rasterizeZones(grid, opts.studyArea.map((p, k) => ({ id: String(k), rings: projectRings(p, fwd, grid.cellSize / 4) }))).cellZone;
+	const mass = new Float64Array(grid.mass.length);
+	let total = 0;
+	for (let i = 0; i < mass.length; i++) if (inside[i] >= 0) total += mass[i] = grid.mass[i];
+	if (total > 0) for (let i = 0; i < mass.length; i++) mass[i] /= total;
+	return { ...grid, mass };
 }
 
 /**
