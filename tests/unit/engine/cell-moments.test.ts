@@ -15,7 +15,8 @@ function relErr(a: number, b: number): number {
 	return Math.abs(a - b) / Math.max(Math.abs(b), 1e-12);
 }
 
-function compare(seed: number, layout: 'random' | 'collinear' | 'outside' | 'coincident' | 'clustered') {
+/** A random small grid with sensors laid out as `layout` says, and random radii. */
+function randomCase(seed: number, layout: 'random' | 'collinear' | 'outside' | 'coincident' | 'clustered') {
 	const rnd = mulberry32(seed);
 	const w = 3 + Math.floor(rnd() * 40);
 	const h = 3 + Math.floor(rnd() * 40);
@@ -32,6 +33,11 @@ function compare(seed: number, layout: 'random' | 'collinear' | 'outside' | 'coi
 	if (layout === 'coincident') for (let i = 1; i < n; i += 2) [pu[i], pv[i]] = [pu[i - 1], pv[i - 1]];
 	if (layout === 'clustered') for (let i = 0; i < n; i++) [pu[i], pv[i]] = [w / 2 + rnd() * 0.01, h / 2 + rnd() * 0.01];
 	const rho = new Float64Array(n).map(() => rnd() * 10);
+	return { mass, w, h, n, pu, pv, rho };
+}
+
+function compare(seed: number, layout: 'random' | 'collinear' | 'outside' | 'coincident' | 'clustered') {
+	const { mass, w, h, n, pu, pv, rho } = randomCase(seed, layout);
 	const fast = cellMoments(rowPrefixSums(mass, w, h), pu, pv, rho);
 	const slow = bruteForceMoments(mass, w, h, pu, pv, rho);
 	let worst = 0;
@@ -161,16 +167,7 @@ describe('cellCostAndCoverage(mass, sensors) equals brute-force nearest-sensor i
 		it(`on 40 random small grids with ${layout} sensors, to 1e-9 relative`, () => {
 			let worst = 0;
 			for (let s = 0; s < 40; s++) {
-				const rnd = mulberry32(7000 + 100 * layout.length + s);
-				const w = 3 + Math.floor(rnd() * 40);
-				const h = 3 + Math.floor(rnd() * 40);
-				const mass = new Float64Array(w * h).map(() => (rnd() < 0.2 ? 0 : rnd()));
-				const n = 1 + Math.floor(rnd() * 15);
-				const inside = layout !== 'outside';
-				const pu = new Float64Array(n).map(() => (inside ? rnd() * w : -5 + rnd() * (w + 10)));
-				const pv = new Float64Array(n).map(() => (inside ? rnd() * h : -5 + rnd() * (h + 10)));
-				if (layout === 'coincident') for (let i = 1; i < n; i += 2) [pu[i], pv[i]] = [pu[i - 1], pv[i - 1]];
-				const rho = new Float64Array(n).map(() => rnd() * 10);
+				const { mass, w, h, n, pu, pv, rho } = randomCase(7000 + 100 * layout.length + s, layout);
 				const direct = cellCostAndCoverage(mass, w, h, pu, pv, rho);
 				const slow = bruteForceMoments(mass, w, h, pu, pv, rho);
 				const fast = cellMoments(rowPrefixSums(mass, w, h), pu, pv, rho);

@@ -7,11 +7,11 @@
  * UTM 33N; each pixel's integral is its value × the area of its footprint in UTM metres (the
  * shoelace area of its four projected corners, proj4 for every corner), shared among the zones by
  * 4 × 4 points of the footprint (bilinear between the corners), so a pixel on a zone edge is split. The issue's check: the integral over every zone is kept
- * within 0.1 % (zones made of whole working cells; their edges in WGS 84 are densified to 5 m so
+ * within 0.1 % (zones made of whole working cells; their edges in WGS 84 are densified to ≤ 5 m so
  * that they come back onto the cell edges).
  */
 import { describe, expect, it } from 'vitest';
-import { zoneImportanceGrid, zoneShares, ZONE_CELL_BUDGET } from '../../../src/lib/server/services/zones';
+import { rectToLonLat, zoneImportanceGrid, zoneShares, ZONE_CELL_BUDGET } from '../../../src/lib/server/services/zones';
 import { chooseCellSize } from '../../../src/lib/geo/cell-size';
 import { transformer } from '../../../src/lib/geo/crs';
 import type { RasterBand } from '../../../src/lib/geo/geotiff';
@@ -40,12 +40,7 @@ function surface(): RasterBand {
 		nodata: null,
 		epsg: 4326,
 		transform: [LON0, STEP, 0, LAT0, 0, -STEP],
-		bandCount: 1,
-		band: 1,
-		sampleFormat: 3,
-		bitsPerSample: 32,
-		compression: 1,
-		tiled: false
+		...{ bandCount: 1, band: 1, sampleFormat: 3, bitsPerSample: 32, compression: 1, tiled: false }
 	};
 }
 
@@ -79,19 +74,10 @@ describe('zone shares on the aggregated importance grid', () => {
 			[cx, -10, width + 10, rowsRight],
 			[cx, rowsRight, width + 10, height + 10]
 		].map(([c0, r0, c1, r1]) => [x0 + c0 * cellSize, y0 - r1 * cellSize, x0 + c1 * cellSize, y0 - r0 * cellSize]);
-		const densified = ([minX, minY, maxX, maxY]: [number, number, number, number]) => {
-			const ring: [number, number][] = [];
-			const edge = (x1: number, y1: number, x2: number, y2: number) => {
-				const n = Math.max(1, Math.ceil(Math.hypot(x2 - x1, y2 - y1) / 5));
-				for (let k = 0; k < n; k++) ring.push(toLonLat(x1 + ((x2 - x1) * k) / n, y1 + ((y2 - y1) * k) / n));
-			};
-			edge(minX, minY, maxX, minY);
-			edge(maxX, minY, maxX, maxY);
-			edge(maxX, maxY, minX, maxY);
-			edge(minX, maxY, minX, minY);
-			ring.push(ring[0]);
-			return { type: 'MultiPolygon', coordinates: [[ring]] } as MultiPolygonGeometry;
-		};
+		const densified = ([minX, minY, maxX, maxY]: [number, number, number, number]): MultiPolygonGeometry => ({
+			type: 'MultiPolygon',
+			coordinates: [[rectToLonLat(minX, minY, maxX, maxY, toLonLat, Math.ceil(Math.max(maxX - minX, maxY - minY) / 5))]]
+		});
 		const shares = zoneShares(grid, rects.map(densified));
 
 		// The oracle: every pixel's value × its UTM footprint, to the zone holding its centre.

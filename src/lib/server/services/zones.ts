@@ -63,7 +63,7 @@ export interface NewZone {
 // ---------------------------------------------------------------- pure geometry helpers
 
 /** A rectangle in working-CRS metres as a lon/lat ring, edges densified so it follows the projection. */
-function rectToLonLat(xmin: number, ymin: number, xmax: number, ymax: number, inverse: (x: number, y: number) => [number, number], pieces = 8): Position[] {
+export function rectToLonLat(xmin: number, ymin: number, xmax: number, ymax: number, inverse: (x: number, y: number) => [number, number], pieces = 8): Position[] {
 	const pts: Position[] = [];
 	const side = (ax: number, ay: number, bx: number, by: number) => {
 		for (let k = 0; k < pieces; k++) pts.push(inverse(ax + ((bx - ax) * k) / pieces, ay + ((by - ay) * k) / pieces));
