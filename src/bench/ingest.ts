@@ -38,6 +38,9 @@
  *   grids: 783×1172 … 821×1214 cells of 19 … 92 m (the one-million-cell budget decides).
  *   At load 10–12, five repeats of 2000²: cli 1.56 s (runs 1.33–1.62), gdal near 0.79 s (0.53–1.36):
  *   ratio 1.97; after the 0-iteration change at load 12: cli 2.17 s, gdal near 1.43 s: ratio 1.52.
+ * Web, 10000² (381 MB) over HTTP, load average 13 → 21: 202 after 29.3 s (the body streamed to the
+ *   store), the layer-processing job finished 73.9 s later (103 s in all); peak RSS app 153 MB
+ *   (114 before), worker 290 MB (146 before), both together 432 MB: under the 1.5 GB goal.
  * What the 2000² run spends its time on: Node's start (~0.1 s CPU), the bundle's load (~0.1 s), the
  * aggregation of 4 M pixels (8 M sub-pixels), and fresh memory: this machine takes ~14 µs to fault
  * in a 4 KiB page, so every 24 MB first touched costs ~80 ms; hence reused block buffers, direct
