@@ -254,6 +254,35 @@ describe('field tasks', () => {
 		expect(listed[task.id].map((p) => p.id)).toEqual([a.photo.id, b.photo.id]);
 	});
 
+	it('a photo queued offline and sent again under its key (twice at once, then after the task moved on) is stored once and answers the first photo; other bytes under the key are refused', async () => {
+		const task = (await currentTasks(t.db, net.network.id, { assigneeId: techA.id })).find((x) => x.state === 'open')!;
+		expect(task).toBeTruthy();
+		const png = new PNG({ width: 4, height: 3 });
+		png.data.fill(90);
+		const bytes = new Uint8Array(PNG.sync.write(png));
+		const rowsBefore = Number((await t.db('field_task_photos').count({ n: '*' }).first())!.n);
+		const keysBefore = (await s.keys()).length;
+		// The queue's first try lost its answer and a second tab sent it too: both arrive at once.
+		const [x, y] = await Promise.all([
+			addTaskPhoto(t.db, s.store, net.network, techA, task.id, bytes, 'queued-photo-0001'),
+			addTaskPhoto(t.db, s.store, net.network, techA, task.id, bytes, 'queued-photo-0001')
+		]);
+		expect(x.photo.id).toBe(y.photo.id);
+		expect([x.replayed, y.replayed].sort()).toEqual([false, true]);
+		// The task moves on (blocked); the queue sends the photo once more: the same first answer.
+		await applyTaskUpdate(t.db, net.network, techA, task.id, 'queued-photo-block', { state: 'blocked', reason: 'Gate locked' });
+		const z = await addTaskPhoto(t.db, s.store, net.network, techA, task.id, bytes, 'queued-photo-0001');
+		expect(z).toEqual({ photo: x.photo, replayed: true });
+		// Another photo under the same key is not the same request.
+		const other = new PNG({ width: 4, height: 3 });
+		other.data.fill(10);
+		await expect(addTaskPhoto(t.db, s.store, net.network, techA, task.id, new Uint8Array(PNG.sync.write(other)), 'queued-photo-0001')).rejects.toMatchObject({ status: 422, code: 'idempotency_key_reused' });
+		// Stored once: one row, one object, one audit entry.
+		expect(Number((await t.db('field_task_photos').count({ n: '*' }).first())!.n)).toBe(rowsBefore + 1);
+		expect((await s.keys()).length).toBe(keysBefore + 1);
+		expect(await t.db('audit_log').where({ action: 'task.photo', object_id: task.id }).whereRaw("JSON_VALUE(`after`, '$.photoId') = ?", [String(x.photo.id)])).toHaveLength(1);
+	});
+
 	it('a newer approved plan cancels the open tasks of the one it supersedes, says why, and tells the technicians', async () => {
 		const old = await currentTasks(t.db, net.network.id);
 		const oldPlan = old[0].planId;
