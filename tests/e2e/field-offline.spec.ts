@@ -56,6 +56,8 @@ async function phone(browser: import('@playwright/test').Browser): Promise<{ con
 const card = (page: Page, id: number) => page.locator(`[data-testid="task-card"][data-task-id="${id}"]`);
 
 test('offline for a stretch: the route, its backdrop, the cautions, the updates and a photo keep working; the sync loses nothing, applies nothing twice and shows the conflict', async ({ browser }) => {
+	// Two phones, a photo resized in the page and two syncs: about 40 s on an idle machine.
+	test.setTimeout(180_000);
 	const open = await db('field_tasks').select('id', 'kind', 'sensor_id', 'target_lon', 'target_lat').where({ network_id: networkId, state: 'open' }).whereIn('kind', ['move', 'install']).orderBy('route_order');
 	expect(open.length).toBeGreaterThanOrEqual(2);
 	const [first, second] = open;

@@ -68,15 +68,18 @@ const database = () =>
 /** The UTC day of a moment, as the server counts acknowledgements. */
 export const utcDay = (at: Date = new Date()): string => at.toISOString().slice(0, 10);
 
+/** A network's entries of one store, oldest first. */
+async function oldestFirst<S extends 'updates' | 'photos'>(store: S, networkId: number): Promise<QueueDb[S]['value'][]> {
+	const all = await (await database()).getAllFromIndex(store, 'byNetwork', IDBKeyRange.only(networkId));
+	return all.sort((a, b) => a.queuedAt - b.queuedAt);
+}
+
 export async function enqueue(update: Omit<QueuedUpdate, 'status' | 'queuedAt'>): Promise<void> {
 	await (await database()).put('updates', { ...update, status: 'waiting', queuedAt: Date.now() });
 }
 
 /** This network's queued updates, oldest first. */
-export async function queued(networkId: number): Promise<QueuedUpdate[]> {
-	const all = await (await database()).getAllFromIndex('updates', 'byNetwork', networkId);
-	return all.sort((a, b) => a.queuedAt - b.queuedAt);
-}
+export const queued = (networkId: number): Promise<QueuedUpdate[]> => oldestFirst('updates', networkId);
 
 export async function dismiss(key: string): Promise<void> {
 	await (await database()).delete('updates', key);
@@ -88,10 +91,7 @@ export async function enqueuePhoto(photo: Omit<QueuedPhoto, 'status' | 'queuedAt
 }
 
 /** This network's queued photos, oldest first. */
-export async function queuedPhotos(networkId: number): Promise<QueuedPhoto[]> {
-	const all = await (await database()).getAllFromIndex('photos', 'byNetwork', networkId);
-	return all.sort((a, b) => a.queuedAt - b.queuedAt);
-}
+export const queuedPhotos = (networkId: number): Promise<QueuedPhoto[]> => oldestFirst('photos', networkId);
 
 export async function dismissPhoto(key: string): Promise<void> {
 	await (await database()).delete('photos', key);
