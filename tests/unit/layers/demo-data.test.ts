@@ -58,6 +58,27 @@ describe('demo data (data/demo)', () => {
 		expect(metadata.stats.validCount).toBeLessThan(30_000);
 	});
 
+	it('terrain height: 100 m cells, 290×250, whole metres, no nodata, covering the whole catchment', async () => {
+		const { metadata } = await loadLayer(await read('terrain-height.tif'), { name: 'terrain-height.tif' });
+		expect(metadata).toMatchObject({ width: 290, height: 250, epsg: 32754, resolution: { x: 100, y: 100 }, nodata: null });
+		expect(metadata.stats.validCount).toBe(290 * 250);
+		// A low plain: tens of metres of relief, not mountains (the generator's own design, no outside source).
+		expect(metadata.stats.max - metadata.stats.min).toBeGreaterThan(20);
+		expect(metadata.stats.max - metadata.stats.min).toBeLessThan(100);
+		// Every vertex of the catchment's outline lies inside the model (the recipe's surface is empty wherever a layer has no data).
+		const [study] = parsePolygonUpload((await read('study-area.geojson')).toString());
+		const { transformer } = await import('../../../src/lib/geo/crs');
+		const { forward } = transformer(4326, 32754);
+		const { origin, resolution } = metadata;
+		for (const [lon, lat] of study.geometry.coordinates[0][0]) {
+			const [x, y] = forward(lon, lat);
+			expect(x).toBeGreaterThan(origin.x);
+			expect(x).toBeLessThan(origin.x + 290 * resolution.x);
+			expect(y).toBeLessThan(origin.y);
+			expect(y).toBeGreaterThan(origin.y - 250 * resolution.y);
+		}
+	});
+
 	it('polygons parse; the zones partition the study area (geodesic areas by GeographicLib agree within 0.5 %)', async () => {
 		const [study] = parsePolygonUpload((await read('study-area.geojson')).toString());
 		const [lake] = parsePolygonUpload((await read('exclusions.geojson')).toString());
