@@ -35,6 +35,7 @@ test.describe('layers tab', () => {
 	});
 
 	test('an analyst uploads the demo soil moisture and vegetation rasters and sees both phases and the previews', async ({ page }) => {
+		test.setTimeout(180_000);
 		const u = demoUser('analyst');
 		await signInPage(page, u.email, u.password);
 		await gotoHydrated(page, `/networks/${networkId}/layers`);
@@ -45,7 +46,9 @@ test.describe('layers tab', () => {
 			['vegetation-index.tif', `Vegetation ${tag}`, 'Vegetation index']
 		] as const) {
 			await upload(page, demo(file), name, kind);
-			await expect(page.getByRole('status').filter({ hasText: `“${name}” is ready.` })).toBeVisible();
+			// Processing runs on the job queue, whose pool threads yield the CPU to pages (lowest
+			// priority): on a loaded machine it can take far longer than the default 5 s wait.
+			await expect(page.getByRole('status').filter({ hasText: `“${name}” is ready.` })).toBeVisible({ timeout: 60_000 });
 			await expect(page.getByTestId('upload-phase')).toHaveText('done');
 			await expect(page.getByTestId('processing-phase')).toHaveText('done');
 			const img = page.getByRole('img', { name: `Preview of ${name}` });
