@@ -10,6 +10,7 @@ import type { Db } from '../db';
 import { transformer, type PointTransform } from '../../geo/crs';
 import type { MapBounds, MapLegendStop, MapRings } from '$lib/api/client';
 import type { NetworkRow } from '../repositories/networks';
+import type { ObjectStore } from '../storage/object-store';
 import { networkMap, importancePng, type ImportanceSource } from './map-data';
 import type { RevisionMetrics, RevisionOutputs } from './placement';
 import { ServiceError } from './errors';
@@ -36,6 +37,8 @@ export interface PublicMap {
 	sensorTypes: { name: string; radiusM: number; count: number }[];
 	coverage: { sensorCount: number; coverage: number | null; p95DistanceM: number | null; zones: { name: string; importanceShare: number | null; sensors: number }[] };
 	importance: { url: string; bounds: MapBounds; min: number; max: number; legend: MapLegendStop[] } | null;
+	/** The importance overlay is being drawn (a job); it appears on a later look. */
+	importancePending: boolean;
 }
 
 const SLUG = /^[a-z0-9]+(?:-[a-z0-9]+)*$/;
@@ -82,10 +85,10 @@ async function candidateSites(db: Db, networkId: number): Promise<{ sites: Candi
 	return { sites, plan: { approvedAt: new Date(plan.approved_at).toISOString(), metrics: parse(plan.metrics) as RevisionMetrics } };
 }
 
-export async function publicMap(db: Db, slug: string, importance: ImportanceSource): Promise<PublicMap> {
+export async function publicMap(db: Db, slug: string, importance: ImportanceSource, cache: ObjectStore): Promise<PublicMap> {
 	const network = await findPublishedNetwork(db, slug);
 	const apiBase = `/api/v1/public/networks/${network.slug}`;
-	const doc = await networkMap(db, { network, importance, apiBase, mayViewLayers: false });
+	const doc = await networkMap(db, { network, importance, cache, apiBase, mayViewLayers: false });
 	const { sites: candidates, plan } = await candidateSites(db, network.id);
 	const grid = network.public_grid_m && network.public_grid_m > 0 ? network.public_grid_m : null;
 	let sites: PublicSite[] = [];
@@ -126,14 +129,15 @@ export async function publicMap(db: Db, slug: string, importance: ImportanceSour
 			p95DistanceM: plan ? plan.metrics.p95DistanceM : null,
 			zones: plan ? plan.metrics.zones.map((z) => ({ name: zoneShares.get(z.id)?.name || z.id, importanceShare: zoneShares.get(z.id)?.importanceShare ?? null, sensors: z.sensors })) : []
 		},
-		importance: b ? { url: `${apiBase}/importance.png`, bounds: b.bounds, min: b.min, max: b.max, legend: b.legend } : null
+		importance: b ? { url: `${apiBase}/importance.png`, bounds: b.bounds, min: b.min, max: b.max, legend: b.legend } : null,
+		importancePending: doc.importanceJob !== null && (doc.importanceJob.state === 'queued' || doc.importanceJob.state === 'running')
 	};
 }
 
 /** The importance overlay PNG of a published network (404 when unpublished or without importance). */
-export async function publicImportancePng(db: Db, slug: string, importance: ImportanceSource): Promise<Buffer> {
+export async function publicImportancePng(db: Db, slug: string, importance: ImportanceSource, cache: ObjectStore): Promise<Buffer> {
 	const network = await findPublishedNetwork(db, slug);
-	const png = await importancePng(db, network, importance);
+	const png = await importancePng(db, network, importance, cache);
 	if (!png) throw new ServiceError(404, 'not_found', 'This map has no importance overlay.');
 	return png;
 }

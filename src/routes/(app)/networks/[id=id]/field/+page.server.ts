@@ -2,6 +2,7 @@ import { randomUUID } from 'node:crypto';
 import { fail, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { getDb } from '$lib/server/db';
+import { getObjectStore } from '$lib/server/storage/app-store';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { recordAudit } from '$lib/server/repositories/audit';
 import { ServiceError } from '$lib/server/services/errors';
@@ -38,7 +39,7 @@ export const load = (async (event) => {
 		})),
 		toleranceM: (await fieldSettings(db, network.id)).installToleranceM,
 		cautionsAcknowledged: event.cookies.get(ACK_COOKIE) === `${actor.id}:${today()}`,
-		map: await routeMap(db, network, active, importanceSource()),
+		map: await routeMap(db, network, active, importanceSource(), getObjectStore()),
 		photos: await photosOfTasks(db, network.id, active.map((t) => t.id))
 	};
 }) satisfies PageServerLoad;
