@@ -14,7 +14,7 @@ import { closeThreadPools, runQueuedJobs } from '../../src/lib/server/jobs';
 import { registerBuiltInJobKinds, MAP_IMPORTANCE } from '../../src/lib/server/jobs/kinds';
 import { parseListQuery, sensorPage } from '../../src/lib/server/services/sensors';
 import { FsObjectStore } from '../../src/lib/server/storage';
-import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
+import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpers/db';
 
 const UTM32 = '+proj=utm +zone=32 +datum=WGS84 +units=m +no_defs';
 
@@ -145,7 +145,7 @@ describe('networkMap (service, test database)', () => {
 		expect(pending.importanceJob).toMatchObject({ state: 'queued', error: null });
 		const job = await t.db('jobs').where({ id: pending.importanceJob!.id }).first();
 		expect(job.kind).toBe(MAP_IMPORTANCE);
-		expect(JSON.parse(job.payload)).toEqual({ networkId, versionId, epsg: 32632 });
+		expect(jsonValue(job.payload)).toEqual({ networkId, versionId, epsg: 32632 });
 		expect(await store.exists(keys.png)).toBe(false); // nothing was drawn in the request
 		// Asked again (another view, the PNG itself): the same job, no second one; the PNG says "being prepared".
 		expect((await networkMap(t.db, { network, importance: source, cache: store, apiBase: '' })).importanceJob!.id).toBe(job.id);
