@@ -15,13 +15,14 @@ type Reply<T> = { ok: true; value: T } | ThreadRefusal;
 
 /**
  * Runs thread task `task` with `input` plus a `port` onto `store`, in the job's pool (its memory
- * limit and its signal); a refusal comes back as the ServiceError it was.
+ * limit and its signal); `transfer` lists what else of `input` moves to the thread (ports). A
+ * refusal comes back as the ServiceError it was.
  */
-export async function runWithStore<T>(ctx: Pick<JobContext, 'runInThread' | 'signal' | 'store'>, task: string, input: Record<string, unknown>): Promise<T> {
+export async function runWithStore<T>(ctx: Pick<JobContext, 'runInThread' | 'signal' | 'store'>, task: string, input: Record<string, unknown>, transfer: Transferable[] = []): Promise<T> {
 	const channel = new MessageChannel();
 	const stop = serveObjectStore(channel.port1, ctx.store);
 	try {
-		const reply = await ctx.runInThread<Reply<T>>(task, { ...input, port: channel.port2 satisfies MessagePort }, { transferList: [channel.port2], signal: ctx.signal });
+		const reply = await ctx.runInThread<Reply<T>>(task, { ...input, port: channel.port2 satisfies MessagePort }, { transferList: [channel.port2, ...transfer], signal: ctx.signal });
 		if (!reply.ok) throw new ServiceError(reply.status as ServiceError['status'], reply.code, reply.message, reply.field);
 		return reply.value;
 	} finally {

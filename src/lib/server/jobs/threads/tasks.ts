@@ -17,6 +17,9 @@ import { portObjectStore } from '../../storage/store-port';
 import { ImportanceImageError, renderImportance } from '../../map/importance-image';
 import type { Recipe } from '../../../importance';
 import type { MultiPolygonGeometry } from '../../../geo/polygons';
+import { parseEpsg, transformer } from '../../../geo/crs';
+import { projectRings } from '../../../geo/geojson';
+import { rasterizeZones } from '../../../engine/rasterize';
 
 /**
  * Layer processing of a stored file whose byte ranges this thread asks `port` for (the job's side
@@ -107,5 +110,32 @@ export function mapImportance(input: { port: MessagePort; surfaceKey: string; ep
 	return refusing(input.port, async () => {
 		const surface = decodeSurface(await portObjectStore(input.port).getBuffer(input.surfaceKey));
 		return renderImportance(surface, input.epsg);
+	});
+}
+
+/**
+ * A placement on a stored surface: the working grid (as zones use it), the zones rasterised on it,
+ * then the engine, all in this thread; progress as placeSensors sends it, over `progress`.
+ */
+export function placeOnStoredSurface(input: {
+	port: MessagePort;
+	surfaceKey: string;
+	versionId: number;
+	options: ZoneGridOptions;
+	zones: { id: string; geometry: MultiPolygonGeometry }[] | null;
+	sensors: SensorInput[];
+	placement: Omit<PlacementOptions, 'onIteration'>;
+	progress?: MessagePort;
+}) {
+	return refusing(input.port, async () => {
+		const grid = zoneImportanceGrid(await storedImportance(input.port, input.surfaceKey, input.versionId), input.options);
+		let zones: ZoneMap | null = null;
+		if (input.zones) {
+			const fwd = transformer(4326, parseEpsg(grid.crs)).forward;
+			zones = rasterizeZones(grid, input.zones.map((z) => ({ id: z.id, rings: z.geometry.coordinates.flatMap((poly) => projectRings(poly, fwd, grid.cellSize / 4)) })));
+		}
+		const reply = placeSensors({ grid, zones, sensors: input.sensors, options: input.placement, port: input.progress });
+		if (!reply.ok) throw new ServiceError(422, 'invalid_input', `The placement cannot run: ${reply.message}`, reply.field);
+		return reply.result;
 	});
 }
