@@ -245,6 +245,7 @@ test('an analyst draws a named exclusion on the map; a technician has no Draw co
 });
 
 test('while its importance image is being drawn, the Map tab shows the rest at once, follows the job and then shows the image, without a reload', async ({ page }) => {
+	test.setTimeout(180_000); // an upload, a recipe version and the image: three jobs
 	const url = process.env.DATABASE_URL;
 	if (!url) throw new Error('DATABASE_URL is not set: run through npm test');
 	const admin = await contextFor('admin');
