@@ -41,7 +41,8 @@ function poolFor(memoryMb: number): Pool {
 			filename: DEFAULT_TASKS_FILE,
 			minThreads: 0,
 			maxThreads: maxThreadsPerPool,
-			idleTimeout: 30_000,
+			// Threads start slowly (tsx, the tasks' modules: seconds on a busy machine): keep idle ones a while.
+			idleTimeout: 10 * 60_000,
 			resourceLimits: { maxOldGenerationSizeMb: memoryMb, maxYoungGenerationSizeMb: Math.min(64, Math.max(8, Math.round(memoryMb / 16))) }
 		});
 		const made: Pool = { pool };
