@@ -48,13 +48,22 @@ export const placementKind: JobKind<PlacementPayload, PlacementResult> = {
 		}
 		const maxIterations = payload.options.maxIterations ?? 500;
 		const channel = new MessageChannel();
-		channel.port1.on('message', (e: { iteration: number; cost: number; coverage: number }) => reportProgress({ iteration: e.iteration, maxIterations, cost: e.cost, coverage: e.coverage }));
+		let last = -1;
+		const report = (e: { iteration: number; cost: number; coverage: number }) => {
+			if (e.iteration <= last) return;
+			last = e.iteration;
+			reportProgress({ iteration: e.iteration, maxIterations, cost: e.cost, coverage: e.coverage });
+		};
+		channel.port1.on('message', report);
 		try {
 			return await refusalsFail(async () => {
 				const surfaceKey = await ensureVersionSurface(db, store, network.id, versionId, threadSurfaceRunner(ctx));
 				if (!surfaceKey) throw new JobFailure('The recipe version in use no longer exists.');
 				const input = { surfaceKey, versionId, options: await zoneGridOptions(db, network), zones, sensors: payload.sensors ?? [], placement: payload.options, progress: channel.port2 };
-				return runWithStore<PlacementResult>(ctx, 'placeOnStoredSurface', input, [channel.port2]);
+				const result = await runWithStore<PlacementResult>(ctx, 'placeOnStoredSurface', input, [channel.port2]);
+				// The last progress message may still be on its way (another port than the result's): say it here.
+				report({ iteration: result.iterations, cost: result.cost, coverage: result.coverage });
+				return result;
 			});
 		} finally {
 			channel.port1.close();
