@@ -260,6 +260,7 @@ test('while its importance image is being drawn, the Map tab shows the rest at o
 	// job is queued to start only when the test says so, so the page meets it queued.
 	const db = createDb(url, 1);
 	try {
+		const sensorCount = await insertDemoMapRows(db, networkId);
 		await db('networks').where({ id: networkId }).update({ crs_epsg: 32755, working_epsg: 32755 });
 		const job = await enqueueJob(db, { kind: 'map-importance', payload: { networkId, versionId, epsg: 32755 }, networkId, idempotencyKey: `map-importance:${versionId}:32755`, delayMs: 10 * 60_000 });
 
@@ -267,6 +268,7 @@ test('while its importance image is being drawn, the Map tab shows the rest at o
 		await signInPage(page, t.email, t.password);
 		await gotoHydrated(page, `/networks/${networkId}/map`);
 		await expect(page.getByTestId('network-map')).toHaveClass(/leaflet-container/);
+		await expect(page.locator('.cf-sensor')).toHaveCount(sensorCount);
 		await expect(page.getByTestId('importance-pending')).toContainText('Importance map being prepared');
 		await expect(page.getByTestId('job-state')).toHaveText('queued');
 		await expect(page.locator('img.cf-backdrop')).toHaveCount(0);
