@@ -19,6 +19,9 @@ import { layerLimits, uploadLayer } from '../src/lib/server/services/layers';
 import { importSensors } from '../src/lib/server/services/sensors';
 import { createUploadedZoneSet, importanceForZones, useZoneSet } from '../src/lib/server/services/zones';
 import type { ObjectStore } from '../src/lib/server/storage/object-store';
+import { networkRecipeVersionId } from '../src/lib/server/repositories/recipes';
+import { prepareMapImportance } from '../src/lib/server/services/map-importance';
+import { workingCrs } from '../src/lib/server/services/working-crs';
 
 const demoDir = path.resolve(import.meta.dirname, '../data/demo');
 const demoFile = (name: string) => readFileSync(path.join(demoDir, name));
@@ -146,4 +149,16 @@ export async function seedDemoNetwork(db: Knex, store: ObjectStore, a: DemoActor
 	await seedDemoRecipe(db, store, a, layerIds);
 	await seedDemoZones(db, store, a);
 	await seedDemoSensors(db, a);
+	await seedDemoMapImportance(db, store, a);
+}
+
+/**
+ * Draws the importance map of the recipe version in use, in the working CRS, as its map-importance
+ * job would (here, in the seeding process): the demo's map opens with its importance at once. Does
+ * nothing when it is drawn already.
+ */
+export async function seedDemoMapImportance(db: Knex, store: ObjectStore, a: DemoActors): Promise<void> {
+	const versionId = await networkRecipeVersionId(db, a.networkId);
+	const epsg = await workingCrs(db, await network(db, a.networkId));
+	if (versionId !== null && epsg !== null) await prepareMapImportance(db, store, { networkId: a.networkId, versionId, epsg });
 }

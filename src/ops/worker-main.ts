@@ -9,8 +9,9 @@
  *   JOBS_LEASE_S        lease length in seconds (default 30)
  *   JOBS_POLL_MS        pause between polls when idle (default 1000)
  *   JOBS_STOP_GRACE_S   on SIGTERM, how long running jobs may finish before they are handed back (default 20)
- *   JOBS_NICE           scheduling priority of the worker and its threads, 0..19 (default 10): on a
+ *   JOBS_NICE           scheduling priority of the worker's own thread, 0..19 (default 10): on a
  *                       machine shared with an app server, page requests go first
+ *   JOBS_THREAD_NICE    scheduling priority of the pool threads that compute, JOBS_NICE..19 (default 19)
  */
 import os from 'node:os';
 import { createDb } from '../lib/server/db/knex';
@@ -40,6 +41,8 @@ export function runWorkerProcess(register: () => void): void {
 	} catch {
 		// Not permitted here: run at normal priority.
 	}
+	// Each pool thread lowers its own priority further when it starts (jobs/threads/bootstrap.mjs).
+	process.env.JOBS_THREAD_NICE = String(Math.min(19, Math.max(nice, Number(process.env.JOBS_THREAD_NICE ?? 19) || 19)));
 	const concurrency = positive('JOBS_CONCURRENCY', os.availableParallelism());
 	// Per job: its heartbeat and its own queries; plus the claim loop.
 	const db = createDb(url, concurrency * 2 + 2);

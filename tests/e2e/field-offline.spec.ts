@@ -12,6 +12,10 @@ import { PNG } from 'pngjs';
 import { expect, test, type BrowserContext, type Page } from '@playwright/test';
 import type { Knex } from 'knex';
 import { createDb } from '../../src/lib/server/db/knex';
+import { prepareMapImportance } from '../../src/lib/server/services/map-importance';
+import { networkRecipeVersionId } from '../../src/lib/server/repositories/recipes';
+import { findNetwork } from '../../src/lib/server/repositories/networks';
+import { workingCrs } from '../../src/lib/server/services/working-crs';
 import { createObjectStore } from '../../src/lib/server/storage/create-object-store';
 import { DEMO_ORGANISATION } from '../../seeds/demo';
 import { seedDemoField } from '../../seeds/demo-field';
@@ -33,6 +37,9 @@ test.beforeAll(async () => {
 	networkId = network.id;
 	const origin = (process.env.ORIGIN ?? process.env.BASE_URL ?? '').replace(/\/$/, '');
 	await seedDemoField(db, store, { networkId, analyst, reviewer: await user('reviewer'), technician: await user('technician') }, origin);
+	// The route map's importance backdrop, drawn now as the demo seed draws the demo's (a request
+	// would only queue its job, and the page would open without it).
+	await prepareMapImportance(db, store, { networkId, versionId: (await networkRecipeVersionId(db, networkId))!, epsg: (await workingCrs(db, (await findNetwork(db, networkId))!))! });
 });
 test.afterAll(async () => db?.destroy());
 

@@ -54,7 +54,7 @@ test.describe('importance tab', () => {
 		await page.getByLabel('Recipe name').fill(recipeName);
 		await page.getByLabel('Note for this version').fill('first try');
 		await page.getByRole('button', { name: 'Save as version 1' }).click();
-		await expect(page.getByRole('status')).toHaveText('Saved as version 1.');
+		await expect(page.getByRole('status')).toHaveText('Saved as version 1.', { timeout: 30_000 }); // a recipe-version job: seconds on a busy machine
 
 		await page.getByLabel(`Weight of ${vegName}`).fill('3');
 		await page.getByLabel('Note for this version').fill('more weight on vegetation');

@@ -9,6 +9,7 @@ import { randomBytes } from 'node:crypto';
 import { expect, test } from '@playwright/test';
 import type { Knex } from 'knex';
 import { createDb } from '../../src/lib/server/db/knex';
+import { enqueueJob } from '../../src/lib/server/jobs/queue';
 import { seedDemoInventory } from '../../seeds/demo-inventory';
 import { contextFor, demoUser, saveRecipeViaApi, signInPage, uploadLayerViaApi, gotoHydrated } from './support';
 
@@ -87,9 +88,20 @@ test('the Map tab draws the importance map, sensors, legend, toggles and cursor 
 		await db.destroy();
 	}
 
-	// The API document, as any member sees it.
+	// The API document, as any member sees it. The importance image is drawn by a job (queued when
+	// the version's surface was computed): until it is done the document says so and has the rest.
 	const tech = await contextFor('technician');
-	const doc = (await (await tech.get(`/api/v1/networks/${networkId}/map`)).json()).map;
+	const mapDoc = async () => (await (await tech.get(`/api/v1/networks/${networkId}/map`)).json()).map;
+	let doc = await mapDoc();
+	if (doc.importanceJob) {
+		expect(doc.backdrop).toBeNull();
+		expect(doc.sensors).toHaveLength(sensorCount);
+		// A technician may follow that job through the jobs API.
+		const job = await tech.get(`/api/v1/networks/${networkId}/jobs/${doc.importanceJob.id}`);
+		expect(job.status()).toBe(200);
+		expect((await job.json()).job.kind).toBe('map-importance');
+	}
+	await expect.poll(async () => (doc = await mapDoc()).importanceJob, { timeout: 60_000 }).toBeNull();
 	expect(doc.crs.epsg).toBe(32754);
 	expect(doc.sensors).toHaveLength(sensorCount);
 	expect(doc.backdrop.kind).toBe('importance');
@@ -230,6 +242,47 @@ test('an analyst draws a named exclusion on the map; a technician has no Draw co
 	const docAfter = (await (await analyst.get(`/api/v1/networks/${networkId}/map`)).json()).map;
 	expect(docAfter.exclusions).toHaveLength(ringsBefore + 1);
 	await page.screenshot({ path: '/tmp/map-app-drawn.png' });
+});
+
+test('while its importance image is being drawn, the Map tab shows the rest at once, follows the job and then shows the image, without a reload', async ({ page }) => {
+	test.setTimeout(180_000); // an upload, a recipe version and the image: three jobs
+	const url = process.env.DATABASE_URL;
+	if (!url) throw new Error('DATABASE_URL is not set: run through npm test');
+	const admin = await contextFor('admin');
+	const created = await admin.post('/api/v1/networks', { data: { name: `Map pending ${randomBytes(3).toString('hex')}` } });
+	const networkId = (await created.json()).network.id as number;
+	const analyst = await contextFor('analyst');
+	const layerId = (await uploadLayerViaApi(analyst, networkId, { name: 'Soil moisture', kind: 'soil_moisture', fileName: 'soil-moisture.tif' }, readFileSync(demo('soil-moisture.tif')))).id;
+	const versionId = (await saveRecipeViaApi(analyst, networkId, { name: 'Wetness', definition: { layers: [{ layerId: String(layerId), transform: 'minmax', weight: 1 }] } })).id;
+	expect((await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId } })).ok()).toBe(true);
+
+	// The network is now drawn in the neighbouring UTM zone (55S), for which no image exists; its
+	// job is queued to start only when the test says so, so the page meets it queued.
+	const db = createDb(url, 1);
+	try {
+		const sensorCount = await insertDemoMapRows(db, networkId);
+		await db('networks').where({ id: networkId }).update({ crs_epsg: 32755, working_epsg: 32755 });
+		const job = await enqueueJob(db, { kind: 'map-importance', payload: { networkId, versionId, epsg: 32755 }, networkId, idempotencyKey: `map-importance:${versionId}:32755`, delayMs: 10 * 60_000 });
+
+		const t = demoUser('technician');
+		await signInPage(page, t.email, t.password);
+		await gotoHydrated(page, `/networks/${networkId}/map`);
+		await expect(page.getByTestId('network-map')).toHaveClass(/leaflet-container/);
+		await expect(page.locator('.cf-sensor')).toHaveCount(sensorCount);
+		await expect(page.getByTestId('importance-pending')).toContainText('Importance map being prepared');
+		await expect(page.getByTestId('job-state')).toHaveText('queued');
+		await expect(page.locator('img.cf-backdrop')).toHaveCount(0);
+		await page.evaluate(() => ((window as unknown as { stillHere: boolean }).stillHere = true));
+
+		await db('jobs').where({ id: job.id }).update({ run_after: db.fn.now() });
+		await expect(page.locator('img.cf-backdrop')).toHaveCount(1, { timeout: 60_000 });
+		await expect.poll(() => page.locator('img.cf-backdrop').evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth > 0)).toBe(true);
+		await expect(page.getByTestId('importance-pending')).toHaveCount(0);
+		expect(await page.evaluate(() => (window as unknown as { stillHere?: boolean }).stillHere)).toBe(true);
+		expect((await db('jobs').where({ id: job.id }).first()).state).toBe('finished');
+	} finally {
+		await db.destroy();
+	}
 });
 
 test('the demo network opens on a living map: importance, the four sub-catchments, the water storage and the 14 sensors', async ({ page }) => {

@@ -61,7 +61,7 @@ describe('demo field stage', () => {
 		await seedDemoField(t.db, s.store, actors, ORIGIN);
 		expect((await t.db('field_tasks').count({ n: '*' }).first())!.n).toBe(before!.n);
 		await t.db('networks').where({ id: net.network.id }).update({ publication: 'published' });
-		const m = await publicMap(t.db, net.network.slug, { versionId: async () => null, surface: async () => null });
+		const m = await publicMap(t.db, net.network.slug, { versionId: async () => null }, s.store);
 		const route = await currentTasks(t.db, net.network.id, { assigneeId: actors.technician.id });
 		for (const done of route.filter((x) => x.state === 'done')) {
 			expect(m.sites.some((p) => Math.abs(p.lon - done.installed!.lon) < 1e-9 && Math.abs(p.lat - done.installed!.lat) < 1e-9)).toBe(true);

@@ -6,7 +6,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import geodesic from 'geographiclib-geodesic';
-import { closeThreadPools } from '../../src/lib/server/jobs';
+import { closeThreadPools, runQueuedJobs } from '../../src/lib/server/jobs';
+import { registerBuiltInJobKinds, MAP_IMPORTANCE } from '../../src/lib/server/jobs/kinds';
 import { createProposal } from '../../src/lib/server/services/proposals';
 import { runNow } from '../../src/lib/server/services/runs';
 import { currentPlanView, decideRevision, submitRevision } from '../../src/lib/server/services/reviews';
@@ -14,7 +15,6 @@ import { applyTaskUpdate, assignTasks, currentTasks, contiguousShares, tasksGpx,
 import { findSensor } from '../../src/lib/server/repositories/sensors';
 import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpers/db';
 import { cachedPublicMap, generalise, publicImportancePng, publicMap } from '../../src/lib/server/services/public-map';
-import { networkImportance } from '../../src/lib/server/services/importance';
 import type { ImportanceSource } from '../../src/lib/server/services/map-data';
 import { networkRecipeVersionId } from '../../src/lib/server/repositories/recipes';
 import { placementNetwork, type PlacementNetwork } from '../helpers/placement-network';
@@ -329,18 +329,20 @@ describe('field tasks', () => {
 	}, 120_000);
 
 	it('the public map: 404 until published, then only public fields; positions generalised to grid centres on request', async () => {
-		const importance: ImportanceSource = {
-			versionId: (id) => networkRecipeVersionId(t.db, id),
-			surface: async (id) => {
-				const v = await networkImportance(t.db, s.store, id);
-				return v ? { grid: v.grid, data: v.band.data } : null;
-			}
-		};
+		const importance: ImportanceSource = { versionId: (id) => networkRecipeVersionId(t.db, id) };
 		const slug = net.network.slug;
-		await expect(publicMap(t.db, slug, importance)).rejects.toMatchObject({ status: 404 });
-		await expect(publicMap(t.db, 'no-such-network', importance)).rejects.toMatchObject({ status: 404 });
+		await expect(publicMap(t.db, slug, importance, s.store)).rejects.toMatchObject({ status: 404 });
+		await expect(publicMap(t.db, 'no-such-network', importance, s.store)).rejects.toMatchObject({ status: 404 });
 		await t.db('networks').where({ id: net.network.id }).update({ publication: 'published', public_text: 'Soil moisture in the Vale.' });
-		const m = await publicMap(t.db, slug, importance);
+		// The first look queues the overlay's drawing and shows the rest at once; the job draws it.
+		const first = await publicMap(t.db, slug, importance, s.store);
+		expect(first.importance).toBeNull();
+		expect(first.importancePending).toBe(true);
+		await expect(publicImportancePng(t.db, slug, importance, s.store)).rejects.toMatchObject({ status: 409, code: 'importance_pending' });
+		registerBuiltInJobKinds();
+		await runQueuedJobs(t.db, s.store, { kinds: [MAP_IMPORTANCE], timeoutMs: 120_000 });
+		const m = await publicMap(t.db, slug, importance, s.store);
+		expect(m.importancePending).toBe(false);
 		const plan = await currentPlanView(t.db, net.network.id);
 		expect(m.plan).toEqual({ approvedAt: plan!.approvedAt });
 		expect(m.network).toEqual({ slug, name: net.network.name, publicText: 'Soil moisture in the Vale.' });
@@ -348,7 +350,7 @@ describe('field tasks', () => {
 		const targets = (jsonValue(revision.outputs) as { targets: { features: unknown[] } }).targets.features;
 		expect(m.sites).toHaveLength(targets.length);
 		expect(m.importance?.url).toBe(`/api/v1/public/networks/${slug}/importance.png`);
-		expect(await publicImportancePng(t.db, slug, importance)).toBeInstanceOf(Buffer);
+		expect(await publicImportancePng(t.db, slug, importance, s.store)).toBeInstanceOf(Buffer);
 		// Neutron sensors (footprint radius about 130–240 m, Köhli et al. 2015) are large-footprint
 		// sensors with their own symbol; the probes of the demo (a 30 m siting radius) are point probes.
 		expect(m.sensorTypes.length).toBeGreaterThan(0);
@@ -356,17 +358,17 @@ describe('field tasks', () => {
 		for (const site of m.sites) expect(site.footprint).toBe(m.sensorTypes.find((x) => x.name === site.type)!.footprint);
 
 		// Built once while nothing changes: the same object; a change of what it shows is seen at once.
-		const cached = await cachedPublicMap(t.db, slug, importance);
+		const cached = await cachedPublicMap(t.db, slug, importance, s.store);
 		expect(cached).toEqual(m);
-		expect(await cachedPublicMap(t.db, slug, importance)).toBe(cached);
+		expect(await cachedPublicMap(t.db, slug, importance, s.store)).toBe(cached);
 		const done = await t.db('field_tasks').select('id', 'installed_lon', 'installed_lat').where({ network_id: net.network.id, state: 'done' }).whereNotNull('installed_lon').first();
 		if (done) {
 			await t.db('field_tasks').where({ id: done.id }).update({ installed_lon: Number(done.installed_lon) + 0.0001 });
-			expect(await cachedPublicMap(t.db, slug, importance)).not.toBe(cached);
+			expect(await cachedPublicMap(t.db, slug, importance, s.store)).not.toBe(cached);
 			await t.db('field_tasks').where({ id: done.id }).update({ installed_lon: done.installed_lon });
 		}
 		await t.db('networks').where({ id: net.network.id }).update({ public_text: 'Soil moisture in the Vale, updated.' });
-		expect((await cachedPublicMap(t.db, slug, importance)).network.publicText).toBe('Soil moisture in the Vale, updated.');
+		expect((await cachedPublicMap(t.db, slug, importance, s.store)).network.publicText).toBe('Soil moisture in the Vale, updated.');
 		await t.db('networks').where({ id: net.network.id }).update({ public_text: 'Soil moisture in the Vale.' });
 
 		// Nothing private: no serial, sensor code, e-mail address, person, note or task field.
@@ -388,7 +390,7 @@ describe('field tasks', () => {
 
 		// Generalised to a 500 m grid: every position is the centre of the 500 m cell that holds the exact one.
 		await t.db('networks').where({ id: net.network.id }).update({ public_grid_m: 500 });
-		const g = await publicMap(t.db, slug, importance);
+		const g = await publicMap(t.db, slug, importance, s.store);
 		expect(g.generalisedToM).toBe(500);
 		for (const p of g.sites) {
 			expect(Math.abs((p.x / 500) % 1)).toBeCloseTo(0.5, 6);
@@ -396,9 +398,9 @@ describe('field tasks', () => {
 		}
 		const exact = m.sites.map((p) => generalise(p.x, p.y, 500).join()).sort();
 		expect(g.sites.map((p) => [p.x, p.y].join()).sort()).toEqual(exact);
-		expect(await cachedPublicMap(t.db, slug, importance)).toEqual(g);
+		expect(await cachedPublicMap(t.db, slug, importance, s.store)).toEqual(g);
 		await t.db('networks').where({ id: net.network.id }).update({ publication: 'private', public_grid_m: null });
-		await expect(publicMap(t.db, slug, importance)).rejects.toMatchObject({ status: 404 });
-		await expect(cachedPublicMap(t.db, slug, importance)).rejects.toMatchObject({ status: 404 });
+		await expect(publicMap(t.db, slug, importance, s.store)).rejects.toMatchObject({ status: 404 });
+		await expect(cachedPublicMap(t.db, slug, importance, s.store)).rejects.toMatchObject({ status: 404 });
 	}, 120_000);
 });

@@ -5,7 +5,10 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { encodeTiff } from '../../src/bench/support/tiff-writer';
-import { closeThreadPools, getJob, runQueuedJobs } from '../../src/lib/server/jobs';
+import { closeThreadPools, getJob, registerJobKind, runQueuedJobs } from '../../src/lib/server/jobs';
+import { MAP_IMPORTANCE } from '../../src/lib/server/jobs/kinds';
+import { recipePreviewKind } from '../../src/lib/server/jobs/kinds/recipe-preview';
+import { readMapImportanceView } from '../../src/lib/server/services/map-importance';
 import { registerBuiltInJobKinds } from '../../src/lib/server/jobs/kinds';
 import { acceptLayerUpload, layerPreview } from '../../src/lib/server/services/layers';
 import { createNetwork } from '../../src/lib/server/services/networks';
@@ -194,8 +197,31 @@ describe('layer processing job', () => {
 		expect(version.version).toBe(1);
 		const row = await t.db('importance_recipe_versions').where({ id: version.id }).first();
 		expect(await s.store.exists(row.surface_key)).toBe(true);
+		// Its finished step queued the version's map image in the network's working CRS (32754, set
+		// explicitly), which the same drain drew: a map request finds it ready.
+		const mapJob = await t.db('jobs').where({ kind: MAP_IMPORTANCE, idempotency_key: `${MAP_IMPORTANCE}:${version.id}:32754` }).first();
+		expect(mapJob?.state).toBe('finished');
+		expect(await readMapImportanceView(s.store, version.id, 32754)).toMatchObject({ min: expect.any(Number), max: expect.any(Number) });
 		await expect(queueRecipeVersion(t.db, ctx.networkId, ctx.organisationId, ctx.actorId, { name: 'Dry', definition })).rejects.toMatchObject({ status: 409, code: 'name_taken' });
 	});
+
+	it('the importance kinds compute in a heap-limited pool thread: over the limit the job fails with a readable message and the worker goes on', async () => {
+		// A recipe preview run under a heap limit too small for its thread (resourceLimits bound the
+		// JS heap; the thread's own start-up needs more than 4 MB, so this fails on every machine),
+		// beside the same preview under the kind's own limit, in one worker with one job at a time.
+		// The recipe-version, zones and map-importance kinds run their work through the same runner.
+		registerJobKind({ ...recipePreviewKind, kind: 'test-preview-tight', limits: { ...recipePreviewKind.limits, memoryMb: 4 }, maxAttempts: 1 });
+		const [layer] = await t.db('layers').where({ network_id: ctx.networkId, status: 'ready' }).select('id');
+		const definition = { layers: [{ layerId: String(layer.id), transform: 'invert', weight: 2 }] };
+		const tight = await enqueueJob(t.db, { kind: 'test-preview-tight', payload: { networkId: ctx.networkId, definition }, networkId: ctx.networkId, priority: 20 });
+		const normal = await queueRecipePreview(t.db, ctx.networkId, ctx.actorId, definition);
+		await runQueuedJobs(t.db, s.store, { kinds: ['test-preview-tight', 'recipe-preview'], concurrency: 1, timeoutMs: 120_000 });
+		const failed = (await getJob(t.db, tight.id))!;
+		expect(failed.state).toBe('failed');
+		expect(failed.error).toBe('The computation needed more than its memory limit of 4 MB and was stopped.');
+		expect(failed.attempts).toBe(1);
+		expect((await getJob(t.db, normal.id))!.state).toBe('finished');
+	}, 180_000);
 
 	it('a placement job runs the engine on the network importance, reports its iterations, and returns what place() returns', async () => {
 		// Needs the recipe chosen by the zones test above.

@@ -8,20 +8,19 @@ import path from 'node:path';
 import { importancePng, networkMap, type ImportanceSource } from '../../src/lib/server/services/map-data';
 import type { SurfaceLike } from '../../src/lib/map/raster';
 import { findNetwork } from '../../src/lib/server/repositories/networks';
-import { useRecipeVersion } from '../../src/lib/server/services/importance';
+import { encodeSurface, useRecipeVersion } from '../../src/lib/server/services/importance';
+import { mapImportanceKeys, prepareMapImportance, queueMapImportanceOfVersion } from '../../src/lib/server/services/map-importance';
+import { closeThreadPools, runQueuedJobs } from '../../src/lib/server/jobs';
+import { registerBuiltInJobKinds, MAP_IMPORTANCE } from '../../src/lib/server/jobs/kinds';
 import { parseListQuery, sensorPage } from '../../src/lib/server/services/sensors';
 import { FsObjectStore } from '../../src/lib/server/storage';
-import { createTestDatabase, makeMember, type TestDb } from '../helpers/db';
+import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpers/db';
 
 const UTM32 = '+proj=utm +zone=32 +datum=WGS84 +units=m +no_defs';
 
-const noImportance: ImportanceSource = { versionId: async () => null, surface: async () => null };
-
-/** An importance source that counts how often the surface itself is read. */
-function countingSource(versionId: number, surface: SurfaceLike): ImportanceSource & { reads: number } {
-	const source = { reads: 0, versionId: async () => versionId, surface: async () => (source.reads++, surface) };
-	return source;
-}
+const noImportance: ImportanceSource = { versionId: async () => null };
+/** The store for the tests that draw no importance (nothing is ever read from it). */
+const emptyStore = new FsObjectStore(path.join(tmpdir(), 'cairnfield-map-empty'));
 
 /** A lon/lat square polygon around (lon, lat), half-side d degrees. */
 function square(lon: number, lat: number, d: number) {
@@ -85,11 +84,14 @@ describe('networkMap (service, test database)', () => {
 		]);
 		await t.db('networks').where({ id: networkId }).update({ zone_set_id: current });
 	});
-	afterAll(async () => t?.drop());
+	afterAll(async () => {
+		await closeThreadPools();
+		await t?.drop();
+	});
 
 	it('assembles area, exclusions, zones of the current set and sensors in the UTM zone of the centre', async () => {
 		const network = (await findNetwork(t.db, networkId))!;
-		const doc = await networkMap(t.db, { network, importance: noImportance, apiBase: `/api/v1/networks/${networkId}` });
+		const doc = await networkMap(t.db, { network, importance: noImportance, cache: emptyStore, apiBase: `/api/v1/networks/${networkId}` });
 		// 9°E 52°N lies in UTM zone 32N (6° zones from 180°W: zone 32 spans 6°E–12°E).
 		expect(doc.crs?.epsg).toBe(32632);
 		expect(doc.studyArea).toHaveLength(1);
@@ -119,14 +121,42 @@ describe('networkMap (service, test database)', () => {
 		expect(doc.contours).toEqual([]);
 	});
 
-	it('with an importance surface: backdrop bounds, legend, contour circles and the PNG, computed once per recipe version', async () => {
+	it('a map request never draws the importance: it answers at once with the job, which draws the image once per version and CRS', async () => {
+		registerBuiltInJobKinds();
 		const network = (await findNetwork(t.db, networkId))!;
 		const [cx, cy] = proj4('EPSG:4326', UTM32, [9, 52]);
 		const surface = coneSurface(cx, cy);
 		const dir = mkdtempSync(path.join(tmpdir(), 'cairnfield-map-'));
-		const cache = new FsObjectStore(dir);
-		const source = countingSource(41, surface);
-		const doc = await networkMap(t.db, { network, importance: source, cache, apiBase: '/api/v1/networks/1' });
+		const store = new FsObjectStore(dir);
+		// A recipe version whose surface (the cone) is stored, as the recipe-version job leaves it.
+		const data = Float32Array.from(surface.data);
+		await store.put('importance/cone', encodeSurface({ grid: surface.grid, data, validCount: data.length, min: Math.min(...data), max: Math.max(...data) }));
+		const [recipeId] = await t.db('importance_recipes').insert({ network_id: networkId, name: 'cone', latest_version: 1 });
+		const [versionId] = await t.db('importance_recipe_versions').insert({ recipe_id: recipeId, version: 1, definition: JSON.stringify({ layers: [] }), surface_key: 'importance/cone', grid_epsg: 32632 });
+		const source: ImportanceSource = { versionId: async () => versionId };
+		const keys = mapImportanceKeys(versionId, 32632);
+
+		// 1. The request: everything but the importance, and the queued job that will draw it.
+		const pending = await networkMap(t.db, { network, importance: source, cache: store, apiBase: '/api/v1/networks/1' });
+		expect(pending.sensors).toHaveLength(4);
+		expect(pending.zones).toHaveLength(2);
+		expect(pending.backdrop).toBeNull();
+		expect(pending.contours).toEqual([]);
+		expect(pending.importanceJob).toMatchObject({ state: 'queued', error: null });
+		const job = await t.db('jobs').where({ id: pending.importanceJob!.id }).first();
+		expect(job.kind).toBe(MAP_IMPORTANCE);
+		expect(jsonValue(job.payload)).toEqual({ networkId, versionId, epsg: 32632 });
+		expect(await store.exists(keys.png)).toBe(false); // nothing was drawn in the request
+		// Asked again (another view, the PNG itself): the same job, no second one; the PNG says "being prepared".
+		expect((await networkMap(t.db, { network, importance: source, cache: store, apiBase: '' })).importanceJob!.id).toBe(job.id);
+		await expect(importancePng(t.db, network, source, store)).rejects.toMatchObject({ status: 409, code: 'importance_pending' });
+		expect(await t.db('jobs').where({ kind: MAP_IMPORTANCE }).count({ n: '*' }).first()).toEqual({ n: 1 });
+
+		// 2. The job draws it.
+		await runQueuedJobs(t.db, store, { kinds: [MAP_IMPORTANCE], timeoutMs: 120_000 });
+		expect(await t.db('jobs').where({ id: job.id }).first()).toMatchObject({ state: 'finished' });
+		const doc = await networkMap(t.db, { network, importance: source, cache: store, apiBase: '/api/v1/networks/1' });
+		expect(doc.importanceJob).toBeNull();
 		expect(doc.backdrop?.kind).toBe('importance');
 		expect(doc.backdrop?.url).toBe('/api/v1/networks/1/map/importance.png');
 		expect(doc.backdrop?.bounds[0]).toBeCloseTo(cx - 1000, 6);
@@ -139,19 +169,34 @@ describe('networkMap (service, test database)', () => {
 			const want = 1000 * (1 - c.level);
 			for (const [px, py] of c.lines[0]) expect(Math.abs(Math.hypot(px - cx, py - cy) - want)).toBeLessThan(20);
 		}
-		const png = await importancePng(t.db, network, source, cache);
+		const png = await importancePng(t.db, network, source, store);
 		const img = PNG.sync.read(png!);
 		expect([img.width, img.height]).toEqual([100, 100]);
-		// The document again, from another process's view (a new store on the same objects): the
-		// surface is not read again, and the answer is the same.
+
+		// 3. Once: another process's view (a new store on the same objects) reads it and queues nothing;
+		// the version's own job (the recipe-version job's finished step) is the same job; drawing again draws nothing.
 		const again = await networkMap(t.db, { network, importance: source, cache: new FsObjectStore(dir), apiBase: '/api/v1/networks/1' });
-		expect(source.reads).toBe(1);
 		expect(again.contours).toEqual(doc.contours);
 		expect(again.backdrop).toEqual(doc.backdrop);
-		// Another recipe version is another surface: it is read.
-		await networkMap(t.db, { network, importance: countingSource(42, surface), cache, apiBase: '' });
+		expect((await queueMapImportanceOfVersion(t.db, networkId, versionId))!.id).toBe(job.id);
+		expect(await prepareMapImportance(t.db, store, { networkId, versionId, epsg: 32632 })).toEqual({ drawn: false, empty: false });
+		expect(await t.db('jobs').where({ kind: MAP_IMPORTANCE }).count({ n: '*' }).first()).toEqual({ n: 1 });
+
+		// 4. The CRS is the job's parameter: the same version for a web map (EPSG:3857) is its own image,
+		// whose bounds hold the surface's corners as proj4 puts them in web Mercator.
+		expect(await prepareMapImportance(t.db, store, { networkId, versionId, epsg: 3857 })).toEqual({ drawn: true, empty: false });
+		const merc = JSON.parse((await store.getBuffer(mapImportanceKeys(versionId, 3857).view)).toString('utf8'));
+		for (const [x, y] of [[cx - 1000, cy - 1000], [cx + 1000, cy + 1000]]) {
+			const [mx, my] = proj4(UTM32, 'EPSG:3857', [x, y]);
+			expect(mx).toBeGreaterThanOrEqual(merc.bounds[0] - 1e-6);
+			expect(mx).toBeLessThanOrEqual(merc.bounds[2] + 1e-6);
+			expect(my).toBeGreaterThanOrEqual(merc.bounds[1] - 1e-6);
+			expect(my).toBeLessThanOrEqual(merc.bounds[3] + 1e-6);
+		}
+		await t.db('jobs').del();
+		await t.db('importance_recipes').where({ id: recipeId }).del();
 		rmSync(dir, { recursive: true, force: true });
-	});
+	}, 180_000);
 
 	it('without importance, the latest ready layer preview is the backdrop, for roles that may view layers only', async () => {
 		const network = (await findNetwork(t.db, networkId))!;
@@ -162,13 +207,13 @@ describe('networkMap (service, test database)', () => {
 			{ network_id: networkId, name: 'failed', kind: 'other', status: 'failed', created_at: new Date('2026-05-01') }
 		]);
 		const newest = await t.db('layers').where({ network_id: networkId, name: 'newest' }).first();
-		const doc = await networkMap(t.db, { network, importance: noImportance, apiBase: '/api/v1/networks/9', mayViewLayers: true });
+		const doc = await networkMap(t.db, { network, importance: noImportance, cache: emptyStore, apiBase: '/api/v1/networks/9', mayViewLayers: true });
 		expect(doc.backdrop).toMatchObject({ kind: 'layer', label: 'newest', url: `/api/v1/networks/9/layers/${newest.id}/preview.png`, min: 0.05, max: 0.15 });
 		// The bounds hold the footprint corners projected with proj4.
 		const [xw, ys] = proj4('EPSG:4326', UTM32, [8.98, 51.98]);
 		expect(doc.backdrop!.bounds[0]).toBeLessThanOrEqual(xw + 1e-6);
 		expect(doc.backdrop!.bounds[1]).toBeCloseTo(Math.min(ys, proj4('EPSG:4326', UTM32, [9.02, 51.98])[1]), 6);
-		const forTechnician = await networkMap(t.db, { network, importance: noImportance, apiBase: '/api/v1/networks/9', mayViewLayers: false });
+		const forTechnician = await networkMap(t.db, { network, importance: noImportance, cache: emptyStore, apiBase: '/api/v1/networks/9', mayViewLayers: false });
 		expect(forTechnician.backdrop).toBeNull();
 		await t.db('layers').where({ network_id: networkId }).delete();
 	});
@@ -176,10 +221,10 @@ describe('networkMap (service, test database)', () => {
 	it('a network with nothing positioned has no map CRS and empty lists', async () => {
 		const admin = await makeMember(t.db, 'admin');
 		const [id] = await t.db('networks').insert({ organisation_id: admin.organisationId, slug: 'empty', name: 'Empty', description: '', public_text: '' });
-		const doc = await networkMap(t.db, { network: (await findNetwork(t.db, id))!, importance: noImportance, apiBase: '' });
+		const doc = await networkMap(t.db, { network: (await findNetwork(t.db, id))!, importance: noImportance, cache: emptyStore, apiBase: '' });
 		expect(doc.crs).toBeNull();
 		expect(doc.sensors).toEqual([]);
-		expect(await importancePng(t.db, (await findNetwork(t.db, id))!, noImportance)).toBeNull();
+		expect(await importancePng(t.db, (await findNetwork(t.db, id))!, noImportance, emptyStore)).toBeNull();
 	});
 
 	it('a grid in EPSG:3035 shows the same CRS on the map and in the sensor table', async () => {
@@ -189,14 +234,14 @@ describe('networkMap (service, test database)', () => {
 		await insertSensor(t.db, id, typeId, 'L1', 9.001, 52.002, 'active');
 		// Before any importance: the UTM zone of the study area (9°E 52°N: zone 32N), in both views.
 		let network = (await findNetwork(t.db, id))!;
-		expect((await networkMap(t.db, { network, importance: noImportance, apiBase: '' })).crs?.epsg).toBe(32632);
+		expect((await networkMap(t.db, { network, importance: noImportance, cache: emptyStore, apiBase: '' })).crs?.epsg).toBe(32632);
 		expect((await sensorPage(t.db, (await findNetwork(t.db, id))!, parseListQuery(new URLSearchParams()))).workingCrs).toBe(32632);
 		// A recipe version whose importance grid is in ETRS89-LAEA Europe (EPSG:3035) is put in use.
 		const [recipeId] = await t.db('importance_recipes').insert({ network_id: id, name: 'laea', latest_version: 1 });
 		const [versionId] = await t.db('importance_recipe_versions').insert({ recipe_id: recipeId, version: 1, definition: JSON.stringify({ layers: [] }), grid_epsg: 3035 });
 		await useRecipeVersion(t.db, id, admin.organisationId, admin.userId, versionId);
 		network = (await findNetwork(t.db, id))!;
-		const doc = await networkMap(t.db, { network, importance: noImportance, apiBase: '' });
+		const doc = await networkMap(t.db, { network, importance: noImportance, cache: emptyStore, apiBase: '' });
 		const page = await sensorPage(t.db, network, parseListQuery(new URLSearchParams()));
 		expect(doc.crs?.epsg).toBe(3035);
 		expect(page.workingCrs).toBe(3035);
@@ -213,7 +258,7 @@ describe('networkMap (service, test database)', () => {
 		// A working CRS the app has no definition for (stored before its definition was removed, say).
 		const [id] = await t.db('networks').insert({ organisation_id: admin.organisationId, slug: 'nocrs', name: 'No CRS', description: '', public_text: '', working_epsg: 99999 });
 		const network = (await findNetwork(t.db, id))!;
-		await expect(networkMap(t.db, { network, importance: noImportance, apiBase: '' })).rejects.toMatchObject({ status: 422, code: 'map_unavailable' });
-		await expect(importancePng(t.db, network, noImportance)).rejects.toMatchObject({ status: 422, code: 'map_unavailable' });
+		await expect(networkMap(t.db, { network, importance: noImportance, cache: emptyStore, apiBase: '' })).rejects.toMatchObject({ status: 422, code: 'map_unavailable' });
+		await expect(importancePng(t.db, network, noImportance, emptyStore)).rejects.toMatchObject({ status: 422, code: 'map_unavailable' });
 	});
 });

@@ -78,6 +78,18 @@ export interface MapDocument {
 	sensors: MapSensor[];
 	backdrop: MapBackdrop | null;
 	contours: MapContour[];
+	/**
+	 * The job drawing the importance map in this CRS while it is not ready (follow it with getJob,
+	 * then load the map again); null when the image is there or there is none to draw.
+	 */
+	importanceJob: MapImportanceJob | null;
+}
+
+export interface MapImportanceJob {
+	id: number;
+	state: Job['state'];
+	/** Why it failed (state 'failed'), for people. */
+	error: string | null;
 }
 
 export interface MapZone {

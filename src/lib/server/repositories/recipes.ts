@@ -20,6 +20,8 @@ export interface RecipeVersionRow {
 	definition: unknown;
 	note: string;
 	surface_key: string | null;
+	/** EPSG code of the surface's grid (null for versions stored before it was recorded). */
+	grid_epsg: number | null;
 	created_by: number | null;
 	created_by_name: string | null;
 	created_at: Date;
@@ -35,7 +37,7 @@ function parseVersion(row: Record<string, unknown>): RecipeVersionRow {
 function versionQuery(db: Db) {
 	return db('importance_recipe_versions as v')
 		.leftJoin('users as u', 'u.id', 'v.created_by')
-		.select('v.id', 'v.recipe_id', 'v.version', 'v.definition', 'v.note', 'v.surface_key', 'v.created_by', 'u.name as created_by_name', 'v.created_at');
+		.select('v.id', 'v.recipe_id', 'v.version', 'v.definition', 'v.note', 'v.surface_key', 'v.grid_epsg', 'v.created_by', 'u.name as created_by_name', 'v.created_at');
 }
 
 export async function listRecipes(db: Db, networkId: number): Promise<RecipeRow[]> {

@@ -21,6 +21,7 @@ import { LayerRejected } from '../layers/errors';
 import { renderPreview } from '../layers/preview';
 import { reprojectToGrid } from '../layers/reproject';
 import { newObjectKey, type ObjectStore } from '../storage/object-store';
+import type { ReadableStore } from '../storage/store-port';
 import { recordAudit } from '../repositories/audit';
 import { findLayer, type LayerRow } from '../repositories/layers';
 import {
@@ -83,6 +84,9 @@ async function readyLayer(db: Knex, networkId: number, layerId: string): Promise
 	return layer;
 }
 
+/** What reading a layer for a surface needs of its row (plain data: it crosses to a pool thread). */
+export type SurfaceLayer = Pick<LayerRow, 'id' | 'name' | 'band' | 'storage_key'>;
+
 /** The GeoTIFF reader, loaded on first use (see the same note in ./layers). */
 const inspectModule = () => import('../layers/inspect');
 
@@ -91,7 +95,7 @@ const inspectModule = () => import('../layers/inspect');
  * a band larger than that is averaged over f × f blocks of pixels (f = ⌈√(pixels / maxCells)⌉, the
  * factor targetGrid coarsens the finest layer by), so no layer is ever held at full size.
  */
-export async function layerGridBand(store: ObjectStore, layer: LayerRow, maxCells = MAX_SURFACE_CELLS): Promise<GridBand> {
+export async function layerGridBand(store: ReadableStore, layer: SurfaceLayer, maxCells = MAX_SURFACE_CELLS): Promise<GridBand> {
 	if (!layer.storage_key) throw new ServiceError(422, 'layer_not_ready', `Layer "${layer.name}" has no stored file.`);
 	const [{ toGridBand }, { openGeoTiff, RasterError }, { blockAverage }] = await Promise.all([inspectModule(), import('../../geo/geotiff'), import('../../geo/aggregate')]);
 	const reader = await store.openRanges(layer.storage_key);
@@ -137,12 +141,26 @@ export interface ComputedSurface {
 	max: number;
 }
 
-/** Validate a recipe against the network's ready layers and compute its surface. */
+/** The ready layers a recipe names, by the recipe's layer id (ServiceError 422 for a missing or unready one). */
+export async function recipeLayers(db: Knex, networkId: number, recipe: Recipe): Promise<Map<string, SurfaceLayer>> {
+	const layers = new Map<string, SurfaceLayer>();
+	for (const id of new Set(recipe.layers.map((l) => l.layerId))) {
+		const l = await readyLayer(db, networkId, id);
+		layers.set(id, { id: l.id, name: l.name, band: l.band, storage_key: l.storage_key });
+	}
+	return layers;
+}
+
+/** Validate a recipe against the network's ready layers and compute its surface (in this thread). */
 export async function computeSurface(db: Knex, store: ObjectStore, networkId: number, recipe: Recipe): Promise<ComputedSurface> {
-	const ids = [...new Set(recipe.layers.map((l) => l.layerId))];
+	return surfaceFromLayers(store, recipe, await recipeLayers(db, networkId, recipe));
+}
+
+/** The surface of a recipe from its layers (see recipeLayers): reading and CPU work only, no database. */
+export async function surfaceFromLayers(store: ReadableStore, recipe: Recipe, layers: ReadonlyMap<string, SurfaceLayer>): Promise<ComputedSurface> {
 	const bands = new Map<string, GridBand>();
-	for (const id of ids) bands.set(id, await layerGridBand(store, await readyLayer(db, networkId, id)));
-	const grid = targetGrid(ids.map((id) => bands.get(id)!));
+	for (const [id, layer] of layers) bands.set(id, await layerGridBand(store, layer));
+	const grid = targetGrid([...bands.values()]);
 	const aligned = new Map<string, GridBand>();
 	for (const [id, b] of bands) aligned.set(id, reprojectToGrid(b, grid));
 	let surface;
@@ -163,6 +181,36 @@ export async function computeSurface(db: Knex, store: ObjectStore, networkId: nu
 		if (v > max) max = v;
 	}
 	return { grid: surface.grid, data: surface.data, validCount: surface.validCount, min, max };
+}
+
+/** A computed surface in its stored form (encodeSurface), with its figures. */
+export interface EncodedSurface {
+	grid: GridSpec;
+	validCount: number;
+	min: number;
+	max: number;
+	bytes: Uint8Array;
+}
+
+/**
+ * Where the CPU work of a surface runs. Seeds, scripts and tests use localSurfaceRunner (this
+ * thread); jobs pass one that runs it in their heap-limited pool thread (jobs/kinds/surface-runner.ts),
+ * so a request never computes and a worker's own thread stays free.
+ */
+export interface SurfaceRunner {
+	surface(recipe: Recipe, layers: ReadonlyMap<string, SurfaceLayer>): Promise<EncodedSurface>;
+	preview(recipe: Recipe, layers: ReadonlyMap<string, SurfaceLayer>): Promise<RecipePreview>;
+}
+
+export function encodedSurface(s: ComputedSurface): EncodedSurface {
+	return { grid: s.grid, validCount: s.validCount, min: s.min, max: s.max, bytes: encodeSurface(s) };
+}
+
+export function localSurfaceRunner(store: ReadableStore): SurfaceRunner {
+	return {
+		surface: async (recipe, layers) => encodedSurface(await surfaceFromLayers(store, recipe, layers)),
+		preview: async (recipe, layers) => surfacePreview(await surfaceFromLayers(store, recipe, layers))
+	};
 }
 
 function parseOrFail(definition: unknown): Recipe {
@@ -197,9 +245,13 @@ export async function checkRecipe(db: Knex, networkId: number, definition: unkno
 }
 
 /** The importance map of a recipe, not saved: a PNG (moorland ramp over 0..1) and its figures. */
-export async function previewRecipe(db: Knex, store: ObjectStore, networkId: number, definition: unknown): Promise<RecipePreview> {
+export async function previewRecipe(db: Knex, store: ObjectStore, networkId: number, definition: unknown, runner: SurfaceRunner = localSurfaceRunner(store)): Promise<RecipePreview> {
 	const recipe = parseOrFail(definition);
-	const s = await computeSurface(db, store, networkId, recipe);
+	return runner.preview(recipe, await recipeLayers(db, networkId, recipe));
+}
+
+/** The preview image and figures of a computed surface. */
+export function surfacePreview(s: ComputedSurface): RecipePreview {
 	const preview = renderPreview({ width: s.grid.width, height: s.grid.height, data: s.data, nodata: null }, { range: { min: 0, max: 1 } });
 	let sum = 0;
 	for (const v of s.data) if (!Number.isNaN(v)) sum += v;
@@ -251,9 +303,9 @@ export function decodeSurface(bytes: Uint8Array): ComputedSurface {
 	return { grid: header.grid, data, validCount: header.validCount, min: header.min, max: header.max };
 }
 
-async function storeSurface(store: ObjectStore, s: ComputedSurface): Promise<string> {
+async function storeSurface(store: ObjectStore, s: EncodedSurface): Promise<string> {
 	const key = newObjectKey('importance');
-	await store.put(key, encodeSurface(s), { contentType: 'application/octet-stream' });
+	await store.put(key, s.bytes, { contentType: 'application/octet-stream' });
 	return key;
 }
 
@@ -314,14 +366,14 @@ export type SaveVersionInput = z.input<typeof saveVersionInput>;
  * versions are never touched. The surface is computed first (which checks every layer), stored,
  * and the version row cites it; when the transaction fails, the stored surface is removed again.
  */
-export async function saveRecipeVersion(db: Knex, store: ObjectStore, networkId: number, organisationId: number, actorId: number, input: SaveVersionInput): Promise<RecipeVersionView> {
+export async function saveRecipeVersion(db: Knex, store: ObjectStore, networkId: number, organisationId: number, actorId: number, input: SaveVersionInput, runner: SurfaceRunner = localSurfaceRunner(store)): Promise<RecipeVersionView> {
 	const parsed = saveVersionInput.safeParse(input);
 	if (!parsed.success) {
 		throw ServiceError.fromZod(parsed.error);
 	}
 	const { recipeId, name, note } = parsed.data;
 	const recipe = parseOrFail(parsed.data.definition);
-	const surface = await computeSurface(db, store, networkId, recipe);
+	const surface = await runner.surface(recipe, await recipeLayers(db, networkId, recipe));
 	const key = await storeSurface(store, surface);
 	try {
 		return await db.transaction(async (trx) => {
@@ -409,37 +461,54 @@ export class ImportancePending extends ServiceError {
  * false: then the recipe-version job that computes it is queued (once per stored state of the
  * version) and ImportancePending is thrown.
  */
-export async function recipeVersionImportance(db: Knex, store: ObjectStore, networkId: number, versionId: number, opts: { compute?: boolean } = {}): Promise<NetworkImportance | null> {
+export async function recipeVersionImportance(db: Knex, store: ObjectStore, networkId: number, versionId: number, opts: { compute?: boolean; runner?: SurfaceRunner } = {}): Promise<NetworkImportance | null> {
 	const version = await findVersion(db, networkId, versionId);
 	if (!version) return null;
-	let surface: ComputedSurface | null = null;
-	if (version.surface_key && (await store.exists(version.surface_key))) {
-		surface = decodeSurface(await store.getBuffer(version.surface_key));
-	}
-	if (!surface && opts.compute === false) {
+	let key: string | null = version.surface_key && (await store.exists(version.surface_key)) ? version.surface_key : null;
+	if (!key && opts.compute === false) {
 		const { queueVersionSurface } = await import('./recipe-versions');
 		const job = await queueVersionSurface(db, networkId, version.id, version.surface_key);
 		throw new ImportancePending(version.id, job.id);
 	}
-	if (!surface) {
-		surface = await computeSurface(db, store, networkId, parseOrFail(version.definition));
-		const key = await storeSurface(store, surface);
-		if (version.surface_key) {
-			// The cached object went missing: point the version at the new one.
-			await db('importance_recipe_versions').where({ id: version.id }).update({ surface_key: key });
-		} else if (!(await setSurfaceKey(db, version.id, key))) {
-			await store.delete(key); // another request cached it first
-		}
-	}
+	key ??= await computeVersionSurface(db, store, networkId, version, opts.runner ?? localSurfaceRunner(store));
+	return surfaceImportance(decodeSurface(await store.getBuffer(key)), version.id);
+}
+
+/** A decoded surface of recipe version `recipeVersionId` in the NetworkImportance shape. */
+export function surfaceImportance(surface: ComputedSurface, recipeVersionId: number): NetworkImportance {
 	return {
 		band: { grid: surface.grid, data: surface.data, nodata: null },
 		grid: surface.grid,
 		epsg: surface.grid.epsg,
-		recipeVersionId: version.id,
+		recipeVersionId,
 		validCount: surface.validCount,
 		min: surface.min,
 		max: surface.max
 	};
+}
+
+/**
+ * The storage key of a recipe version's surface, computing (with `runner`) and storing it when it
+ * is not stored; null when there is no such version. For jobs: the surface is never decoded here.
+ */
+export async function ensureVersionSurface(db: Knex, store: ObjectStore, networkId: number, versionId: number, runner: SurfaceRunner = localSurfaceRunner(store)): Promise<string | null> {
+	const version = await findVersion(db, networkId, versionId);
+	if (!version) return null;
+	if (version.surface_key && (await store.exists(version.surface_key))) return version.surface_key;
+	return computeVersionSurface(db, store, networkId, version, runner);
+}
+
+async function computeVersionSurface(db: Knex, store: ObjectStore, networkId: number, version: RecipeVersionRow, runner: SurfaceRunner): Promise<string> {
+	const recipe = parseOrFail(version.definition);
+	const key = await storeSurface(store, await runner.surface(recipe, await recipeLayers(db, networkId, recipe)));
+	if (version.surface_key) {
+		// The cached object went missing: point the version at the new one.
+		await db('importance_recipe_versions').where({ id: version.id }).update({ surface_key: key });
+		return key;
+	}
+	if (await setSurfaceKey(db, version.id, key)) return key;
+	await store.delete(key); // another job stored it first
+	return (await findVersion(db, networkId, version.id))!.surface_key!;
 }
 
 /** The surface in the RasterBand form of src/lib/geo/geotiff.ts (for the aggregation into a working grid: bandSource in src/lib/geo/aggregate.ts). */

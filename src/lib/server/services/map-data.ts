@@ -9,17 +9,18 @@
  * the proj4 string, to show lon/lat under the cursor).
  *
  * The importance image and its contours are derived from a recipe version's surface, which never
- * changes: they are computed once per (recipe version, working CRS) and kept in the object store,
- * so every app process shares them and a map view decodes the surface at most once, on a miss.
- * Raster and contour code lives in src/lib/map, geometry in src/lib/geo/geometry, queries in the
- * repositories.
+ * changes: a `map-importance` job draws them once per (recipe version, CRS) and keeps them in the
+ * object store (services/map-importance.ts), so every app process shares them. A request never
+ * draws: it reads the stored view, or queues that job and answers at once with everything else,
+ * the job in `importanceJob` for the page to follow (GET …/jobs/{id}) until the image is ready.
+ * Raster and contour code lives in src/lib/map and server/map, geometry in src/lib/geo/geometry,
+ * queries in the repositories.
  */
 import { CrsError, crsDefinition, transformer, type PointTransform } from '../../geo/crs';
 import { boundsOf, labelPosition, padBounds, unionBounds, type Bounds, type Position, type Ring } from '../../geo/geometry';
 import { legendStops } from '../../importance/colour-ramp';
-import { contourLevels, contourLines } from '../../map/contours';
-import { coarsen, MapRasterError, rasterBounds, resampleToMap, valueRange, type SurfaceLike } from '../../map/raster';
-import { rampPng } from '../layers/preview';
+import type { ImportanceView } from '../map/importance-image';
+import { jobView } from '../jobs/queue';
 import type { Db } from '../db';
 import { latestPreviewedLayer } from '../repositories/layers';
 import type { NetworkRow } from '../repositories/networks';
@@ -32,26 +33,20 @@ import { exclusionList } from './areas';
 import { ServiceError } from './errors';
 import { workingCrs } from './working-crs';
 import { currentZoneSet, sensorsInZones } from './zones';
+import { MapImportancePending, queueMapImportance, readMapImportancePng, readMapImportanceView } from './map-importance';
 
-import type { MapBackdrop, MapContour, MapDocument, MapRings, MapSensor, MapZone } from '../../api/client';
+import type { MapBackdrop, MapContour, MapDocument, MapImportanceJob, MapRings, MapSensor, MapZone } from '../../api/client';
 
-/** Longest side of the importance image, in cells. */
-const IMAGE_SIZE = 512;
-/** Longest side of the grid the contours are cut from, in cells. */
-const CONTOUR_SIZE = 160;
-const CONTOUR_COUNT = 4;
-
-/** The network's importance: which recipe version is in use, and its surface (read only on a cache miss). */
+/** The network's importance: which recipe version is in use (its image is drawn by a job, never here). */
 export interface ImportanceSource {
 	versionId(networkId: number): Promise<number | null>;
-	surface(networkId: number): Promise<SurfaceLike | null>;
 }
 
 export interface MapInputs {
 	network: NetworkRow;
 	importance: ImportanceSource;
-	/** Where the derived image and contours are kept across processes; without it they are computed per request. */
-	cache?: ObjectStore;
+	/** The object store that holds the drawn importance images (services/map-importance.ts). */
+	cache: ObjectStore;
 	/** Base of the network's API URLs, e.g. /api/v1/networks/7. */
 	apiBase: string;
 	/**
@@ -61,58 +56,20 @@ export interface MapInputs {
 	mayViewLayers?: boolean;
 }
 
-/** What the map shows of an importance surface in one CRS: bounds, value range, contours. */
-interface ImportanceView {
-	bounds: Bounds;
-	min: number;
-	max: number;
-	contours: MapContour[];
-}
-
-function cacheKeys(versionId: number, epsg: number) {
-	const base = `map-importance/recipe-version-${versionId}-epsg-${epsg}`;
-	return { view: `${base}.json`, png: `${base}.png` };
-}
-
-/** Computes the view and image of a surface in the map CRS (null when the surface holds no value). */
-function renderImportance(surface: SurfaceLike, epsg: number): { view: ImportanceView; png: Buffer } | null {
-	let raster;
-	try {
-		raster = resampleToMap(surface, epsg, IMAGE_SIZE);
-	} catch (e) {
-		if (e instanceof MapRasterError || e instanceof CrsError) throw new ServiceError(422, 'map_unavailable', `The importance surface cannot be drawn on the map: ${e.message}.`);
-		throw e;
-	}
-	const range = valueRange(raster.values);
-	if (!range) return null;
-	return {
-		view: { bounds: rasterBounds(raster), min: range.min, max: range.max, contours: contourLines(coarsen(raster, CONTOUR_SIZE), contourLevels(range.min, range.max, CONTOUR_COUNT)) },
-		png: rampPng(raster.values, raster.width, raster.height, range.min, range.max, 'moorland')
-	};
-}
+type ImportanceState = { state: 'none' } | { state: 'ready'; versionId: number; view: ImportanceView } | { state: 'pending'; job: MapImportanceJob };
 
 /**
- * The importance view and image of the network's recipe version in use, in the map CRS: from the
- * cache when there, else computed from the surface and cached (image first, then the view that
- * marks the pair complete). Null when the network has no importance surface.
+ * The importance of the network's recipe version in use, in the map CRS: the stored view when
+ * drawn; else its map-importance job, queued now if there is none (never drawn here). 'none' when
+ * the network has no recipe version in use, or its surface holds no value in this CRS.
  */
-async function importanceIn(networkId: number, epsg: number, importance: ImportanceSource, cache: ObjectStore | undefined, want: 'view' | 'png'): Promise<{ view: ImportanceView; png: Buffer | null } | null> {
+async function importanceIn(db: Db, networkId: number, epsg: number, importance: ImportanceSource, cache: ObjectStore): Promise<ImportanceState> {
 	const versionId = await importance.versionId(networkId);
-	if (versionId === null) return null;
-	const keys = cacheKeys(versionId, epsg);
-	if (cache && (await cache.exists(keys.view))) {
-		const view = JSON.parse((await cache.getBuffer(keys.view)).toString('utf8')) as ImportanceView;
-		return { view, png: want === 'png' ? await cache.getBuffer(keys.png) : null };
-	}
-	const surface = await importance.surface(networkId);
-	if (!surface || !crsDefinition(surface.grid.epsg)) return null;
-	const rendered = renderImportance(surface, epsg);
-	if (!rendered) return null;
-	if (cache) {
-		await cache.put(keys.png, rendered.png, { contentType: 'image/png' });
-		await cache.put(keys.view, Buffer.from(JSON.stringify(rendered.view)), { contentType: 'application/json' });
-	}
-	return rendered;
+	if (versionId === null) return { state: 'none' };
+	const view = await readMapImportanceView(cache, versionId, epsg);
+	if (view) return 'empty' in view ? { state: 'none' } : { state: 'ready', versionId, view };
+	const job = jobView(await queueMapImportance(db, { networkId, versionId, epsg }));
+	return { state: 'pending', job: { id: job.id, state: job.state, error: job.error } };
 }
 
 /** The network's working CRS for the map; a CRS the app cannot draw in is the user's to fix. */
@@ -131,7 +88,7 @@ const project = (polygons: readonly (readonly Ring[])[], fwd: PointTransform): R
 /** The document's flat ring list (even-odd), each ring without its closing position. */
 const flatRings = (polygons: readonly (readonly Ring[])[]): MapRings => polygons.flatMap((rings) => rings.map((r) => r.slice(0, -1)));
 
-/** Assembles the map document from the database (read-only), the importance source and the cache. */
+/** Assembles the map document from the database and the stored importance images (it writes nothing but, on a miss, the image's job). */
 export async function networkMap(db: Db, inputs: MapInputs): Promise<MapDocument> {
 	const { network, apiBase } = inputs;
 	const [zoneSet, types, { rows: sensorRows }, crs] = await Promise.all([
@@ -145,7 +102,7 @@ export async function networkMap(db: Db, inputs: MapInputs): Promise<MapDocument
 		zoneSet: zoneSet ? { id: zoneSet.id, name: zoneSet.name, kind: zoneSet.kind } : null,
 		sensorTypes: types.map((t) => ({ id: t.id, name: t.name, radiusM: Number(t.radius_m), mobility: t.mobility }))
 	};
-	if (!crs) return { ...base, crs: null, extent: null, studyArea: [], exclusions: [], zones: [], sensors: [], backdrop: null, contours: [] };
+	if (!crs) return { ...base, crs: null, extent: null, studyArea: [], exclusions: [], zones: [], sensors: [], backdrop: null, contours: [], importanceJob: null };
 	const fwd = crs.forward;
 
 	const studyArea = project(asMultiPolygon(network.study_area)?.coordinates ?? [], fwd);
@@ -166,12 +123,12 @@ export async function networkMap(db: Db, inputs: MapInputs): Promise<MapDocument
 
 	let backdrop: MapBackdrop | null = null;
 	let contours: MapContour[] = [];
-	const imp = await importanceIn(network.id, crs.epsg, inputs.importance, inputs.cache, 'view');
-	if (imp) {
+	const imp = await importanceIn(db, network.id, crs.epsg, inputs.importance, inputs.cache);
+	if (imp.state === 'ready') {
 		const { bounds, min, max } = imp.view;
 		backdrop = { kind: 'importance', label: 'Importance', url: `${apiBase}/map/importance.png`, bounds, min, max, legend: legendStops(min, max), approximate: false };
 		contours = imp.view.contours;
-	} else if (inputs.mayViewLayers) {
+	} else if (imp.state === 'none' && inputs.mayViewLayers) {
 		backdrop = await layerBackdrop(db, network.id, crs.epsg, fwd, apiBase);
 	}
 	const sensorPoints: Position[] = sensors.map((s) => [s.x, s.y]);
@@ -185,7 +142,8 @@ export async function networkMap(db: Db, inputs: MapInputs): Promise<MapDocument
 		zones,
 		sensors,
 		backdrop,
-		contours
+		contours,
+		importanceJob: imp.state === 'pending' ? imp.job : null
 	};
 }
 
@@ -201,10 +159,19 @@ async function layerBackdrop(db: Db, networkId: number, epsg: number, fwd: Point
 	return { kind: 'layer', label: layer.name, url: `${apiBase}/layers/${layer.id}/preview.png`, bounds, min, max, legend: legendStops(Math.min(min, max), Math.max(min, max)), approximate: layer.epsg !== epsg };
 }
 
-/** The importance image for the map, or null when the network has no importance surface. */
-export async function importancePng(db: Db, network: NetworkRow, importance: ImportanceSource, cache?: ObjectStore): Promise<Buffer | null> {
+/**
+ * The importance image for the map, or null when the network has no importance surface (or it holds
+ * no value in the map CRS). Not drawn yet: its job is queued and MapImportancePending (409
+ * importance_pending) thrown; a job that failed gives its reason (422 map_unavailable).
+ */
+export async function importancePng(db: Db, network: NetworkRow, importance: ImportanceSource, cache: ObjectStore): Promise<Buffer | null> {
 	const crs = await mapCrs(db, network);
 	if (!crs) return null;
-	const imp = await importanceIn(network.id, crs.epsg, importance, cache, 'png');
-	return imp?.png ?? null;
+	const versionId = await importance.versionId(network.id);
+	if (versionId === null) return null;
+	const view = await readMapImportanceView(cache, versionId, crs.epsg);
+	if (view) return 'empty' in view ? null : readMapImportancePng(cache, versionId, crs.epsg);
+	const job = await queueMapImportance(db, { networkId: network.id, versionId, epsg: crs.epsg });
+	if (job.state === 'failed') throw new ServiceError(422, 'map_unavailable', job.error ?? 'The importance map could not be drawn.');
+	throw new MapImportancePending(job);
 }

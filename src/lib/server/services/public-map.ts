@@ -10,6 +10,7 @@ import type { Db } from '../db';
 import { transformer, type PointTransform } from '../../geo/crs';
 import type { MapBounds, MapLegendStop, MapRings } from '$lib/api/client';
 import type { NetworkRow } from '../repositories/networks';
+import type { ObjectStore } from '../storage/object-store';
 import { networkMap, importancePng, type ImportanceSource } from './map-data';
 import type { RevisionMetrics, RevisionOutputs } from './placement';
 import { ServiceError } from './errors';
@@ -49,6 +50,8 @@ export interface PublicMap {
 	sensorTypes: { name: string; radiusM: number; count: number; footprint: Footprint }[];
 	coverage: { sensorCount: number; coverage: number | null; p95DistanceM: number | null; zones: { name: string; importanceShare: number | null; sensors: number }[] };
 	importance: { url: string; bounds: MapBounds; min: number; max: number; legend: MapLegendStop[] } | null;
+	/** The importance overlay is being drawn (a job); it appears on a later look. */
+	importancePending: boolean;
 }
 
 const SLUG = /^[a-z0-9]+(?:-[a-z0-9]+)*$/;
@@ -95,10 +98,10 @@ async function candidateSites(db: Db, networkId: number): Promise<{ sites: Candi
 	return { sites, plan: { approvedAt: new Date(plan.approved_at).toISOString(), metrics: parse(plan.metrics) as RevisionMetrics } };
 }
 
-export async function publicMap(db: Db, slug: string, importance: ImportanceSource): Promise<PublicMap> {
+export async function publicMap(db: Db, slug: string, importance: ImportanceSource, cache: ObjectStore): Promise<PublicMap> {
 	const network = await findPublishedNetwork(db, slug);
 	const apiBase = `/api/v1/public/networks/${network.slug}`;
-	const doc = await networkMap(db, { network, importance, apiBase, mayViewLayers: false });
+	const doc = await networkMap(db, { network, importance, cache, apiBase, mayViewLayers: false });
 	const { sites: candidates, plan } = await candidateSites(db, network.id);
 	const grid = network.public_grid_m && network.public_grid_m > 0 ? network.public_grid_m : null;
 	let sites: PublicSite[] = [];
@@ -139,7 +142,8 @@ export async function publicMap(db: Db, slug: string, importance: ImportanceSour
 			p95DistanceM: plan ? plan.metrics.p95DistanceM : null,
 			zones: plan ? plan.metrics.zones.map((z) => ({ name: zoneShares.get(z.id)?.name || z.id, importanceShare: zoneShares.get(z.id)?.importanceShare ?? null, sensors: z.sensors })) : []
 		},
-		importance: b ? { url: `${apiBase}/importance.png`, bounds: b.bounds, min: b.min, max: b.max, legend: b.legend } : null
+		importance: b ? { url: `${apiBase}/importance.png`, bounds: b.bounds, min: b.min, max: b.max, legend: b.legend } : null,
+		importancePending: doc.importanceJob !== null && (doc.importanceJob.state === 'queued' || doc.importanceJob.state === 'running')
 	};
 }
 
@@ -177,9 +181,9 @@ const BUILT_MAX = 64;
  * The public map, built once per change of what it is made of: each request costs one small query
  * (`publicMapFingerprint`); a plan approved, a task done, a publish setting or the network changed
  * (in any process) gives another fingerprint and the map is built again. A map built while its
- * importance surface is still being computed is not kept, so the overlay appears once it is ready.
+ * importance image is still being drawn (its job) is not kept, so the overlay appears once it is ready.
  */
-export async function cachedPublicMap(db: Db, slug: string, importance: ImportanceSource): Promise<PublicMap> {
+export async function cachedPublicMap(db: Db, slug: string, importance: ImportanceSource, cache: ObjectStore): Promise<PublicMap> {
 	const f = await publicMapFingerprint(db, slug);
 	if (!f) {
 		built.delete(slug);
@@ -187,7 +191,7 @@ export async function cachedPublicMap(db: Db, slug: string, importance: Importan
 	}
 	const hit = built.get(slug);
 	if (hit && hit.fingerprint === f.fingerprint) return hit.map;
-	const map = await publicMap(db, slug, importance);
+	const map = await publicMap(db, slug, importance, cache);
 	if (map.importance || !f.hasRecipe) {
 		built.delete(slug);
 		if (built.size >= BUILT_MAX) built.delete(built.keys().next().value!);
@@ -197,9 +201,9 @@ export async function cachedPublicMap(db: Db, slug: string, importance: Importan
 }
 
 /** The importance overlay PNG of a published network (404 when unpublished or without importance). */
-export async function publicImportancePng(db: Db, slug: string, importance: ImportanceSource): Promise<Buffer> {
+export async function publicImportancePng(db: Db, slug: string, importance: ImportanceSource, cache: ObjectStore): Promise<Buffer> {
 	const network = await findPublishedNetwork(db, slug);
-	const png = await importancePng(db, network, importance);
+	const png = await importancePng(db, network, importance, cache);
 	if (!png) throw new ServiceError(404, 'not_found', 'This map has no importance overlay.');
 	return png;
 }

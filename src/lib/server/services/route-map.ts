@@ -8,10 +8,11 @@ import type { NetworkRow } from '../repositories/networks';
 import { boundsOf, padBounds } from '../../geo/geometry';
 import { networkMap, type ImportanceSource } from './map-data';
 import type { TaskView } from './field-tasks';
+import type { ObjectStore } from '../storage/object-store';
 
-export async function routeMap(db: Db, network: NetworkRow, tasks: readonly TaskView[], importance: ImportanceSource) {
+export async function routeMap(db: Db, network: NetworkRow, tasks: readonly TaskView[], importance: ImportanceSource, cache: ObjectStore) {
 	if (tasks.length === 0) return null;
-	const doc = await networkMap(db, { network, importance, apiBase: `/api/v1/networks/${network.id}` });
+	const doc = await networkMap(db, { network, importance, cache, apiBase: `/api/v1/networks/${network.id}` });
 	if (!doc.crs) return null;
 	const fwd = transformer(4326, doc.crs.epsg).forward;
 	const dots = tasks.map((t) => {

@@ -19,19 +19,31 @@ import { asMultiPolygon } from '../../geo/polygons';
 export async function settleWorkingCrs(db: Db, networkId: number): Promise<number | null> {
 	const facts = await workingCrsFacts(db, networkId);
 	if (!facts) return null;
+	const epsg = decideFromFacts(facts);
+	await setWorkingEpsg(db, networkId, epsg);
+	return epsg;
+}
+
+/**
+ * The working CRS the network would have with a recipe version of grid CRS `gridEpsg` in use (the
+ * same rule; nothing stored): where a version's map image is drawn before anyone chooses it.
+ */
+export async function workingCrsWith(db: Db, networkId: number, gridEpsg: number | null): Promise<number | null> {
+	const facts = await workingCrsFacts(db, networkId);
+	return facts ? decideFromFacts({ ...facts, gridEpsg }) : null;
+}
+
+function decideFromFacts(facts: NonNullable<Awaited<ReturnType<typeof workingCrsFacts>>>): number | null {
 	const area = asMultiPolygon(facts.studyArea);
 	const box = (area && boundsOf([], area.coordinates)) ?? facts.sensorBox;
 	const centreLonLat: [number, number] | null = box ? [(box[0] + box[2]) / 2, (box[1] + box[3]) / 2] : null;
-	let epsg: number | null;
 	try {
-		epsg = decideWorkingCrs({ explicit: facts.crsEpsg, gridEpsg: facts.gridEpsg, centreLonLat });
+		return decideWorkingCrs({ explicit: facts.crsEpsg, gridEpsg: facts.gridEpsg, centreLonLat });
 	} catch (e) {
 		// Outside the UTM grid (polar) with no explicit choice: no working CRS until one is chosen.
-		if (e instanceof CrsError) epsg = null;
-		else throw e;
+		if (e instanceof CrsError) return null;
+		throw e;
 	}
-	await setWorkingEpsg(db, networkId, epsg);
-	return epsg;
 }
 
 /** The network's working CRS (EPSG code), deciding and storing it the first time; null when it cannot be decided yet. */

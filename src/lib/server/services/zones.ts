@@ -39,7 +39,7 @@ import { CellSizeError } from '../../geo/cell-size';
 import type { RasterBand } from '../../geo/geotiff';
 import { ImportanceError } from '../../importance/grid';
 import type { ObjectStore } from '../storage';
-import { networkImportance, surfaceRasterBand } from './importance';
+import { networkImportance, surfaceRasterBand, type NetworkImportance } from './importance';
 import { exclusionList } from './areas';
 import { workingCrs } from './working-crs';
 import { ServiceError } from './errors';
@@ -206,6 +206,22 @@ function sharesOfMap(grid: WorkingGrid, map: ZoneMap): (number | null)[] {
  */
 export const ZONE_CELL_BUDGET = 250_000;
 
+/** Where the importance grid for zones lies: the working CRS, clipped to the study area, exclusions at zero. */
+export interface ZoneGridOptions {
+	crs: number | null;
+	studyArea?: Position[][][];
+	exclusions: Position[][][];
+}
+
+export async function zoneGridOptions(db: Knex, network: NetworkRow): Promise<ZoneGridOptions> {
+	const area = asMultiPolygon(network.study_area);
+	return {
+		crs: await workingCrs(db, network),
+		studyArea: area?.coordinates?.length ? area.coordinates : undefined,
+		exclusions: exclusionList(network.exclusions).map((f) => f.geometry.coordinates).flat()
+	};
+}
+
 /**
  * The importance surface on the working grid that zones are measured and computed on: the same
  * mass-preserving aggregation and cell-size rule as a placement run's grid (aggregateToWorkingGrid,
@@ -228,42 +244,56 @@ export async function zoneImportanceGrid(band: RasterBand, opts: Pick<WorkingGri
 	return { ...grid, mass };
 }
 
+/** zoneImportanceGrid of a recipe version's surface (pure CPU work; ServiceError 422 when it cannot be built). */
+export async function zoneImportanceOfSurface(imp: NetworkImportance, opts: ZoneGridOptions): Promise<WorkingGrid> {
+	try {
+		return await zoneImportanceGrid(surfaceRasterBand(imp), opts);
+	} catch (e) {
+		throw importanceUnavailable(e);
+	}
+}
+
+function importanceUnavailable(e: unknown): unknown {
+	// A recipe that cannot be computed (a layer gone, a grid outside the study area …): say so.
+	if (e instanceof ImportanceError || e instanceof WorkingGridError || e instanceof CrsError || e instanceof CellSizeError) {
+		return new ServiceError(422, 'importance_unavailable', `The importance cannot be measured: ${e.message}`);
+	}
+	return e;
+}
+
 /**
- * The network's importance (its chosen recipe version) on the zones' working grid
- * (zoneImportanceGrid: aggregated, study area and exclusions as shares of cells); null when no
- * recipe version is chosen yet.
+ * The network's importance (its chosen recipe version) on the working grid, clipped to the study
+ * area and with exclusions at zero; null when no recipe version is chosen yet. In the calling
+ * thread (seeds, tests, the placement job's preparation); the zones job does the same in a pool thread.
  */
 export async function importanceForZones(db: Knex, store: ObjectStore, network: NetworkRow): Promise<ImportanceSurface | null> {
+	let imp;
 	try {
-		const imp = await networkImportance(db, store, network.id);
-		if (!imp) return null;
-		const area = asMultiPolygon(network.study_area);
-		const opts = {
-			crs: await workingCrs(db, network),
-			studyArea: area?.coordinates?.length ? area.coordinates : undefined,
-			exclusions: exclusionList(network.exclusions).map((f) => f.geometry.coordinates).flat()
-		};
-		const grid = await zoneImportanceGrid(surfaceRasterBand(imp), opts);
-		return { grid, recipeVersionId: imp.recipeVersionId };
+		imp = await networkImportance(db, store, network.id);
 	} catch (e) {
-		// A recipe that cannot be computed (a layer gone, a grid outside the study area …): say so.
-		if (e instanceof ImportanceError || e instanceof WorkingGridError || e instanceof CrsError || e instanceof CellSizeError) {
-			throw new ServiceError(422, 'importance_unavailable', `The importance cannot be measured: ${e.message}`);
-		}
-		throw e;
+		throw importanceUnavailable(e);
 	}
+	if (!imp) return null;
+	return { grid: await zoneImportanceOfSurface(imp, await zoneGridOptions(db, network)), recipeVersionId: imp.recipeVersionId };
 }
 
 /** Re-measure the shares of a zone set against the current importance (or clear them). */
 export async function measureZoneSet(db: Knex, network: NetworkRow, actorId: number, zoneSetId: number, importance: ImportanceSurface | null): Promise<void> {
+	const set = await findZoneSet(db, network.id, zoneSetId);
+	if (!set) throw new ServiceError(404, 'not_found', 'No such zone set.');
+	const zones = await listZones(db, [set.id]);
+	const shares = importance ? zoneShares(importance.grid, zones.map((z) => z.geometry)) : zones.map(() => null);
+	await storeZoneShares(db, network, actorId, zoneSetId, zones.map((z) => z.id), shares, importance?.recipeVersionId ?? null);
+}
+
+/** Stores measured shares (one per zone id, in order) of a zone set, with the recipe version they came from. */
+export async function storeZoneShares(db: Knex, network: NetworkRow, actorId: number, zoneSetId: number, zoneIds: readonly number[], shares: readonly (number | null)[], recipeVersionId: number | null): Promise<void> {
 	await db.transaction(async (trx) => {
 		const set = await findZoneSet(trx, network.id, zoneSetId);
 		if (!set) throw new ServiceError(404, 'not_found', 'No such zone set.');
-		const zones = await listZones(trx, [set.id]);
-		const shares = importance ? zoneShares(importance.grid, zones.map((z) => z.geometry)) : zones.map(() => null);
-		await setZoneShares(trx, zones.map((z, k) => ({ id: z.id, share: shares[k] })));
-		await trx('zone_sets').where({ id: set.id }).update({ recipe_version_id: importance?.recipeVersionId ?? null });
-		await recordAudit(trx, { organisationId: network.organisation_id, actorUserId: actorId, action: 'zone_set.measure', objectType: 'zone_set', objectId: set.id, after: { recipe_version_id: importance?.recipeVersionId ?? null } });
+		await setZoneShares(trx, zoneIds.map((id, k) => ({ id, share: shares[k] })));
+		await trx('zone_sets').where({ id: set.id }).update({ recipe_version_id: recipeVersionId });
+		await recordAudit(trx, { organisationId: network.organisation_id, actorUserId: actorId, action: 'zone_set.measure', objectType: 'zone_set', objectId: set.id, after: { recipe_version_id: recipeVersionId } });
 	});
 }
 
@@ -338,18 +368,26 @@ export async function createGridZoneSet(db: Knex, network: NetworkRow, actorId: 
 
 export async function createComputedZoneSet(db: Knex, network: NetworkRow, actorId: number, name: string, k: number, importance: ImportanceSurface | null): Promise<number> {
 	if (!importance) throw new ServiceError(422, 'no_importance', 'Zones can be computed once an importance recipe is chosen.', 'k');
+	return storeComputedZoneSet(db, network, actorId, name, k, computeZoneSet(importance.grid, k), importance.recipeVersionId);
+}
+
+/** K zones from an importance grid (k-means), traced to polygons, with their shares: pure CPU work. */
+export function computeZoneSet(grid: WorkingGrid, k: number): { zones: NewZone[]; shares: (number | null)[] } {
 	let map: ZoneMap;
 	try {
-		map = computeZones(importance.grid, k);
+		map = computeZones(grid, k);
 	} catch (e) {
 		if (e instanceof EngineInputError) throw new ServiceError(422, 'invalid_input', e.message, 'k');
 		throw e;
 	}
-	const geometries = traceZoneMap(importance.grid, map);
-	const shares = sharesOfMap(importance.grid, map);
-	const zones = map.ids.map((id, z) => ({ code: id, name: `Zone ${z + 1}`, geometry: geometries[z] })).filter((z) => z.geometry.coordinates.length > 0);
-	const keptShares = map.ids.map((_, z) => shares[z]).filter((_, z) => geometries[z].coordinates.length > 0);
-	return storeZoneSet(db, network, actorId, { name: name || `${k} computed zones`, kind: 'computed', params: { k } }, zones, keptShares, importance.recipeVersionId);
+	const geometries = traceZoneMap(grid, map);
+	const shares = sharesOfMap(grid, map);
+	const kept = map.ids.map((_, z) => z).filter((z) => geometries[z].coordinates.length > 0);
+	return { zones: kept.map((z) => ({ code: map.ids[z], name: `Zone ${z + 1}`, geometry: geometries[z] })), shares: kept.map((z) => shares[z]) };
+}
+
+export async function storeComputedZoneSet(db: Knex, network: NetworkRow, actorId: number, name: string, k: number, computed: { zones: NewZone[]; shares: (number | null)[] }, recipeVersionId: number | null): Promise<number> {
+	return storeZoneSet(db, network, actorId, { name: name || `${k} computed zones`, kind: 'computed', params: { k } }, computed.zones, computed.shares, recipeVersionId);
 }
 
 export async function useZoneSet(db: Knex, network: NetworkRow, actorId: number, zoneSetId: number | null): Promise<void> {

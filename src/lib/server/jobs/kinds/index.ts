@@ -9,12 +9,14 @@ import { recipePreviewKind } from './recipe-preview';
 import { zonesKind } from './zones';
 import { recipeVersionKind } from './recipe-version';
 import { proposalRunKind } from './proposal-run';
+import { mapImportanceKind } from './map-importance';
 
 export { LAYER_PROCESSING, type LayerProcessingPayload } from './layer-processing';
 export { PLACEMENT, type PlacementPayload } from './placement';
 export { RECIPE_PREVIEW } from '../../services/recipe-previews';
 export { ZONE_WORK } from '../../services/zone-jobs';
 export { RECIPE_VERSION } from '../../services/recipe-versions';
+export { MAP_IMPORTANCE } from '../../services/map-importance';
 
 export function registerBuiltInJobKinds(): void {
 	registerJobKind(layerProcessingKind);
@@ -23,4 +25,5 @@ export function registerBuiltInJobKinds(): void {
 	registerJobKind(zonesKind);
 	registerJobKind(recipeVersionKind);
 	registerJobKind(proposalRunKind);
+	registerJobKind(mapImportanceKind);
 }

@@ -1,6 +1,7 @@
 import { error } from '@sveltejs/kit';
 import type { PageServerLoad } from './$types';
 import { getDb } from '$lib/server/db';
+import { getObjectStore } from '$lib/server/storage/app-store';
 import { appOrigin } from '$lib/server/mail/origin';
 import { ServiceError } from '$lib/server/services/errors';
 import { cachedPublicMap } from '$lib/server/services/public-map';
@@ -9,7 +10,7 @@ import { importanceSource } from '../../../api/v1/networks/[id=id]/map/importanc
 // Public: no sign-in. Only the public map's own fields reach the page (see services/public-map).
 export const load = (async (event) => {
 	try {
-		const map = await cachedPublicMap(getDb(), event.params.slug, importanceSource());
+		const map = await cachedPublicMap(getDb(), event.params.slug, importanceSource(), getObjectStore());
 		return { map, shareUrl: `${appOrigin()}/map/${map.network.slug}` };
 	} catch (e) {
 		if (e instanceof ServiceError && e.status === 404) error(404, 'No such public map.');

@@ -2,6 +2,7 @@ import { randomUUID } from 'node:crypto';
 import { fail, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { getDb } from '$lib/server/db';
+import { getObjectStore } from '$lib/server/storage/app-store';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { ServiceError } from '$lib/server/services/errors';
 import { applyTaskUpdate, currentTasks, fieldSettings } from '$lib/server/services/field-tasks';
@@ -36,7 +37,7 @@ export const load = (async (event) => {
 		toleranceM: (await fieldSettings(db, network.id)).installToleranceM,
 		// Read today (UTC day) by this technician, on any device.
 		cautionsAcknowledged: await cautionsAcknowledged(db, network.id, actor.id),
-		map: await routeMap(db, network, active, importanceSource()),
+		map: await routeMap(db, network, active, importanceSource(), getObjectStore()),
 		photos: await photosOfTasks(db, network.id, active.map((t) => t.id))
 	};
 }) satisfies PageServerLoad;

@@ -1,6 +1,7 @@
 import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
+import { getObjectStore } from '$lib/server/storage/app-store';
 import { apiHandler } from '$lib/server/api/errors';
 import { cachedPublicMap } from '$lib/server/services/public-map';
 import { importanceSource } from '../../../networks/[id=id]/map/importance-source';
@@ -11,6 +12,6 @@ import { importanceSource } from '../../../networks/[id=id]/map/importance-sourc
  * An unpublished or unknown network is a 404.
  */
 export const GET: RequestHandler = apiHandler(async (event) => {
-	const map = await cachedPublicMap(getDb(), event.params.slug ?? '', importanceSource());
+	const map = await cachedPublicMap(getDb(), event.params.slug ?? '', importanceSource(), getObjectStore());
 	return json(map, { headers: { 'cache-control': 'public, max-age=60' } });
 });
