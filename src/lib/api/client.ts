@@ -123,6 +123,9 @@ export interface MapBackdrop {
 	kind: 'importance' | 'layer';
 	label: string;
 	url: string;
+	/** The CRS of the image and its bounds: the working CRS, or EPSG:3857 for the web maps. */
+	epsg: number;
+	/** [minX, minY, maxX, maxY] in `epsg` (unlike the document's other geometry, which is in the working CRS). */
 	bounds: MapBounds;
 	min: number;
 	max: number;
