@@ -143,6 +143,71 @@ test('with BASEMAP_URL set, the web maps show its tiles under our layers, with t
 	await context.close();
 });
 
+test('with BASEMAP_URL set, the public map and the technician’s route become web maps over the tiles; without JavaScript the public map stays the server’s SVG', async ({ browser }) => {
+	test.setTimeout(120_000);
+	const base = process.env.BASEMAP_BASE_URL;
+	const template = process.env.BASEMAP_URL;
+	if (!base || !template) throw new Error('BASEMAP_BASE_URL and BASEMAP_URL are not set: run through npm test');
+	const tileOrigin = new URL(template.replace(/\{[zxy]\}/g, '0')).origin;
+	const api = await browser.newContext({ baseURL: base });
+	const withRadius = (await (await api.request.get(`/api/v1/public/networks/${DEMO_NETWORK.slug}`)).json()).sites as { radiusM: number }[];
+	await api.close();
+
+	for (const width of [1440, 360]) {
+		const anon = await browser.newContext({ baseURL: base, viewport: { width, height: width === 360 ? 780 : 1000 } });
+		let tiles = 0;
+		await anon.route(`${tileOrigin}/**`, (route) => {
+			tiles++;
+			return route.fulfill({ status: 200, contentType: 'image/png', body: TILE });
+		});
+		const page = await anon.newPage();
+		await page.goto(`/map/${DEMO_NETWORK.slug}`);
+		const web = page.getByTestId('web-map');
+		await expect(web).toHaveClass(/leaflet-container/, { timeout: 30_000 });
+		await expect(page.getByTestId('static-map')).toHaveCount(0);
+		await expect.poll(() => web.locator('.cf-basemap img.leaflet-tile-loaded').count()).toBeGreaterThan(0);
+		await expect(web.locator('.leaflet-control-attribution')).toHaveText('© Test tiles for Cairnfield');
+		// One disk per site with a sensing radius, drawn as a polygon; the importance overlay loaded.
+		await expect(web.locator('path.cf-disk')).toHaveCount(withRadius.filter((s) => s.radiusM > 0).length);
+		await expect.poll(() => web.locator('img.cf-backdrop').evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth > 0), { timeout: 30_000 }).toBe(true);
+		expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(width);
+		expect(tiles).toBeGreaterThan(0);
+		await page.getByTestId('public-map').locator('figure').scrollIntoViewIfNeeded();
+		await page.screenshot({ path: path.join(shots, `public-${width}-basemap.png`) });
+		await anon.close();
+	}
+
+	// Without JavaScript: the server's SVG map, and no tile asked for.
+	const noJs = await browser.newContext({ baseURL: base, javaScriptEnabled: false });
+	let tiles = 0;
+	await noJs.route(`${tileOrigin}/**`, (route) => {
+		tiles++;
+		return route.abort();
+	});
+	const plain = await noJs.newPage();
+	await plain.goto(`/map/${DEMO_NETWORK.slug}`);
+	await expect(plain.getByTestId('static-map')).toBeVisible();
+	await expect(plain.getByTestId('web-map')).toBeHidden();
+	await plain.waitForLoadState('networkidle');
+	expect(tiles).toBe(0);
+	await noJs.close();
+
+	// The technician's route at 360 px: numbered dots over the tiles.
+	const tech = await browser.newContext({ baseURL: base, viewport: { width: 360, height: 780 } });
+	await tech.route(`${tileOrigin}/**`, (route) => route.fulfill({ status: 200, contentType: 'image/png', body: TILE }));
+	const tp = await tech.newPage();
+	await signInPage(tp, demoUser('technician').email, demoUser('technician').password);
+	await tp.goto(`/networks/${networkId}/field`);
+	const route = tp.getByTestId('web-map');
+	await expect(route).toHaveClass(/leaflet-container/, { timeout: 30_000 });
+	await expect.poll(() => route.locator('.cf-basemap img.leaflet-tile-loaded').count()).toBeGreaterThan(0);
+	await expect(route.locator('.cf-web-label').first()).toHaveText(/^\d+$/);
+	expect(await tp.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(360);
+	await route.scrollIntoViewIfNeeded();
+	await tp.screenshot({ path: path.join(shots, 'route-360-basemap.png') });
+	await tech.close();
+});
+
 /** Records every request of the context (pages and the service worker) that leaves our origin. */
 function recordForeign(context: BrowserContext, origin: string): { all: string[]; foreign: string[] } {
 	const seen = { all: [] as string[], foreign: [] as string[] };

@@ -140,6 +140,16 @@ export interface MapContour {
 	lines: MapPoint[][];
 }
 
+/**
+ * What a server-drawn map (working CRS, SVG) needs to become a web map in the browser when the
+ * deployment sets a basemap: the working CRS's proj4 definition and the importance overlay in
+ * EPSG:3857 (null without importance).
+ */
+export interface WebMapExtras {
+	proj4: string;
+	overlay: { url: string; epsg: number; bounds: MapBounds } | null;
+}
+
 // (map types end)
 
 // ---- Background jobs (types) ------------------------------------------------------------

@@ -7,6 +7,7 @@ import { recordAudit } from '$lib/server/repositories/audit';
 import { ServiceError } from '$lib/server/services/errors';
 import { applyTaskUpdate, currentTasks, fieldSettings } from '$lib/server/services/field-tasks';
 import { routeMap } from '$lib/server/services/route-map';
+import { basemapSettings } from '$lib/server/http/basemap';
 import { photosOfTasks } from '$lib/server/services/field-photos';
 import { updateFromForm } from '$lib/field/update-form';
 import { importanceSource } from '../../../../api/v1/networks/[id=id]/map/importance-source';
@@ -38,7 +39,7 @@ export const load = (async (event) => {
 		})),
 		toleranceM: (await fieldSettings(db, network.id)).installToleranceM,
 		cautionsAcknowledged: event.cookies.get(ACK_COOKIE) === `${actor.id}:${today()}`,
-		map: await routeMap(db, network, active, importanceSource()),
+		map: await routeMap(db, network, active, importanceSource(), { web: basemapSettings() !== null }),
 		photos: await photosOfTasks(db, network.id, active.map((t) => t.id))
 	};
 }) satisfies PageServerLoad;

@@ -5,7 +5,7 @@ import { apiHandler, ApiError } from '$lib/server/api/errors';
 import { networkAccess } from '$lib/server/auth/network-access';
 import { importancePng } from '$lib/server/services/map-data';
 import { importanceSource } from '../importance-source';
-import { imageEpsgParam } from '../image-epsg';
+import { imageEpsgParam } from '$lib/server/http/image-epsg';
 
 /**
  * GET /api/v1/networks/:id/map/importance.png[?epsg=3857]: the importance surface coloured with the
