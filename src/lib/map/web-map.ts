@@ -78,8 +78,8 @@ export function webProjection(workingProj4: string): WebProjection {
 	};
 }
 
-/** Vertices of a sensing disk's outline: a circle of `radiusM` working-CRS metres around `centre`, as lon/lat. */
-export const DISK_SEGMENTS = 72;
+/** Vertices of a sensing disk's outline: smooth at a few hundred pixels across (4° a segment). */
+export const DISK_SEGMENTS = 90;
 
 /**
  * The outline of a disk of `radiusM` metres around `centre` (working-CRS metres), computed in the

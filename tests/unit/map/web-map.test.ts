@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import geodesic from 'geographiclib-geodesic';
 import proj4 from 'proj4';
 import { crsDefinition } from '../../../src/lib/geo/crs';
-import { backdropLonLatBounds, diskOutline, lonLatBounds, lonLatToWebMercator, webMercatorToLonLat, webProjection, WebMapError } from '../../../src/lib/map/web-map';
+import { backdropLonLatBounds, DISK_SEGMENTS, diskOutline, lonLatBounds, lonLatToWebMercator, webMercatorToLonLat, webProjection, WebMapError } from '../../../src/lib/map/web-map';
 
 // GeographicLib's geodesic on WGS 84 is the oracle for ground distances (geographiclib-geodesic, as
 // src/lib/geo/geodesic.ts uses it; called directly here, not through our wrapper).
@@ -47,7 +47,7 @@ describe('diskOutline (sensing disks on the web map)', () => {
 		it(`keeps a ${radius} m disk true to scale: every vertex lies ${radius} m from the centre by the WGS 84 geodesic`, () => {
 			const c = P.toLonLat(centre);
 			const ring = diskOutline(centre, radius, P.toLonLat);
-			expect(ring).toHaveLength(72);
+			expect(ring).toHaveLength(DISK_SEGMENTS);
 			for (const v of ring) {
 				// UTM's point scale stays within 0.9996–1.0010 inside a zone (common practice, no source): 0.15 %.
 				expect(Math.abs(ground(c, v) - radius) / radius).toBeLessThan(1.5e-3);
