@@ -10,6 +10,11 @@ export type { BasemapView };
 /** Zoom beyond the tile server's highest level enlarges its tiles (a sensor site needs a close look). */
 export const WEB_MAP_MAX_ZOOM = 21;
 
+/** The deployment's basemap from the page data (the root layout sends it to every page), or null when off. */
+export function pageBasemap(data: Record<string, unknown>): BasemapView | null {
+	return (data.basemap as BasemapView | null | undefined) ?? null;
+}
+
 /** Plain text as HTML (Leaflet's attribution control takes HTML). */
 export function attributionHtml(text: string): string {
 	return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c] as string);
