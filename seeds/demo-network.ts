@@ -1,6 +1,6 @@
 /**
  * The demo network's content, loaded from data/demo/ through the same services that an analyst's
- * uploads use: the study area and exclusions, both rasters, an importance recipe version in use,
+ * uploads use: the study area and exclusions, the three rasters, an importance recipe version in use,
  * the sub-catchment zone set with its measured shares, and the 14 sensors.
  *
  * Each stage is its own function, checks first and does nothing when its part is already there,
@@ -23,24 +23,30 @@ import type { ObjectStore } from '../src/lib/server/storage/object-store';
 const demoDir = path.resolve(import.meta.dirname, '../data/demo');
 const demoFile = (name: string) => readFileSync(path.join(demoDir, name));
 
-/** The two rasters of data/demo/, under the names the demo network shows. */
+/** The three rasters of data/demo/, under the names the demo network shows. */
 export const DEMO_LAYERS = [
 	{ name: 'Soil moisture (satellite, 1 km)', kind: 'soil_moisture', units: 'm³/m³', platform: 'satellite', fileName: 'soil-moisture.tif' },
-	{ name: 'Vegetation index (drone survey, 30 m)', kind: 'vegetation_index', units: '', platform: 'drone', fileName: 'vegetation-index.tif' }
+	{ name: 'Vegetation index (drone survey, 30 m)', kind: 'vegetation_index', units: '', platform: 'drone', fileName: 'vegetation-index.tif' },
+	{ name: 'Terrain height (elevation model, 100 m)', kind: 'elevation', units: 'm', platform: 'model', fileName: 'terrain-height.tif' }
 ] as const;
 
 /**
  * The recipe in use: drier ground counts more (probes are most wanted where the soil dries first),
- * and so does ground where moisture changes over a few kilometres. Both steps read the 1 km soil
- * moisture, which covers the whole catchment; the drone survey covers only a corner of it, so it
- * is loaded for looking at but left out of the recipe.
+ * so does ground where moisture changes over a few kilometres, and so does higher ground, which
+ * drains and dries before the valley floor. The soil moisture and the terrain model cover the
+ * whole catchment; the terrain model's 100 m cells are the finest of the recipe, so the
+ * importance surface, and with it the working grid of a placement, has 100 m cells (with the
+ * soil moisture alone both would have 1 km cells, coarser than a probe's reach). The drone
+ * survey covers only a corner of the catchment (a recipe layer without data makes the surface
+ * empty there), so it is loaded for looking at but left out of the recipe.
  */
 export const DEMO_RECIPE = {
 	name: 'Dry ground and its variability',
-	note: 'Demo recipe: drier soil first, then where moisture varies within 3 km.',
+	note: 'Demo recipe: drier soil first, then where moisture varies within 3 km, then higher ground.',
 	steps: [
 		{ layer: 0, transform: 'invert', weight: 2 },
-		{ layer: 0, transform: 'variability', weight: 1, params: { distanceM: 3000 } }
+		{ layer: 0, transform: 'variability', weight: 1, params: { distanceM: 3000 } },
+		{ layer: 2, transform: 'identity', weight: 1 }
 	]
 } as const;
 

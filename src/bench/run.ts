@@ -7,11 +7,13 @@ export {};
 const suites: Record<string, () => Promise<{ run: (args: string[]) => Promise<void> }>> = {
 	lloyd: () => import('./lloyd'),
 	ingest: () => import('./ingest'),
-	jobs: () => import('./jobs')
+	jobs: () => import('./jobs'),
+	'public-map': () => import('./public-map')
 };
 
 const wanted = process.argv.slice(2).filter((a) => !a.startsWith('-'));
-const names = wanted.length > 0 ? wanted : Object.keys(suites);
+// public-map needs a running app, so it runs only when named.
+const names = wanted.length > 0 ? wanted : Object.keys(suites).filter((n) => n !== 'public-map');
 for (const name of names) {
 	const load = suites[name];
 	if (!load) {

@@ -134,6 +134,20 @@ test('in a 360 px window the technician reads the cautions, sees the route in or
 	await page.screenshot({ path: '/tmp/field-360-cautions.png', fullPage: false });
 	await page.getByRole('button', { name: 'I have read the cautions' }).click();
 	await expect(page.getByTestId('cautions-acknowledged')).toBeVisible();
+	// Stored for the technician (not in a cookie of this browser), with an audit entry: a second
+	// device of theirs does not ask again today.
+	const technician = await db('users').select('id').where({ email: u.email }).first();
+	const acks = await db('field_caution_acknowledgements').select(db.raw("DATE_FORMAT(day, '%Y-%m-%d') AS day"), 'acknowledged_at').where({ network_id: networkId, user_id: technician.id });
+	expect(acks).toHaveLength(1);
+	expect(acks[0].day).toBe(new Date().toISOString().slice(0, 10));
+	expect(await db('audit_log').where({ action: 'cautions.acknowledge', object_id: networkId, actor_user_id: technician.id })).toHaveLength(1);
+	const other = await browser.newContext({ viewport: { width: 360, height: 780 } });
+	const otherPage = await other.newPage();
+	await signInPage(otherPage, u.email, u.password);
+	await gotoHydrated(otherPage, `/networks/${networkId}/field`);
+	await expect(otherPage.getByTestId('cautions-acknowledged')).toBeVisible();
+	await expect(otherPage.getByTestId('cautions')).toHaveCount(0);
+	await other.close();
 	const cards = page.getByTestId('task-card');
 	await expect(cards.first()).toContainText('Done');
 	await expect(page.locator('[data-testid="task-card"][data-state="blocked"]')).toContainText(DEMO_FIELD.blockedReason);
@@ -275,7 +289,22 @@ test('the demo on a fresh start: the demo technician has a route with tasks done
 	const anon = await contextFor(null);
 	const map = await anon.get(`/api/v1/public/networks/${DEMO_NETWORK.slug}`);
 	expect(map.status()).toBe(200);
-	expect((await map.json()).plan.approvedAt).toEqual(expect.any(String));
+	const body = await map.json();
+	expect(body.plan.approvedAt).toEqual(expect.any(String));
+	// The demo's two cosmic-ray neutron sensors (footprint radius about 130–240 m, Köhli et al. 2015)
+	// have their own symbol and legend entry; their disks are drawn to the map's scale.
+	const area = (body.sites as { footprint: string; radiusM: number }[]).filter((x) => x.footprint === 'area');
+	expect(area).toHaveLength(2);
+	expect(body.sensorTypes.filter((x: { footprint: string }) => x.footprint === 'area').map((x: { name: string }) => x.name)).toEqual(['cosmic-ray neutron sensor']);
+	const html = await (await anon.get(`/map/${DEMO_NETWORK.slug}`, { headers: { accept: 'text/html' } })).text();
+	expect(html.match(/data-symbol="area"/g)).toHaveLength(2);
+	expect(html).toMatch(/<li[^>]*data-footprint="area"[^>]*>[\s\S]*?cosmic-ray neutron sensor, large footprint/);
+	// SVG units per metre: the drawing is 1000 units across the map's extent (StaticMapSvg).
+	const unitsPerM = 1000 / (body.extent[2] - body.extent[0]);
+	const radii = [...html.matchAll(/<circle[^>]*\sr="([\d.]+)"[^>]*data-footprint="area"/g)].map((x) => Number(x[1]));
+	expect(radii).toHaveLength(2);
+	// Written with one decimal: within 0.05 units of the true radius.
+	for (const r of radii) expect(Math.abs(r - area[0].radiusM * unitsPerM)).toBeLessThanOrEqual(0.05 + 1e-9);
 	await anon.dispose();
 	await tech.dispose();
 });
@@ -298,5 +327,40 @@ test('the printable task sheet lists the route with the cautions; printed, it sh
 	await expect(page.getByRole('heading', { name: /^Task sheet/ })).toBeVisible();
 	await page.screenshot({ path: '/tmp/field-print.png', fullPage: true });
 	await tech.dispose();
+	await context.close();
+});
+
+test('every technician page fits a 360 px screen: no horizontal scrolling, no element wider than the viewport', async ({ browser }) => {
+	const context = await browser.newContext({ viewport: { width: 360, height: 780 } });
+	const page = await context.newPage();
+	const u = demoUser('technician');
+	await signInPage(page, u.email, u.password);
+	const pages = ['/networks', `/networks/${networkId}`, `/networks/${networkId}/field`, `/networks/${networkId}/field/print`, '/profile', `/map/${slug}`];
+	for (const path of pages) {
+		const res = await page.goto(path);
+		expect(res?.status(), path).toBe(200);
+		const width = await page.evaluate(() => document.documentElement.scrollWidth);
+		// Elements whose box reaches past the right edge (visible ones; the drawing inside an SVG is
+		// clipped to the SVG's own box, so only the SVG counts).
+		const wide = await page.evaluate(() =>
+			[...document.querySelectorAll('body *')]
+				.filter((e) => {
+					if (e.parentElement?.closest('svg')) return false;
+					const r = e.getBoundingClientRect();
+					return r.width > 0 && r.right > innerWidth + 0.5 && getComputedStyle(e).visibility !== 'hidden';
+				})
+				.map((e) => `${e.tagName.toLowerCase()}.${[...e.classList].join('.')} ${Math.round(e.getBoundingClientRect().right)}px`)
+				.slice(0, 5)
+		);
+		expect(wide, path).toEqual([]);
+		expect(width, path).toBeLessThanOrEqual(360);
+	}
+	// The public map's scale label is readable on the phone: text at least 12 CSS px tall (a common
+	// floor for legible body text on phones; common practice, no source).
+	await page.goto(`/map/${slug}`);
+	const label = await page.locator('[data-testid="static-map"] .scale-label').boundingBox();
+	expect(label!.height).toBeGreaterThanOrEqual(12);
+	await page.goto(`/networks/${networkId}/field/print`);
+	await page.screenshot({ path: '/tmp/field-360-print.png', fullPage: true });
 	await context.close();
 });

@@ -79,8 +79,9 @@ test('the JSON API: proposals, runs, revisions, submit, four eyes, one winner, t
 	// Two sensors added: 13 taking part (data/demo/sensors.csv: 14, one faulty) + 2 = 15 sites, two of them installations.
 	expect(revision.targets.features).toHaveLength(15);
 	expect(revision.installations).toHaveLength(2);
-	// The demo surface's pixels are 1 km (data/demo/README.md), coarser than 1/10 of the probes' 30 m: the pixels decide, and the revision says so.
-	expect(revision.inputs.cellSize).toMatchObject({ rule: 'pixel', chosenM: 1000, smallestRadiusM: 30, requestedM: null });
+	// The surface here is the soil moisture alone, whose pixels are 1 km (data/demo/README.md), coarser than 1/10 of the
+	// smallest radius taking part (the neutron sensors' 150 m; the demo probes' is 1 km, seeds/demo-inventory.ts): the pixels decide, and the revision says so.
+	expect(revision.inputs.cellSize).toMatchObject({ rule: 'pixel', chosenM: 1000, smallestRadiusM: 150, requestedM: null });
 
 	// A draft cannot be decided; the analyst cannot review at all; the author submits.
 	expect((await reviewer.post(`${base}/revisions/${revision.id}/reviews`, { data: { decision: 'approve', comment: '' } })).status()).toBe(409);

@@ -13,7 +13,7 @@ import { currentPlanView, decideRevision, submitRevision } from '../../src/lib/s
 import { applyTaskUpdate, assignTasks, currentTasks, contiguousShares, tasksGpx, type TaskView } from '../../src/lib/server/services/field-tasks';
 import { findSensor } from '../../src/lib/server/repositories/sensors';
 import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpers/db';
-import { generalise, publicImportancePng, publicMap } from '../../src/lib/server/services/public-map';
+import { cachedPublicMap, generalise, publicImportancePng, publicMap } from '../../src/lib/server/services/public-map';
 import { networkImportance } from '../../src/lib/server/services/importance';
 import type { ImportanceSource } from '../../src/lib/server/services/map-data';
 import { networkRecipeVersionId } from '../../src/lib/server/repositories/recipes';
@@ -22,6 +22,7 @@ import { fsTestStore, type TestStore } from './layers-support';
 import { checkGpx } from '../helpers/gpx-rules';
 import { PNG } from 'pngjs';
 import { addTaskPhoto, photosOfTasks, readTaskPhoto } from '../../src/lib/server/services/field-photos';
+import { acknowledgeCautions, cautionsAcknowledged } from '../../src/lib/server/services/field-cautions';
 
 /**
  * The headers of a baseline JPEG of `w` × `h` pixels: SOI, a JFIF APP0 segment (JFIF 1.02), a SOF0
@@ -254,6 +255,60 @@ describe('field tasks', () => {
 		expect(listed[task.id].map((p) => p.id)).toEqual([a.photo.id, b.photo.id]);
 	});
 
+	it('a photo queued offline and sent again under its key (twice at once, then after the task moved on) is stored once and answers the first photo; other bytes under the key are refused', async () => {
+		const task = (await currentTasks(t.db, net.network.id, { assigneeId: techA.id })).find((x) => x.state === 'open')!;
+		expect(task).toBeTruthy();
+		const png = new PNG({ width: 4, height: 3 });
+		png.data.fill(90);
+		const bytes = new Uint8Array(PNG.sync.write(png));
+		const rowsBefore = Number((await t.db('field_task_photos').count({ n: '*' }).first())!.n);
+		const keysBefore = (await s.keys()).length;
+		// The queue's first try lost its answer and a second tab sent it too: both arrive at once.
+		const [x, y] = await Promise.all([
+			addTaskPhoto(t.db, s.store, net.network, techA, task.id, bytes, 'queued-photo-0001'),
+			addTaskPhoto(t.db, s.store, net.network, techA, task.id, bytes, 'queued-photo-0001')
+		]);
+		expect(x.photo.id).toBe(y.photo.id);
+		expect([x.replayed, y.replayed].sort()).toEqual([false, true]);
+		// The task moves on (blocked); the queue sends the photo once more: the same first answer.
+		await applyTaskUpdate(t.db, net.network, techA, task.id, 'queued-photo-block', { state: 'blocked', reason: 'Gate locked' });
+		const z = await addTaskPhoto(t.db, s.store, net.network, techA, task.id, bytes, 'queued-photo-0001');
+		expect(z).toEqual({ photo: x.photo, replayed: true });
+		// Another photo under the same key is not the same request.
+		const other = new PNG({ width: 4, height: 3 });
+		other.data.fill(10);
+		await expect(addTaskPhoto(t.db, s.store, net.network, techA, task.id, new Uint8Array(PNG.sync.write(other)), 'queued-photo-0001')).rejects.toMatchObject({ status: 422, code: 'idempotency_key_reused' });
+		// Stored once: one row, one object, one audit entry.
+		expect(Number((await t.db('field_task_photos').count({ n: '*' }).first())!.n)).toBe(rowsBefore + 1);
+		expect((await s.keys()).length).toBe(keysBefore + 1);
+		expect(await t.db('audit_log').where({ action: 'task.photo', object_id: task.id }).whereRaw("JSON_VALUE(`after`, '$.photoId') = ?", [String(x.photo.id)])).toHaveLength(1);
+	});
+
+	it('cautions: one acknowledgement per technician, network and UTC day, with an audit entry; a late-sent one counts for its own day; bad dates refused', async () => {
+		const now = new Date('2026-12-02T09:30:00Z');
+		const first = await acknowledgeCautions(t.db, net.network, techA, { acknowledgedAt: '2026-12-02T07:15:00+01:00' }, now);
+		expect(first).toEqual({ replayed: false, acknowledgement: { networkId: net.network.id, day: '2026-12-02', acknowledgedAt: '2026-12-02T06:15:00.000Z' } });
+		// Again the same day (another device, a re-sent queue): the first one, nothing written twice.
+		expect(await acknowledgeCautions(t.db, net.network, techA, {}, now)).toEqual({ ...first, replayed: true });
+		const [both] = await Promise.all([acknowledgeCautions(t.db, net.network, techB, {}, now), acknowledgeCautions(t.db, net.network, techB, {}, now)]);
+		expect(both.acknowledgement.day).toBe('2026-12-02');
+		expect(await t.db('field_caution_acknowledgements').where({ network_id: net.network.id, day: '2026-12-02' })).toHaveLength(2);
+		expect(await t.db('audit_log').where({ action: 'cautions.acknowledge', object_id: net.network.id, actor_user_id: techA.id })).toHaveLength(1);
+		expect(await t.db('audit_log').where({ action: 'cautions.acknowledge', object_id: net.network.id, actor_user_id: techB.id })).toHaveLength(1);
+		// Read offline late on 1 December (UTC), sent the next morning: it counts for the 1st, not today.
+		const late = await acknowledgeCautions(t.db, net.network, techA, { acknowledgedAt: '2026-12-01T23:50:00Z' }, now);
+		expect(late.acknowledgement.day).toBe('2026-12-01');
+		expect(await cautionsAcknowledged(t.db, net.network.id, techA.id, '2026-12-01')).toBe(true);
+		expect(await cautionsAcknowledged(t.db, net.network.id, techA.id, '2026-12-03')).toBe(false);
+		// A moment in the future (a wrong clock), more than a week old, or not a date: refused, nothing written.
+		const rows = (await t.db('field_caution_acknowledgements').count({ n: '*' }).first())!.n;
+		await expect(acknowledgeCautions(t.db, net.network, techA, { acknowledgedAt: '2026-12-02T10:00:00Z' }, now)).rejects.toMatchObject({ status: 400, field: 'acknowledgedAt' });
+		await expect(acknowledgeCautions(t.db, net.network, techA, { acknowledgedAt: '2026-11-20T10:00:00Z' }, now)).rejects.toMatchObject({ status: 422, code: 'too_old' });
+		await expect(acknowledgeCautions(t.db, net.network, techA, { acknowledgedAt: 'this morning' }, now)).rejects.toMatchObject({ status: 400 });
+		await expect(acknowledgeCautions(t.db, net.network, techA, { userId: techB.id }, now)).rejects.toMatchObject({ status: 400 });
+		expect((await t.db('field_caution_acknowledgements').count({ n: '*' }).first())!.n).toBe(rows);
+	});
+
 	it('a newer approved plan cancels the open tasks of the one it supersedes, says why, and tells the technicians', async () => {
 		const old = await currentTasks(t.db, net.network.id);
 		const oldPlan = old[0].planId;
@@ -294,6 +349,25 @@ describe('field tasks', () => {
 		expect(m.sites).toHaveLength(targets.length);
 		expect(m.importance?.url).toBe(`/api/v1/public/networks/${slug}/importance.png`);
 		expect(await publicImportancePng(t.db, slug, importance)).toBeInstanceOf(Buffer);
+		// Neutron sensors (footprint radius about 130–240 m, Köhli et al. 2015) are large-footprint
+		// sensors with their own symbol; the probes of the demo (a 30 m siting radius) are point probes.
+		expect(m.sensorTypes.length).toBeGreaterThan(0);
+		for (const type of m.sensorTypes) expect([type.name, type.footprint]).toEqual([type.name, /neutron/.test(type.name) ? 'area' : 'point']);
+		for (const site of m.sites) expect(site.footprint).toBe(m.sensorTypes.find((x) => x.name === site.type)!.footprint);
+
+		// Built once while nothing changes: the same object; a change of what it shows is seen at once.
+		const cached = await cachedPublicMap(t.db, slug, importance);
+		expect(cached).toEqual(m);
+		expect(await cachedPublicMap(t.db, slug, importance)).toBe(cached);
+		const done = await t.db('field_tasks').select('id', 'installed_lon', 'installed_lat').where({ network_id: net.network.id, state: 'done' }).whereNotNull('installed_lon').first();
+		if (done) {
+			await t.db('field_tasks').where({ id: done.id }).update({ installed_lon: Number(done.installed_lon) + 0.0001 });
+			expect(await cachedPublicMap(t.db, slug, importance)).not.toBe(cached);
+			await t.db('field_tasks').where({ id: done.id }).update({ installed_lon: done.installed_lon });
+		}
+		await t.db('networks').where({ id: net.network.id }).update({ public_text: 'Soil moisture in the Vale, updated.' });
+		expect((await cachedPublicMap(t.db, slug, importance)).network.publicText).toBe('Soil moisture in the Vale, updated.');
+		await t.db('networks').where({ id: net.network.id }).update({ public_text: 'Soil moisture in the Vale.' });
 
 		// Nothing private: no serial, sensor code, e-mail address, person, note or task field.
 		const text = JSON.stringify(m);
@@ -322,7 +396,9 @@ describe('field tasks', () => {
 		}
 		const exact = m.sites.map((p) => generalise(p.x, p.y, 500).join()).sort();
 		expect(g.sites.map((p) => [p.x, p.y].join()).sort()).toEqual(exact);
+		expect(await cachedPublicMap(t.db, slug, importance)).toEqual(g);
 		await t.db('networks').where({ id: net.network.id }).update({ publication: 'private', public_grid_m: null });
 		await expect(publicMap(t.db, slug, importance)).rejects.toMatchObject({ status: 404 });
+		await expect(cachedPublicMap(t.db, slug, importance)).rejects.toMatchObject({ status: 404 });
 	}, 120_000);
 });

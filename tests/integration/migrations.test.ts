@@ -3,7 +3,7 @@ import { readdirSync } from 'node:fs';
 import { migrationConfig } from '../../src/lib/server/db/knex';
 import { createTestDatabase, migrationsDir, type TestDb } from '../helpers/db';
 
-const expectedTables = ['field_tasks', 'field_task_updates', 'field_task_photos', 'jobs', 'proposals', 'revisions', 'reviews', 'plans', 'layers', 'importance_recipes', 'importance_recipe_versions', 'sensor_types', 'sensors', 'zone_sets', 'zones', 'organisations', 'users', 'memberships', 'networks', 'audit_log', 'outbox_messages', 'invitations', 'password_resets', 'sign_in_attempts', 'verification_tokens'];
+const expectedTables = ['field_tasks', 'field_task_updates', 'field_task_photos', 'field_caution_acknowledgements', 'jobs', 'proposals', 'revisions', 'reviews', 'plans', 'layers', 'importance_recipes', 'importance_recipe_versions', 'sensor_types', 'sensors', 'zone_sets', 'zones', 'organisations', 'users', 'memberships', 'networks', 'audit_log', 'outbox_messages', 'invitations', 'password_resets', 'sign_in_attempts', 'verification_tokens'];
 
 async function tables(t: TestDb): Promise<string[]> {
 	const rows = await t.db('information_schema.tables').select('table_name as name').where('table_schema', t.name);

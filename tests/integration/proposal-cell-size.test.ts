@@ -2,10 +2,11 @@
  * A proposal run's working grid on the demo network follows the cell-size rule of the command
  * line, an explicit cell size overrides it, and the revision records the choice.
  *
- * The demo surface is the soil-moisture layer: 1 km pixels in EPSG:32754 (data/demo/README.md;
- * `gdalinfo data/demo/soil-moisture.tif`: Pixel Size = (1000,-1000)). The smallest radius taking
- * part is the probe's 30 m (seeds/demo-inventory.ts). By the rule, 30 m / 10 = 3 m and the budget's
- * √(area / 10⁶) ≈ 27 m are both finer than the pixels, so the pixels decide: 1000 m.
+ * The surface of this network is the soil-moisture layer alone: 1 km pixels in EPSG:32754
+ * (data/demo/README.md; `gdalinfo data/demo/soil-moisture.tif`: Pixel Size = (1000,-1000)). The
+ * smallest radius taking part is the neutron sensors' 150 m (the demo probes stand for 1 km,
+ * seeds/demo-inventory.ts). By the rule, 150 m / 10 = 15 m and the budget's √(area / 10⁶) ≈ 27 m
+ * are both finer than the pixels, so the pixels decide: 1000 m.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeThreadPools, registerJobKind, runQueuedJobs } from '../../src/lib/server/jobs';
@@ -50,10 +51,10 @@ describe('the working grid of a proposal run', () => {
 
 	it('without a cell size, takes the rule’s size for the smallest radius taking part, and records why', async () => {
 		const r = await runToRevision({});
-		expect(r.inputs.cellSize).toMatchObject({ rule: 'pixel', chosenM: 1000, pixelM: 1000, smallestRadiusM: 30, requestedM: null, budgetCells: 1_000_000 });
+		expect(r.inputs.cellSize).toMatchObject({ rule: 'pixel', chosenM: 1000, pixelM: 1000, smallestRadiusM: 150, requestedM: null, budgetCells: 1_000_000 });
 		expect(r.inputs.cellSize!.reason).toMatch(/pixel size \(1000 m\)/);
 		expect(r.inputs.grid.cellSizeM).toBe(1000);
-		expect(Math.min(...r.inputs.sensors.map((x) => x.radiusM))).toBe(30);
+		expect(Math.min(...r.inputs.sensors.map((x) => x.radiusM))).toBe(150);
 	}, 120_000);
 
 	it('follows the sensors taking part: new sensors of a 20 km type alone give cells of 1/10 of that radius', async () => {
@@ -66,7 +67,7 @@ describe('the working grid of a proposal run', () => {
 
 	it('an explicit cell size overrides the rule and is recorded', async () => {
 		const r = await runToRevision({ cellSize: 2500 });
-		expect(r.inputs.cellSize).toMatchObject({ rule: 'requested', chosenM: 2500, requestedM: 2500, smallestRadiusM: 30 });
+		expect(r.inputs.cellSize).toMatchObject({ rule: 'requested', chosenM: 2500, requestedM: 2500, smallestRadiusM: 150 });
 		expect(r.parameters.cellSize).toBe(2500);
 		expect(r.inputs.grid.cellSizeM).toBe(2500);
 		// The same study area at 2.5 times the cell side needs about 1/2.5 of the cells across.

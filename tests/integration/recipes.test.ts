@@ -13,7 +13,7 @@ import {
 	targetGrid,
 	useRecipeVersion
 } from '../../src/lib/server/services/importance';
-import { buildWorkingGrid } from '../../src/lib/geo/working-grid';
+import { aggregateToWorkingGrid, bandSource } from '../../src/lib/geo/aggregate';
 import { createTestDatabase, jsonValue, makeMember, type TestDb } from '../helpers/db';
 import { demoFile, geotiffOf, STORES, streamOf, type TestStore } from './layers-support';
 
@@ -158,8 +158,8 @@ for (const makeStore of STORES) {
 			expect((await t.db('importance_recipe_versions').where({ id: v.id }).first()).surface_key).toBe(cached);
 			expect((await s.keys()).length).toBe(keysAfterFirst); // nothing new stored
 
-			// The RasterBand form feeds buildWorkingGrid: mass sums to 1 over the 4 cells.
-			const wg = buildWorkingGrid(surfaceRasterBand(first!), { crs: 32632, sampling: 'nearest' });
+			// The RasterBand form feeds the aggregation into a working grid: mass sums to 1 over the 4 cells.
+			const wg = await aggregateToWorkingGrid(bandSource(surfaceRasterBand(first!)), { crs: 32632 });
 			expect(wg.grid.mass.reduce((x, y) => x + y, 0)).toBeCloseTo(1, 9);
 		});
 

@@ -45,7 +45,8 @@ describe('sensors service', () => {
 		const types = await sensorTypesOf(t.db, net.id);
 		expect(types.map((x) => [x.name, x.radiusM, x.mobility])).toEqual([
 			['cosmic-ray neutron sensor', 150, 'fixed'],
-			['soil moisture probe', 30, 'relocatable']
+			// seeds/demo-inventory.ts: the demo probe stands for the ground within 1 km (the demo's own setting).
+			['soil moisture probe', 1000, 'relocatable']
 		]);
 	});
 

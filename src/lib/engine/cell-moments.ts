@@ -130,6 +130,46 @@ function integrateCell(
 }
 
 /**
+ * The cost term and the disk mass of every sensor's Voronoi cell: cellMoments' `cost` and
+ * `diskMass`, with the same cells (half-open spans, closed disks, the same column rules), summed
+ * cell by cell over the owned runs instead of read from prefix sums. O(cells) and no 24-bytes-a-cell
+ * table: the cheaper way when the moments are wanted once (a run of 0 iterations), not per iteration.
+ */
+export function cellCostAndCoverage(
+	mass: Float64Array,
+	width: number,
+	height: number,
+	pu: Float64Array,
+	pv: Float64Array,
+	rho: Float64Array
+): { cost: Float64Array; diskMass: Float64Array } {
+	const n = pu.length;
+	const cost = new Float64Array(n);
+	const diskMass = new Float64Array(n);
+	forEachOwnedRun(width, height, pu, pv, (r, c0, c1, i) => {
+		const px = pu[i];
+		const dv = r + 0.5 - pv[i];
+		const o = r * width;
+		let sum = 0;
+		for (let c = c0; c < c1; c++) {
+			const du = c + 0.5 - px;
+			sum += mass[o + c] * (du * du + dv * dv);
+		}
+		cost[i] += sum;
+		const r2 = rho[i] * rho[i];
+		if (rho[i] > 0 && dv * dv <= r2) {
+			const h = Math.sqrt(r2 - dv * dv);
+			const d0 = Math.max(c0, firstColumnAtOrAfter(px - h));
+			const d1 = Math.min(c1, columnEndAtOrBefore(px + h));
+			let disk = 0;
+			for (let c = d0; c < d1; c++) disk += mass[o + c];
+			diskMass[i] += disk;
+		}
+	});
+	return { cost, diskMass };
+}
+
+/**
  * Visits every raster cell once with the sensor whose Voronoi cell owns it
  * (same half-open rule as cellMoments). Used for the final distance percentile.
  * visit(row, c0, c1, sensor) covers columns [c0, c1) of that row.

@@ -1,4 +1,4 @@
-import { cellMoments, rowScratch } from './cell-moments';
+import { cellCostAndCoverage, cellMoments, rowScratch } from './cell-moments';
 import { centroidTargets } from './centroid-step';
 import { clampTravel, Occupancy, separate, snapToFeasible } from './constraints';
 import { weightedDistanceQuantile } from './distance-percentile';
@@ -56,7 +56,7 @@ import type { CrossingGate } from './zone-balance';
  * 7. zone-balanced: the crossing admission above; a refused move falls back to the local
  *    step, and to staying put if that crosses too.
  *
- * Mass that does not sum to 1 is normalised (a copy; inputs are never mutated).
+ * Mass that does not sum to 1 is normalised (a copy; inputs are never mutated, nor is the mass).
  */
 export function place(
 	grid: WorkingGrid,
@@ -73,8 +73,12 @@ export function place(
 
 	let total = 0;
 	for (let k = 0; k < cells; k++) total += grid.mass[k];
-	const mass = new Float64Array(cells);
-	if (total > 0) for (let k = 0; k < cells; k++) mass[k] = grid.mass[k] / total;
+	// Read only from here on, so mass that already sums to 1 is used as it is.
+	let mass = grid.mass;
+	if (total !== 1) {
+		mass = new Float64Array(cells);
+		if (total > 0) for (let k = 0; k < cells; k++) mass[k] = grid.mass[k] / total;
+	}
 
 	// Sensors in grid units.
 	const greenfield = sensors.length === 0;
@@ -115,6 +119,14 @@ export function place(
 		// Nothing to serve: no step has a direction. Sensors stay where they are.
 		record({ iteration: 0, cost: 0, coverage: 0 });
 		return finish({ grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, inputs: sensors, greenfield, options }, 0, true, history);
+	}
+
+	if (maxIterations === 0) {
+		// Only the start is described: one evaluation, summed directly, without the prefix sums
+		// (24 bytes a cell) that make each of many iterations cheap.
+		const start = cellCostAndCoverage(mass, width, height, pu, pv, rho);
+		record({ iteration: 0, cost: sumOf(start.cost) * cellSize * cellSize, coverage: Math.min(1, sumOf(start.diskMass)) });
+		return finish({ grid, zones, mass, ids, radii, mobility, pu, pv, startU, startV, inputs: sensors, greenfield, options }, 0, false, history);
 	}
 
 	const prefix = rowPrefixSums(mass, width, height);

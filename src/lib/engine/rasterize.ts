@@ -29,8 +29,10 @@ function rowCrossings(grid: GridGeometry, rings: readonly Ring[]): { start: Int3
 		// rows whose centre y = y0 - (r + 0.5)·cs lies in [min, max)
 		const lo = Math.min(ya, yb);
 		const hi = Math.max(ya, yb);
-		const rFirst = Math.max(0, Math.ceil((y0 - hi) / cellSize - 0.5));
-		const rLast = Math.min(height - 1, Math.floor((y0 - lo) / cellSize - 0.5));
+		// One row more on each side: `covers` below decides exactly, while this division may round
+		// a vertex lying on a centre line to the wrong side (an edge would then lose its crossing).
+		const rFirst = Math.max(0, Math.ceil((y0 - hi) / cellSize - 0.5) - 1);
+		const rLast = Math.min(height - 1, Math.floor((y0 - lo) / cellSize - 0.5) + 1);
 		return [rFirst, rLast];
 	};
 	const forEachEdge = (fn: (xa: number, ya: number, xb: number, yb: number) => void) => {

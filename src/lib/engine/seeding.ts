@@ -12,6 +12,7 @@ import { mulberry32 } from './prng';
  * its largest D² is below the row's squared distance to the seed, and within a row only the
  * columns inside that radius are updated; per-row weight sums make each draw O(rows + width).
  * About O(cells) per seed for the first few seeds, shrinking to O(cells / k) later.
+ * Memory: D² for every cell (8 bytes a cell), allocated only when there is a second seed to draw.
  */
 export function kMeansPlusPlusSeeds(
 	mass: Float64Array,
@@ -23,29 +24,30 @@ export function kMeansPlusPlusSeeds(
 ): { u: Float64Array; v: Float64Array } {
 	const cells = width * height;
 	const random = mulberry32(seed);
-	const base = new Float64Array(cells);
 	let anyMass = false;
-	for (let idx = 0; idx < cells; idx++) {
-		base[idx] = feasible[idx] ? mass[idx] : 0;
-		if (base[idx] > 0) anyMass = true;
-	}
-	if (!anyMass) for (let idx = 0; idx < cells; idx++) base[idx] = feasible[idx] ? 1 : 0;
-	const d2 = new Float64Array(cells).fill(Infinity);
+	for (let idx = 0; idx < cells && !anyMass; idx++) if (feasible[idx] && mass[idx] > 0) anyMass = true;
+	// Without mass, every feasible cell weighs 1 (the fallback below).
+	let fallback = !anyMass;
+	const base = (idx: number) => (feasible[idx] ? (fallback ? 1 : mass[idx] > 0 ? mass[idx] : 0) : 0);
+	// D² to the nearest seed so far; Infinity everywhere until the first seed.
+	let d2: Float64Array | null = null;
 	const rowMax = new Float64Array(height).fill(Infinity);
 	const rowWeight = new Float64Array(height);
 	const u = new Float64Array(k);
 	const v = new Float64Array(k);
-	let fallback = !anyMass;
 
 	// Weight of a cell: base (first seed) or base·D².
-	const weight = (idx: number, first: boolean) => (first ? base[idx] : base[idx] > 0 ? base[idx] * d2[idx] : 0);
+	const weight = (idx: number, first: boolean) => {
+		const b = base(idx);
+		return first ? b : b > 0 ? b * d2![idx] : 0;
+	};
 	const sumRow = (r: number, first: boolean) => {
 		let w = 0;
-		let m = 0;
+		let m = d2 ? 0 : Infinity;
 		const o = r * width;
 		for (let c = 0; c < width; c++) {
 			w += weight(o + c, first);
-			if (d2[o + c] > m) m = d2[o + c];
+			if (d2 && d2[o + c] > m) m = d2[o + c];
 		}
 		rowWeight[r] = w;
 		rowMax[r] = m;
@@ -57,7 +59,6 @@ export function kMeansPlusPlusSeeds(
 		if (chosen < 0 && !fallback) {
 			// No weight left: fall back to D² over feasible cells.
 			fallback = true;
-			for (let idx = 0; idx < cells; idx++) base[idx] = feasible[idx] ? 1 : 0;
 			for (let r = 0; r < height; r++) sumRow(r, s === 0);
 			chosen = drawCell(random, rowWeight, width, height, (idx) => weight(idx, s === 0));
 		}
@@ -66,6 +67,8 @@ export function kMeansPlusPlusSeeds(
 		const cv = Math.floor(chosen / width) + 0.5;
 		u[s] = cu;
 		v[s] = cv;
+		if (s === k - 1) break; // the last seed: D² is not needed any more
+		d2 ??= new Float64Array(cells).fill(Infinity);
 		for (let r = 0; r < height; r++) {
 			const dv = r + 0.5 - cv;
 			const dv2 = dv * dv;

@@ -8,8 +8,10 @@
  * the reprojection, interpolated on a lattice). A cell's mass is the sum of its valid parts, so the
  * importance integral over any region made of whole cells is the raster's integral over that
  * region, and over any other region it differs by edge cells only. When pixels are not much finer
- * than the cell, each pixel is split into k × k sub-pixels (k ≤ 4, so that sub-pixels are at most
- * half a cell) that carry 1/k² of its mass each, which keeps cells from catching 0 or 2 centres.
+ * than the cell, each pixel is split into ku × kv sub-pixels (each at most 4, so that sub-pixels are
+ * at most half a cell along each side of the pixel) that carry 1/(ku·kv) of its mass each, which
+ * keeps cells from catching 0 or 2 centres. Each pixel's value is read and checked once, then
+ * spread over its sub-pixels.
  *
  * At the coarse scale, on purpose:
  *   nodata      a nodata pixel (and NaN, ±∞, negative values) adds no mass; a cell with valid
@@ -19,15 +21,15 @@
  *   exclusions  4 × 4 sub-cells: inside the study area and outside every exclusion); a cell is
  *               feasible only if at least half of it is such ground.
  *
- * Memory: the grid (mass and valid area, 16 bytes a cell while reading, then 8 for the mass and 1
- * for feasibility), the lattice
- * (24 bytes a node, one node per ≤ 64 pixels squared) and two block rows of the raster.
+ * Memory: the grid (mass and valid area, 8 + 4 bytes a cell, then 1 for feasibility), the lattice
+ * (24 bytes a node, one node per ≤ 64 pixels squared) and two block rows of the raster (whose
+ * buffers the reader reuses).
  */
 import type { WorkingGrid } from '../engine/types';
 import { rasterizeRings, type GridGeometry, type Ring } from '../engine/rasterize';
 import { crsLabel, type PointTransform } from './crs';
 import { chooseCellSize, type CellSizeChoice } from './cell-size';
-import { pixelToCrs, type BlockReadOptions, type DecoderPool, type GeoTiffSource, type GeoTransform, type RasterBlock } from './geotiff';
+import { pixelToCrs, type BlockReadOptions, type DecoderPool, type GeoTiffSource, type GeoTransform, type RasterBand, type RasterBlock } from './geotiff';
 import { noValidCells, planFrame, WorkingGridError, type WorkingGridOptions } from './working-grid';
 
 export interface AggregateOptions extends Pick<WorkingGridOptions, 'crs' | 'studyArea' | 'exclusions' | 'maxCells'> {
@@ -56,8 +58,10 @@ export interface AggregateResult {
 	integral: number;
 	/** Area of valid data in each cell, m² (a cell's mean value is its mass × integral / this). */
 	validArea: Float32Array;
-	/** Sub-pixels per pixel side (1 = pixel centres only). */
+	/** Sub-pixels along the longer of the pixel's two sides (1 = pixel centres only). */
 	subsamples: number;
+	/** Sub-pixels along the pixel's row (u) and column (v) directions. */
+	subsamplesUV: [number, number];
 	latticeStep: number;
 	latticeError: number;
 	pixelsRead: number;
@@ -143,6 +147,104 @@ function pixelSides(t: GeoTransform, toWork: PointTransform, u: number, v: numbe
 	return [Math.hypot(a[0] - o[0], a[1] - o[1]), Math.hypot(b[0] - o[0], b[1] - o[1])];
 }
 
+/** The working grid being filled: mass and valid area per cell. */
+interface Accumulator {
+	width: number;
+	height: number;
+	mass: Float64Array;
+	validArea: Float32Array;
+}
+
+/** How the image's pixels map onto the grid: its size, sub-pixels per side, the lattice. */
+interface Spread {
+	W: number;
+	H: number;
+	ku: number;
+	kv: number;
+	lattice: Lattice;
+	nodata: number | null;
+}
+
+/**
+ * Adds one block's valid pixels to the grid, each split into ku × kv sub-pixels placed by the
+ * lattice; returns the number of sub-pixels added. A plain function, kept out of the async
+ * reading loop so that its numbers stay in registers (an async function's locals that live
+ * across an await are boxed on the heap), and with nothing after its loop that the first block
+ * has not run yet: such code would throw the optimised loop away at the end of every block.
+ */
+function accumulateBlock(block: RasterBlock, spread: Spread, target: Accumulator): number {
+	const { W, H, ku, kv, lattice, nodata } = spread;
+	const { width, height, mass, validArea } = target;
+	const { nx, step, gx: LX, gy: LY, area: LA } = lattice;
+	const rowX = new Float64Array(nx);
+	const rowY = new Float64Array(nx);
+	const rowA = new Float64Array(nx);
+	// Running position and area of each sub-pixel column along a lattice span.
+	const subX = new Float64Array(ku);
+	const subY = new Float64Array(ku);
+	const subA = new Float64Array(ku);
+	const inv = 1 / (ku * kv);
+	let added = 0;
+	const data = block.data;
+	const nd = nodata === null ? null : data instanceof Float32Array ? Math.fround(nodata) : nodata;
+	for (let r = 0; r < block.height; r++) {
+		const R = block.row0 + r;
+		const off = r * W;
+		for (let b = 0; b < kv; b++) {
+			const v = R + (b + 0.5) / kv;
+			// Interpolate the lattice's node rows at v.
+			const j = Math.min(Math.floor(v / step), lattice.ny - 2);
+			const v0 = j * step;
+			const fy = (v - v0) / (Math.min(v0 + step, H) - v0);
+			const base = j * nx;
+			for (let i = 0; i < nx; i++) {
+				rowX[i] = LX[base + i] + (LX[base + nx + i] - LX[base + i]) * fy;
+				rowY[i] = LY[base + i] + (LY[base + nx + i] - LY[base + i]) * fy;
+				rowA[i] = LA[base + i] + (LA[base + nx + i] - LA[base + i]) * fy;
+			}
+			// Along a lattice span, positions and areas change linearly: step them by increments.
+			for (let i = 0; i < nx - 1; i++) {
+				const c0 = i * step;
+				if (c0 >= W) break;
+				const c1 = Math.min(c0 + step, W);
+				const len = c1 - c0;
+				const dX = (rowX[i + 1] - rowX[i]) / len;
+				const dY = (rowY[i + 1] - rowY[i]) / len;
+				const dA = ((rowA[i + 1] - rowA[i]) / len) * inv;
+				for (let sub = 0; sub < ku; sub++) {
+					const frac = (sub + 0.5) / ku;
+					subX[sub] = rowX[i] + dX * frac;
+					subY[sub] = rowY[i] + dY * frac;
+					subA[sub] = rowA[i] * inv + dA * frac;
+				}
+				for (let c = c0; c < c1; c++) {
+					const value = data[off + c];
+					// Valid: a number, finite, not negative, not the nodata value.
+					if (value >= 0 && value < Infinity && value !== nd) {
+						for (let sub = 0; sub < ku; sub++) {
+							const px = subX[sub];
+							const py = subY[sub];
+							if (px >= 0 && px < width && py >= 0 && py < height) {
+								const at = (py | 0) * width + (px | 0);
+								const pa = subA[sub];
+								mass[at] += value * pa;
+								validArea[at] += pa;
+								added++;
+							}
+						}
+					}
+					for (let sub = 0; sub < ku; sub++) {
+						subX[sub] += dX;
+						subY[sub] += dY;
+						subA[sub] += dA;
+					}
+				}
+			}
+		}
+	}
+	return added;
+}
+
 /** Ingest one band into a working grid: the single pass over the raster described above. */
 export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: AggregateOptions = {}): Promise<AggregateResult> {
 	let choice: CellSizeChoice | null = null;
@@ -166,7 +268,9 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 	const H = image.height;
 	const t = image.transform;
 	const [sideU, sideV] = pixelSides(t, toWork, W / 2, H / 2);
-	const k = Math.min(4, Math.max(1, Math.ceil((2 * Math.max(sideU, sideV)) / cellSize - 1e-9)));
+	const split = (side: number) => Math.min(4, Math.max(1, Math.ceil((2 * side) / cellSize - 1e-9)));
+	const ku = split(sideU);
+	const kv = split(sideV);
 
 	// Exact map of image position (u, v) to fractional cell coordinates and the pixel's area (m²).
 	const exact = (u: number, v: number): [number, number, number] => {
@@ -190,76 +294,17 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 	}
 
 	const n = width * height;
-	// Mass and valid area of each cell, side by side: one cache line serves both.
-	const acc = new Float64Array(2 * n);
-	const { nx, gx: LX, gy: LY, area: LA } = lattice;
-	const rowX = new Float64Array(nx);
-	const rowY = new Float64Array(nx);
-	const rowA = new Float64Array(nx);
-	const nodata = source.nodata;
-	const inv = 1 / (k * k);
+	const target: Accumulator = { width, height, mass: new Float64Array(n), validArea: new Float32Array(n) };
+	const spread: Spread = { W, H, ku, kv, lattice, nodata: source.nodata };
 	let pixelsRead = 0;
 	let validPixels = 0;
-
 	const readOpts: BlockReadOptions = { image: image.index, pool: opts.pool ?? null };
 	for await (const block of source.blocks(readOpts)) {
 		opts.onBlock?.(block, image.index);
 		pixelsRead += block.width * block.height;
-		const data = block.data;
-		const nd = nodata === null ? null : data instanceof Float32Array ? Math.fround(nodata) : nodata;
-		for (let r = 0; r < block.height; r++) {
-			const R = block.row0 + r;
-			for (let b = 0; b < k; b++) {
-				const v = R + (b + 0.5) / k;
-				// Interpolate the lattice's node rows at v.
-				const j = Math.min(Math.floor(v / step), lattice.ny - 2);
-				const v0 = j * step;
-				const fy = (v - v0) / (Math.min(v0 + step, H) - v0);
-				const base = j * nx;
-				for (let i = 0; i < nx; i++) {
-					rowX[i] = LX[base + i] + (LX[base + nx + i] - LX[base + i]) * fy;
-					rowY[i] = LY[base + i] + (LY[base + nx + i] - LY[base + i]) * fy;
-					rowA[i] = LA[base + i] + (LA[base + nx + i] - LA[base + i]) * fy;
-				}
-				const off = r * W;
-				// Along a lattice span, positions and areas change linearly: step them by increments.
-				for (let sub = 0; sub < k; sub++) {
-					const frac = (sub + 0.5) / k;
-					for (let i = 0; i < nx - 1; i++) {
-						const c0 = i * step;
-						if (c0 >= W) break;
-						const c1 = Math.min(c0 + step, W);
-						const len = c1 - c0;
-						const dX = (rowX[i + 1] - rowX[i]) / len;
-						const dY = (rowY[i + 1] - rowY[i]) / len;
-						const dA = ((rowA[i + 1] - rowA[i]) / len) * inv;
-						let px = rowX[i] + dX * frac;
-						let py = rowY[i] + dY * frac;
-						let pa = rowA[i] * inv + dA * frac;
-						for (let c = c0; c < c1; c++) {
-							const value = data[off + c];
-							// Valid: a number, finite, not negative, not the nodata value.
-							if (value >= 0 && value < Infinity && value !== nd && px >= 0 && px < width && py >= 0 && py < height) {
-								const at = ((py | 0) * width + (px | 0)) * 2;
-								acc[at] += value * pa;
-								acc[at + 1] += pa;
-								validPixels++;
-							}
-							px += dX;
-							py += dY;
-							pa += dA;
-						}
-					}
-				}
-			}
-		}
+		validPixels += accumulateBlock(block, spread, target);
 	}
-	const mass = new Float64Array(n);
-	const validArea = new Float32Array(n);
-	for (let i = 0; i < n; i++) {
-		mass[i] = acc[2 * i];
-		validArea[i] = acc[2 * i + 1];
-	}
+	const { mass, validArea } = target;
 
 	if (validPixels === 0) throw noValidCells();
 	const allowed = allowedShare(geom, frame.studyPolygons, frame.exclusionPolygons);
@@ -282,10 +327,29 @@ export async function aggregateToWorkingGrid(source: GeoTiffSource, opts: Aggreg
 		image: { index: image.index, width: W, height: H },
 		integral: total,
 		validArea,
-		subsamples: k,
+		subsamples: Math.max(ku, kv),
+		subsamplesUV: [ku, kv],
 		latticeStep: step,
 		latticeError: err,
 		pixelsRead
+	};
+}
+
+/**
+ * A band held in memory (an importance surface) as a source of one block, so that it goes through
+ * the same aggregation as a streamed GeoTIFF (placement runs and zone shares use it).
+ */
+export function bandSource(band: RasterBand): GeoTiffSource {
+	const { data, ...header } = band;
+	return {
+		...header,
+		blockWidth: band.width,
+		blockHeight: band.height,
+		overviews: [],
+		async *blocks() {
+			yield { row0: 0, width: band.width, height: band.height, data };
+		},
+		async close() {}
 	};
 }
 

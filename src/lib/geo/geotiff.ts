@@ -240,7 +240,11 @@ export interface OverviewInfo {
 	transform: GeoTransform;
 }
 
-/** A run of whole rows of a band (or of one of its overviews), row-major, values as stored. */
+/**
+ * A run of whole rows of a band (or of one of its overviews), row-major, values as stored.
+ * `data` lives in a buffer that is reused: it is valid until the next block is asked for (copy it
+ * to keep it).
+ */
 export interface RasterBlock {
 	row0: number;
 	width: number;
@@ -382,14 +386,72 @@ export async function openGeoTiff(input: GeoTiffInput, opts: ReadGeoTiffOptions 
 		throw new RasterError(file, 'corrupt', `corrupt TIFF (${errorText(e)})`);
 	}
 	try {
-		return await describe(tiff, image, file, bandNo, maxPixels, opts.requireKnownCrs ?? true);
+		return await describe(tiff, image, file, bandNo, maxPixels, opts.requireKnownCrs ?? true, rawReaderFor(input));
 	} catch (e) {
 		await tiff.close?.();
 		throw e;
 	}
 }
 
-async function describe(tiff: GeoTIFF, image: GeoTIFFImage, file: string, bandNo: number, maxPixels: number, requireKnownCrs: boolean): Promise<GeoTiffSource> {
+/**
+ * Stored bytes read straight into a caller's buffer: how uncompressed Float32 and Float64 strips
+ * are read (no decoder, no intermediate copy). Returns the number of bytes read.
+ */
+type RawReader = (offset: number, into: Uint8Array) => Promise<number>;
+
+function rawReaderFor(input: GeoTiffInput): { read: RawReader; close(): Promise<void> } {
+	if (input instanceof ArrayBuffer) {
+		return {
+			read: async (offset, into) => {
+				const n = Math.max(0, Math.min(into.length, input.byteLength - offset));
+				into.set(new Uint8Array(input, offset, n));
+				return n;
+			},
+			close: async () => undefined
+		};
+	}
+	if ('path' in input) {
+		// A handle of our own, opened on the first read.
+		let handle: Promise<import('node:fs/promises').FileHandle> | null = null;
+		return {
+			read: async (offset, into) => {
+				handle ??= import('node:fs/promises').then((fs) => fs.open(input.path, 'r'));
+				const fh = await handle;
+				let done = 0;
+				while (done < into.length) {
+					const { bytesRead } = await fh.read(into, done, into.length - done, offset + done);
+					if (bytesRead === 0) break;
+					done += bytesRead;
+				}
+				return done;
+			},
+			close: async () => {
+				const h = handle;
+				handle = null;
+				await (await h)?.close();
+			}
+		};
+	}
+	return {
+		read: async (offset, into) => {
+			const bytes = await input.read(offset, into.length);
+			const n = Math.min(bytes.length, into.length);
+			into.set(bytes.subarray(0, n));
+			return n;
+		},
+		close: async () => undefined // the reader itself is closed with the GeoTIFF
+	};
+}
+
+async function describe(
+	tiff: GeoTIFF,
+	image: GeoTIFFImage,
+	file: string,
+	bandNo: number,
+	maxPixels: number,
+	requireKnownCrs: boolean,
+	raw: { read: RawReader; close(): Promise<void> }
+): Promise<GeoTiffSource> {
 	let width: number;
 	let height: number;
 	let bandCount: number;
@@ -505,40 +567,65 @@ async function describe(tiff: GeoTIFF, image: GeoTIFFImage, file: string, bandNo
 		const wantRows = o.rowsPerBlock ?? Math.max(1, Math.ceil(1_048_576 / W));
 		const groupTiles = Math.max(1, Math.ceil(wantRows / th));
 
+		// Uncompressed float strips hold the samples exactly as a block wants them: their bytes are
+		// read straight into the block (the per-block check still runs on each strip's sizes).
+		const direct = compression === 1 && !img.isTiled && tw === W && fast && sampleFormat === 3 && (bitsPerSample === 32 || bitsPerSample === 64) && (spp === 1 || planar === 2);
+		const stripOffsets = direct ? toNumbers(await loadTag(img, 'StripOffsets')) : null;
+		const stripBytes = direct ? toNumbers(await loadTag(img, 'StripByteCounts')) : null;
+		const firstStrip = planar === 2 ? (bandNo - 1) * tileRows : 0;
+		// Two buffers in turn: one block is used while the next is read into the other.
+		const groupRows = Math.min(H, groupTiles * th);
+		const buffers = [0, 1].map(() => (wide ? new Float64Array(W * groupRows) : new Float32Array(W * groupRows)));
+		let turn = 0;
+
+		/** One tile or strip through geotiff (and its decoder), copied into the block. */
+		const copyTile = (tx: number, ty: number, data: Float32Array | Float64Array, row0: number): Promise<void> =>
+			(img.getTileOrStrip(tx, ty, planar === 2 ? bandNo - 1 : 0, decoderFor(ty) as never) as Promise<{ data: ArrayBuffer }>).then(({ data: buf }) => {
+				const c0 = tx * tw;
+				const cw = Math.min(tw, W - c0);
+				const r0 = ty * th - row0;
+				const rh = Math.min(th, H - ty * th);
+				const view = fast && buf.byteLength % bytesPerSample === 0 ? fastView(buf, sampleFormat, bitsPerSample) : null;
+				if (view && view.length >= (rh - 1) * tw * stride + cw * stride) {
+					for (let r = 0; r < rh; r++) {
+						const src = r * tw * stride + sampleOffset;
+						const dst = (r0 + r) * W + c0;
+						if (stride === 1) data.set(view.subarray(src, src + cw), dst);
+						else for (let c = 0; c < cw; c++) data[dst + c] = view[src + c * stride];
+					}
+				} else {
+					const dv = new DataView(buf);
+					for (let r = 0; r < rh; r++) {
+						for (let c = 0; c < cw; c++) {
+							const at = (r * tw + c) * pixelBytes + sampleByteOffset;
+							data[(r0 + r) * W + c0 + c] = at + bytesPerSample <= buf.byteLength ? reader.call(dv, at, img.littleEndian) : Number.NaN;
+						}
+					}
+				}
+			});
+
+		/** An uncompressed strip read into the block; false for a sparse strip (no bytes stored). */
+		const readStrip = async (ty: number, data: Float32Array | Float64Array, row0: number): Promise<boolean> => {
+			const offset = stripOffsets?.[firstStrip + ty];
+			const stored = stripBytes?.[firstStrip + ty];
+			if (offset === undefined || stored === undefined || stored === 0) return false;
+			const rh = Math.min(th, H - ty * th);
+			const into = new Uint8Array(data.buffer, data.byteOffset + (ty * th - row0) * W * bytesPerSample, rh * W * bytesPerSample);
+			checkBlockBytes(file, compression, stored, into.length);
+			checkBlockBytes(file, compression, await raw.read(offset, into), into.length);
+			return true;
+		};
+
 		const fetchGroup = async (ty0: number): Promise<RasterBlock> => {
 			const ty1 = Math.min(tileRows, ty0 + groupTiles);
 			const row0 = ty0 * th;
 			const rows = Math.min(H, ty1 * th) - row0;
-			const data = wide ? new Float64Array(W * rows) : new Float32Array(W * rows);
+			const data = buffers[turn].subarray(0, W * rows);
+			turn = 1 - turn;
 			const jobs: Promise<void>[] = [];
 			for (let ty = ty0; ty < ty1; ty++) {
-				for (let tx = 0; tx < tilesAcross; tx++) {
-					jobs.push(
-						(img.getTileOrStrip(tx, ty, planar === 2 ? bandNo - 1 : 0, decoderFor(ty) as never) as Promise<{ data: ArrayBuffer }>).then(({ data: buf }) => {
-							const c0 = tx * tw;
-							const cw = Math.min(tw, W - c0);
-							const r0 = ty * th - row0;
-							const rh = Math.min(th, H - ty * th);
-							const view = fast && buf.byteLength % bytesPerSample === 0 ? fastView(buf, sampleFormat, bitsPerSample) : null;
-							if (view && view.length >= (rh - 1) * tw * stride + cw * stride) {
-								for (let r = 0; r < rh; r++) {
-									const src = r * tw * stride + sampleOffset;
-									const dst = (r0 + r) * W + c0;
-									if (stride === 1) data.set(view.subarray(src, src + cw), dst);
-									else for (let c = 0; c < cw; c++) data[dst + c] = view[src + c * stride];
-								}
-							} else {
-								const dv = new DataView(buf);
-								for (let r = 0; r < rh; r++) {
-									for (let c = 0; c < cw; c++) {
-										const at = (r * tw + c) * pixelBytes + sampleByteOffset;
-										data[(r0 + r) * W + c0 + c] = at + bytesPerSample <= buf.byteLength ? reader.call(dv, at, img.littleEndian) : Number.NaN;
-									}
-								}
-							}
-						})
-					);
-				}
+				if (direct) jobs.push(readStrip(ty, data, row0).then((done) => (done ? undefined : copyTile(0, ty, data, row0))));
+				else for (let tx = 0; tx < tilesAcross; tx++) jobs.push(copyTile(tx, ty, data, row0));
 			}
 			try {
 				await Promise.all(jobs);
@@ -583,6 +670,7 @@ async function describe(tiff: GeoTIFF, image: GeoTIFFImage, file: string, bandNo
 		overviews,
 		blocks,
 		async close() {
+			await raw.close();
 			await tiff.close?.();
 		}
 	};

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { place } from '../../../src/lib/engine';
 import { bruteForceMoments } from '../../../src/bench/support/brute-force';
-import { cellMoments } from '../../../src/lib/engine/cell-moments';
+import { cellCostAndCoverage, cellMoments } from '../../../src/lib/engine/cell-moments';
 import { rowPrefixSums } from '../../../src/lib/engine/prefix-sums';
 import { mulberry32 } from '../../../src/lib/engine/prng';
 
@@ -15,7 +15,8 @@ function relErr(a: number, b: number): number {
 	return Math.abs(a - b) / Math.max(Math.abs(b), 1e-12);
 }
 
-function compare(seed: number, layout: 'random' | 'collinear' | 'outside' | 'coincident' | 'clustered') {
+/** A random small grid with sensors laid out as `layout` says, and random radii. */
+function randomCase(seed: number, layout: 'random' | 'collinear' | 'outside' | 'coincident' | 'clustered') {
 	const rnd = mulberry32(seed);
 	const w = 3 + Math.floor(rnd() * 40);
 	const h = 3 + Math.floor(rnd() * 40);
@@ -32,6 +33,11 @@ function compare(seed: number, layout: 'random' | 'collinear' | 'outside' | 'coi
 	if (layout === 'coincident') for (let i = 1; i < n; i += 2) [pu[i], pv[i]] = [pu[i - 1], pv[i - 1]];
 	if (layout === 'clustered') for (let i = 0; i < n; i++) [pu[i], pv[i]] = [w / 2 + rnd() * 0.01, h / 2 + rnd() * 0.01];
 	const rho = new Float64Array(n).map(() => rnd() * 10);
+	return { mass, w, h, n, pu, pv, rho };
+}
+
+function compare(seed: number, layout: 'random' | 'collinear' | 'outside' | 'coincident' | 'clustered') {
+	const { mass, w, h, n, pu, pv, rho } = randomCase(seed, layout);
 	const fast = cellMoments(rowPrefixSums(mass, w, h), pu, pv, rho);
 	const slow = bruteForceMoments(mass, w, h, pu, pv, rho);
 	let worst = 0;
@@ -151,5 +157,41 @@ describe('cellMoments on nearly degenerate sensor sets', () => {
 			else expect(moved).toBeLessThan(2 * 3); // ≤ 3 cells of mass ≤ 1 counted on both sides
 		}
 		expect(exact / sets).toBeGreaterThan(0.99);
+	});
+});
+
+describe('cellCostAndCoverage(mass, sensors) equals brute-force nearest-sensor integration', () => {
+	// The same oracle and layouts as cellMoments above: the direct sums must give the same cost
+	// and disk mass as the definition, and the same as the prefix-sum integration.
+	for (const layout of ['random', 'outside', 'coincident'] as const) {
+		it(`on 40 random small grids with ${layout} sensors, to 1e-9 relative`, () => {
+			let worst = 0;
+			for (let s = 0; s < 40; s++) {
+				const { mass, w, h, n, pu, pv, rho } = randomCase(7000 + 100 * layout.length + s, layout);
+				const direct = cellCostAndCoverage(mass, w, h, pu, pv, rho);
+				const slow = bruteForceMoments(mass, w, h, pu, pv, rho);
+				const fast = cellMoments(rowPrefixSums(mass, w, h), pu, pv, rho);
+				for (let i = 0; i < n; i++) {
+					worst = Math.max(worst, relErr(direct.cost[i], slow.cost[i]), relErr(direct.diskMass[i], slow.diskMass[i]));
+					worst = Math.max(worst, relErr(direct.cost[i], fast.cost[i]), relErr(direct.diskMass[i], fast.diskMass[i]));
+				}
+			}
+			expect(worst).toBeLessThan(1e-9);
+		});
+	}
+
+	it('place(…, maxIterations 0) reports the same start cost and coverage as one iteration does', () => {
+		// Iteration 0 of a longer run is computed with the prefix sums: its history entry must match
+		// the 0-iteration run's direct sums.
+		const rnd = mulberry32(42);
+		const w = 60;
+		const h = 45;
+		const grid = { crs: 'EPSG:32633', width: w, height: h, x0: 0, y0: h * 10, cellSize: 10, mass: new Float64Array(w * h).map(() => rnd()), feasible: new Uint8Array(w * h).fill(1) };
+		const opts = { strategy: 'range-limited' as const, count: 7, radius: 80, seed: 3 };
+		const zero = place(grid, null, [], { ...opts, maxIterations: 0 });
+		const one = place(grid, null, [], { ...opts, maxIterations: 1 });
+		expect(zero.iterations).toBe(0);
+		expect(relErr(zero.cost, one.history[0].cost)).toBeLessThan(1e-12);
+		expect(relErr(zero.coverage, one.history[0].coverage)).toBeLessThan(1e-12);
 	});
 });

@@ -98,3 +98,21 @@ describe('rasterizeZones', () => {
 		expect(() => rasterizeZones(grid, [{ id: 'a', rings: [] }, { id: 'a', rings: [] }])).toThrow(/unique/);
 	});
 });
+
+describe('rasterizeRings with a vertex on a row’s centre line', () => {
+	it('fills that row: a vertex whose y is the centre line, computed in floating point, keeps its crossing', () => {
+		// Found measuring zone shares: a zone edge densified in WGS 84 came back with a vertex
+		// exactly on the centre line of row 158 of a 2.3 m grid, where (y0 − y)/cellSize − 0.5
+		// rounds to 157.999…; the edge below that vertex lost its crossing and the row went empty.
+		const g = { width: 40, height: 300, x0: 314920.6, y0: 5363781.699999999, cellSize: 2.3 };
+		const y = g.y0 - (158 + 0.5) * g.cellSize;
+		const left = g.x0 + 5 * g.cellSize;
+		const right = g.x0 + 30 * g.cellSize;
+		const top = g.y0 - 100 * g.cellSize;
+		const bottom = g.y0 - 200 * g.cellSize;
+		const ring: Ring = [[left, bottom], [right, bottom], [right, y], [right, top], [left, top], [left, bottom]];
+		const mask = rasterizeRings(g, [ring]);
+		expect(Array.from(mask)).toEqual(Array.from(oracleMask(g, [ring])));
+		expect(mask.slice(158 * g.width, 159 * g.width).reduce((a, b) => a + b, 0)).toBe(25);
+	});
+});

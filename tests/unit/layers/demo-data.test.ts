@@ -58,6 +58,27 @@ describe('demo data (data/demo)', () => {
 		expect(metadata.stats.validCount).toBeLessThan(30_000);
 	});
 
+	it('terrain height: 100 m cells, 290×250, whole metres, no nodata, covering the whole catchment', async () => {
+		const { metadata } = await loadLayer(await read('terrain-height.tif'), { name: 'terrain-height.tif' });
+		expect(metadata).toMatchObject({ width: 290, height: 250, epsg: 32754, resolution: { x: 100, y: 100 }, nodata: null });
+		expect(metadata.stats.validCount).toBe(290 * 250);
+		// A low plain: tens of metres of relief, not mountains (the generator's own design, no outside source).
+		expect(metadata.stats.max - metadata.stats.min).toBeGreaterThan(20);
+		expect(metadata.stats.max - metadata.stats.min).toBeLessThan(100);
+		// Every vertex of the catchment's outline lies inside the model (the recipe's surface is empty wherever a layer has no data).
+		const [study] = parsePolygonUpload((await read('study-area.geojson')).toString());
+		const { transformer } = await import('../../../src/lib/geo/crs');
+		const { forward } = transformer(4326, 32754);
+		const { origin, resolution } = metadata;
+		for (const [lon, lat] of study.geometry.coordinates[0][0]) {
+			const [x, y] = forward(lon, lat);
+			expect(x).toBeGreaterThan(origin.x);
+			expect(x).toBeLessThan(origin.x + 290 * resolution.x);
+			expect(y).toBeLessThan(origin.y);
+			expect(y).toBeGreaterThan(origin.y - 250 * resolution.y);
+		}
+	});
+
 	it('polygons parse; the zones partition the study area (geodesic areas by GeographicLib agree within 0.5 %)', async () => {
 		const [study] = parsePolygonUpload((await read('study-area.geojson')).toString());
 		const [lake] = parsePolygonUpload((await read('exclusions.geojson')).toString());
@@ -112,13 +133,13 @@ describe('demo data (data/demo)', () => {
 describe('demo data through the engine side readers', () => {
 	it('study area and zones read with readPolygons/readZones, and the moisture raster builds a working grid', async () => {
 		const { readPolygons, readZones } = await import('../../../src/lib/geo/geojson');
-		const { buildWorkingGrid } = await import('../../../src/lib/geo/working-grid');
+		const { aggregateToWorkingGrid, bandSource } = await import('../../../src/lib/geo/aggregate');
 		const study = readPolygons(JSON.parse((await read('study-area.geojson')).toString()), 'study-area.geojson');
 		const lake = readPolygons(JSON.parse((await read('exclusions.geojson')).toString()), 'exclusions.geojson');
 		const zones = readZones(JSON.parse((await read('zones.geojson')).toString()), 'zones.geojson');
 		expect(zones.map((z) => z.id)).toEqual(['north-fell', 'west-moss', 'south-heath', 'eastern-reach']);
 		const { band } = await loadLayer(await read('soil-moisture.tif'));
-		const { grid, epsg } = buildWorkingGrid(band, { studyArea: study, exclusions: lake, cellSize: 250 });
+		const { grid, epsg } = await aggregateToWorkingGrid(bandSource(band), { studyArea: study, exclusions: lake, cellSize: 250 });
 		expect(epsg).toBe(32754);
 		let mass = 0;
 		let feasible = 0;
@@ -127,9 +148,12 @@ describe('demo data through the engine side readers', () => {
 			feasible += grid.feasible[i];
 		}
 		expect(mass).toBeCloseTo(1, 9);
-		// feasible area ≈ catchment minus reservoir, at 250 m cells (0.0625 km² each)
-		const feasibleKm2 = feasible * 0.0625;
+		// 250 m asked for, but the raster's pixels are 1 km: cells are never finer than the pixels.
+		expect(grid.cellSize).toBeCloseTo(1000, 6);
+		// feasible area ≈ catchment minus reservoir, at 1 km cells
+		const cellKm2 = (grid.cellSize / 1000) ** 2;
+		const feasibleKm2 = feasible * cellKm2;
 		expect(feasibleKm2).toBeGreaterThan(300);
-		expect(feasibleKm2).toBeLessThan(grid.width * grid.height * 0.0625);
+		expect(feasibleKm2).toBeLessThan(grid.width * grid.height * cellKm2);
 	});
 });

@@ -83,6 +83,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/networks/[id=id]/tasks/[taskId=id]/updates': 'signed-in',
 	'/api/v1/networks/[id=id]/tasks/[taskId=id]/photos': 'signed-in',
 	'/api/v1/networks/[id=id]/tasks/[taskId=id]/photos/[photoId=id]': 'signed-in',
+	'/api/v1/networks/[id=id]/cautions/acknowledgements': 'signed-in',
 	'/(public)/map/[slug]': 'public',
 	'/api/v1/public/networks/[slug]': 'public',
 	'/api/v1/public/networks/[slug]/importance.png': 'public'

@@ -9,7 +9,8 @@
  *   npx tsx src/lib/server/layers/demo-data.ts [outDir]      (default data/demo)
  *
  * Files: soil-moisture.tif (1 km, 40×30, EPSG:32754), vegetation-index.tif (30 m, 200×150,
- * EPSG:32754), study-area.geojson, exclusions.geojson, zones.geojson and sensors.csv.
+ * EPSG:32754), terrain-height.tif (100 m, 290×250, EPSG:32754, UInt16 metres), study-area.geojson,
+ * exclusions.geojson, zones.geojson and sensors.csv.
  */
 import { writeArrayBuffer } from 'geotiff';
 import { mkdir, writeFile } from 'node:fs/promises';
@@ -45,6 +46,8 @@ const [CX, CY] = DEMO_CENTRE;
 
 export const MOISTURE_GRID: DemoGrid = { x0: CX - 20_000, y0: CY + 15_000, cell: 1000, width: 40, height: 30 };
 export const VEGETATION_GRID: DemoGrid = { x0: CX - 5000, y0: CY + 3000, cell: 30, width: 200, height: 150 };
+/** The terrain model covers the whole catchment (its outline reaches −12.7..+15.2 km east, −12.4..+11.8 km north of the centre). */
+export const TERRAIN_GRID: DemoGrid = { x0: CX - 13_000, y0: CY + 12_000, cell: 100, width: 290, height: 250 };
 
 const CENTRE: [number, number] = [CX, CY];
 const RESERVOIR = { x: CX + 6500, y: CY - 4000, a: 1600, b: 750, angle: 0.45 };
@@ -148,8 +151,34 @@ export function vegetationValues(): Float32Array {
 	return out;
 }
 
-/** A single-band Float32 GeoTIFF in the demo's EPSG (UTM 54S) with GDAL_NODATA. */
-export function encodeDemoTiff(values: Float32Array, g: DemoGrid): ArrayBuffer {
+/**
+ * Terrain height, whole metres above sea level (UInt16): a low plain falling gently to the east,
+ * the beck's valley cut a few tens of metres into it, and low sandy rises a kilometre or two
+ * across; the reservoir is a flat water surface. No nodata: the model covers the whole grid.
+ */
+export function terrainValues(): Uint16Array {
+	const g = TERRAIN_GRID;
+	const rises = valueNoise(41, 3);
+	const ripples = valueNoise(53, 2);
+	const out = new Uint16Array(g.width * g.height);
+	const water = 104;
+	for (let r = 0; r < g.height; r++) {
+		for (let c = 0; c < g.width; c++) {
+			const [x, y] = cellCentre(g, r, c);
+			if (insideReservoir(x, y)) {
+				out[r * g.width + c] = water;
+				continue;
+			}
+			const valley = Math.exp(-((distanceToBeck(x, y) / 2500) ** 2));
+			const h = 132 - 0.0006 * (x - CX) - 22 * valley + 16 * rises((x - CX) / 3000, (y - CY) / 3000) + 3 * ripples((x - CX) / 700, (y - CY) / 700);
+			out[r * g.width + c] = Math.round(Math.max(water + 1, h));
+		}
+	}
+	return out;
+}
+
+/** A single-band GeoTIFF (Float32 or UInt16, as the values) in the demo's EPSG (UTM 54S), with GDAL_NODATA unless `nodata` is null. */
+export function encodeDemoTiff(values: Float32Array | Uint16Array, g: DemoGrid, nodata: number | null = DEMO_NODATA): ArrayBuffer {
 	return writeArrayBuffer(values, {
 		width: g.width,
 		height: g.height,
@@ -158,7 +187,7 @@ export function encodeDemoTiff(values: Float32Array, g: DemoGrid): ArrayBuffer {
 		GTModelTypeGeoKey: 1, // projected
 		GTRasterTypeGeoKey: 1, // PixelIsArea
 		ProjectedCSTypeGeoKey: DEMO_EPSG,
-		GDAL_NODATA: String(DEMO_NODATA)
+		...(nodata === null ? {} : { GDAL_NODATA: String(nodata) })
 	});
 }
 
@@ -290,6 +319,7 @@ export function demoFiles(): DemoFile[] {
 	return [
 		{ name: 'soil-moisture.tif', bytes: new Uint8Array(encodeDemoTiff(moistureValues(), MOISTURE_GRID)) },
 		{ name: 'vegetation-index.tif', bytes: new Uint8Array(encodeDemoTiff(vegetationValues(), VEGETATION_GRID)) },
+		{ name: 'terrain-height.tif', bytes: new Uint8Array(encodeDemoTiff(terrainValues(), TERRAIN_GRID, null)) },
 		{ name: 'study-area.geojson', bytes: json(studyAreaGeoJson()) },
 		{ name: 'exclusions.geojson', bytes: json(exclusionsGeoJson()) },
 		{ name: 'zones.geojson', bytes: json(zonesGeoJson()) },

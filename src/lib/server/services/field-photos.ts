@@ -5,6 +5,7 @@
  * written in one transaction; if that fails, the object is removed again, so a refused or failed
  * upload leaves neither a row nor an object. Photos are private: the public map never reads them.
  */
+import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import { imageSize } from 'image-size';
 import type { Db } from '../db';
@@ -40,6 +41,7 @@ interface PhotoRow {
 	bytes: number;
 	width: number;
 	height: number;
+	content_sha256: string | null;
 	created_at: Date;
 }
 
@@ -83,8 +85,9 @@ export async function photosOfTasks(db: Db, networkId: number, taskIds: readonly
 }
 
 /**
- * Adds a photo to a task the actor is assigned to. With an idempotency key already used for this
- * task, the photo stored then is returned (`replayed`) and nothing is stored again.
+ * Adds a photo to a task the actor is assigned to. An idempotency key already used for a photo of
+ * this task with the same bytes returns the photo stored then (`replayed`), whatever has happened to
+ * the task since, and stores nothing again; the key with other bytes or another task is a 422.
  */
 export async function addTaskPhoto(
 	db: Knex,
@@ -100,23 +103,25 @@ export async function addTaskPhoto(
 	const task = await findTask(db, network.id, taskId);
 	if (!task) throw new ServiceError(404, 'not_found', 'No such task.');
 	if (task.assignee_id !== actor.id) throw new ServiceError(403, 'not_assignee', 'This task is assigned to someone else.');
-	if (task.state === 'cancelled') throw new ServiceError(409, 'cancelled', 'This task was cancelled: no photos can be added.');
+	const sha256 = createHash('sha256').update(bytes).digest('hex');
 	const replay = async () => {
 		if (key === null) return null;
 		const row: PhotoRow | undefined = await db('field_task_photos').where({ network_id: network.id, idempotency_key: key }).first();
 		if (!row) return null;
 		if (row.task_id !== taskId) throw new ServiceError(422, 'idempotency_key_reused', 'This Idempotency-Key was already used for a photo of another task.');
+		if (row.content_sha256 !== null && row.content_sha256 !== sha256) throw new ServiceError(422, 'idempotency_key_reused', 'This Idempotency-Key was already used for another photo.');
 		return { photo: photoView(row), replayed: true };
 	};
 	const seen = await replay();
 	if (seen) return seen;
+	if (task.state === 'cancelled') throw new ServiceError(409, 'cancelled', 'This task was cancelled: no photos can be added.');
 	const image = sniffPhoto(bytes);
 
 	const objectKey = newObjectKey(`photos/${network.id}`);
 	await store.put(objectKey, bytes, { contentType: image.contentType });
 	try {
 		const id = await db.transaction(async (trx) => {
-			const [photoId] = await trx('field_task_photos').insert({ network_id: network.id, task_id: taskId, object_key: objectKey, content_type: image.contentType, bytes: bytes.byteLength, width: image.width, height: image.height, idempotency_key: key, user_id: actor.id });
+			const [photoId] = await trx('field_task_photos').insert({ network_id: network.id, task_id: taskId, object_key: objectKey, content_type: image.contentType, bytes: bytes.byteLength, width: image.width, height: image.height, content_sha256: sha256, idempotency_key: key, user_id: actor.id });
 			await recordAudit(trx, { organisationId: network.organisation_id, actorUserId: actor.id, action: 'task.photo', objectType: 'task', objectId: taskId, after: { photoId, contentType: image.contentType, bytes: bytes.byteLength, width: image.width, height: image.height } });
 			return photoId as number;
 		});

@@ -57,8 +57,8 @@ const MAX_SURFACE_CELLS = 4_000_000;
  *   recipeVersionId  the importance_recipe_versions.id it was computed from.
  *   validCount  cells with a value; min/max over them.
  *
- * For the engine, feed it through src/lib/geo/working-grid.ts via surfaceRasterBand(result),
- * which gives the RasterBand form (geotransform) that buildWorkingGrid reads.
+ * For the engine, aggregate it into a working grid (src/lib/geo/aggregate.ts) via surfaceRasterBand(result),
+ * which gives the RasterBand form (geotransform) that the aggregation reads (bandSource in src/lib/geo/aggregate.ts).
  */
 export interface NetworkImportance {
 	band: GridBand & { data: Float32Array; nodata: null };
@@ -442,7 +442,7 @@ export async function recipeVersionImportance(db: Knex, store: ObjectStore, netw
 	};
 }
 
-/** The surface in the RasterBand form of src/lib/geo/geotiff.ts (for buildWorkingGrid). */
+/** The surface in the RasterBand form of src/lib/geo/geotiff.ts (for the aggregation into a working grid: bandSource in src/lib/geo/aggregate.ts). */
 export function surfaceRasterBand(s: NetworkImportance): RasterBand {
 	const g = s.grid;
 	return {

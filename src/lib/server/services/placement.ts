@@ -22,9 +22,9 @@ import { CrsError, crsLabel, transformer } from '../../geo/crs';
 import { projectRings } from '../../geo/geojson';
 import { planMoves, type MovePlan } from '../../geo/move-plan';
 import { WorkingGridError, type WorkingGridOptions } from '../../geo/working-grid';
-import { aggregateToWorkingGrid } from '../../geo/aggregate';
+import { aggregateToWorkingGrid, bandSource } from '../../geo/aggregate';
 import { CellSizeError, type CellSizeChoice } from '../../geo/cell-size';
-import type { GeoTiffSource, RasterBand } from '../../geo/geotiff';
+import type { RasterBand } from '../../geo/geotiff';
 import { ImportanceError } from '../../importance/grid';
 import { findLayer } from '../repositories/layers';
 import { findVersion, networkRecipeVersionId } from '../repositories/recipes';
@@ -144,21 +144,6 @@ function inputFailure(e: unknown): never {
 	if (e instanceof ImportanceError || e instanceof WorkingGridError || e instanceof CrsError) throw new ServiceError(422, 'inputs_unusable', `The inputs cannot be used: ${e.message}`);
 	if (e instanceof EngineInputError) throw new ServiceError(422, 'inputs_unusable', e.message, e.field);
 	throw e;
-}
-
-/** An in-memory band (the importance surface) as a source of one block, for the streamed aggregation. */
-function bandSource(band: RasterBand): GeoTiffSource {
-	const { data, ...header } = band;
-	return {
-		...header,
-		blockWidth: band.width,
-		blockHeight: band.height,
-		overviews: [],
-		async *blocks() {
-			yield { row0: 0, width: band.width, height: band.height, data };
-		},
-		async close() {}
-	};
 }
 
 /**

@@ -15,6 +15,17 @@ import { WEB_MAP_EPSG } from '../../map/web-map';
 import type { RevisionMetrics, RevisionOutputs } from './placement';
 import { ServiceError } from './errors';
 
+/**
+ * A sensor type senses an area (a large footprint, drawn with its own symbol) when its sensing
+ * radius is at least this many metres; below it, a point probe whose radius is a siting setting.
+ * Cosmic-ray neutron sensors see about 130–240 m around them (Köhli et al. 2015, Water Resources
+ * Research); point probes sense centimetres and are given siting radii of tens of metres (common
+ * practice, no source).
+ */
+export const AREA_FOOTPRINT_MIN_M = 100;
+export type Footprint = 'point' | 'area';
+export const footprintOf = (radiusM: number): Footprint => (radiusM >= AREA_FOOTPRINT_MIN_M ? 'area' : 'point');
+
 export interface PublicSite {
 	lon: number;
 	lat: number;
@@ -23,6 +34,8 @@ export interface PublicSite {
 	y: number;
 	radiusM: number;
 	type: string;
+	/** `area`: a large-footprint sensor (e.g. cosmic-ray neutrons); `point`: a probe. */
+	footprint: Footprint;
 }
 
 export interface PublicMap {
@@ -34,7 +47,7 @@ export interface PublicMap {
 	/** Grid cell size (m) the positions are generalised to; null = exact positions. */
 	generalisedToM: number | null;
 	sites: PublicSite[];
-	sensorTypes: { name: string; radiusM: number; count: number }[];
+	sensorTypes: { name: string; radiusM: number; count: number; footprint: Footprint }[];
 	coverage: { sensorCount: number; coverage: number | null; p95DistanceM: number | null; zones: { name: string; importanceShare: number | null; sensors: number }[] };
 	importance: { url: string; bounds: MapBounds; min: number; max: number; legend: MapLegendStop[] } | null;
 }
@@ -100,15 +113,15 @@ export async function publicMap(db: Db, slug: string, importance: ImportanceSour
 				[x, y] = generalise(x, y, grid);
 				[lon, lat] = back(x, y);
 			}
-			return { lon, lat, x, y, radiusM: c.radiusM, type: c.type };
+			return { lon, lat, x, y, radiusM: c.radiusM, type: c.type, footprint: footprintOf(c.radiusM) };
 		});
 		// Stable order that says nothing about codes or tasks.
 		sites.sort((a, b) => a.x - b.x || a.y - b.y);
 	}
-	const counts = new Map<string, { name: string; radiusM: number; count: number }>();
+	const counts = new Map<string, { name: string; radiusM: number; count: number; footprint: Footprint }>();
 	for (const s of sites) {
 		const k = `${s.type}|${s.radiusM}`;
-		counts.set(k, { name: s.type, radiusM: s.radiusM, count: (counts.get(k)?.count ?? 0) + 1 });
+		counts.set(k, { name: s.type, radiusM: s.radiusM, count: (counts.get(k)?.count ?? 0) + 1, footprint: s.footprint });
 	}
 	const zoneShares = new Map(doc.zones.map((z) => [z.code, z]));
 	const b = doc.backdrop && doc.backdrop.kind === 'importance' ? doc.backdrop : null;
@@ -129,6 +142,59 @@ export async function publicMap(db: Db, slug: string, importance: ImportanceSour
 		},
 		importance: b ? { url: `${apiBase}/importance.png`, bounds: b.bounds, min: b.min, max: b.max, legend: b.legend } : null
 	};
+}
+
+/**
+ * What the public map is made of, as one short string from one query: the network row's public
+ * settings and geometry, the current plan, the done tasks (as-installed positions), the inventory
+ * (a network with no plan shows it), the sensor types and the zones' shares. Null when no network
+ * is published under `slug`. Order-independent sums of CRC32s stand for the small tables, so no
+ * GROUP_CONCAT is cut short.
+ */
+export async function publicMapFingerprint(db: Db, slug: string): Promise<{ fingerprint: string; hasRecipe: boolean } | null> {
+	if (!SLUG.test(slug) || slug.length > 64) return null;
+	const [rows] = await db.raw(
+		`SELECT CONCAT_WS('|', n.id, n.version, n.updated_at, n.slug, MD5(n.name), MD5(n.public_text), COALESCE(n.public_grid_m, ''),
+			COALESCE(n.recipe_version_id, ''), COALESCE(n.zone_set_id, ''), COALESCE(n.working_epsg, ''), COALESCE(n.crs_epsg, ''),
+			COALESCE(MD5(n.study_area), ''), COALESCE(MD5(n.exclusions), ''),
+			(SELECT CONCAT(p.id, ':', p.revision_id) FROM plans p WHERE p.network_id = n.id AND p.state = 'current'),
+			(SELECT CONCAT(COUNT(*), ':', COALESCE(MAX(t.updated_at), ''), ':', COALESCE(SUM(CRC32(CONCAT_WS(',', t.id, t.installed_lon, t.installed_lat))), 0)) FROM field_tasks t WHERE t.network_id = n.id AND t.state = 'done'),
+			(SELECT CONCAT(COUNT(*), ':', COALESCE(MAX(s.updated_at), ''), ':', COALESCE(SUM(CRC32(CONCAT_WS(',', s.id, s.status, s.lon, s.lat, s.sensor_type_id))), 0)) FROM sensors s WHERE s.network_id = n.id),
+			(SELECT CONCAT(COUNT(*), ':', COALESCE(SUM(CRC32(CONCAT_WS(',', st.id, st.name, st.radius_m))), 0)) FROM sensor_types st WHERE st.network_id = n.id),
+			(SELECT CONCAT(COUNT(*), ':', COALESCE(SUM(CRC32(CONCAT_WS(',', z.id, z.code, z.name, z.importance_share))), 0)) FROM zones z WHERE z.zone_set_id = n.zone_set_id)
+		) AS fingerprint, n.recipe_version_id IS NOT NULL AS has_recipe
+		FROM networks n WHERE n.published_slug = ?`,
+		[slug]
+	);
+	const row = (rows as { fingerprint: string; has_recipe: number }[])[0];
+	return row ? { fingerprint: row.fingerprint, hasRecipe: Boolean(row.has_recipe) } : null;
+}
+
+/** Public maps built in this process, by slug, with the fingerprint they were built from. */
+const built = new Map<string, { fingerprint: string; map: PublicMap }>();
+const BUILT_MAX = 64;
+
+/**
+ * The public map, built once per change of what it is made of: each request costs one small query
+ * (`publicMapFingerprint`); a plan approved, a task done, a publish setting or the network changed
+ * (in any process) gives another fingerprint and the map is built again. A map built while its
+ * importance surface is still being computed is not kept, so the overlay appears once it is ready.
+ */
+export async function cachedPublicMap(db: Db, slug: string, importance: ImportanceSource): Promise<PublicMap> {
+	const f = await publicMapFingerprint(db, slug);
+	if (!f) {
+		built.delete(slug);
+		throw new ServiceError(404, 'not_found', 'No such public map.');
+	}
+	const hit = built.get(slug);
+	if (hit && hit.fingerprint === f.fingerprint) return hit.map;
+	const map = await publicMap(db, slug, importance);
+	if (map.importance || !f.hasRecipe) {
+		built.delete(slug);
+		if (built.size >= BUILT_MAX) built.delete(built.keys().next().value!);
+		built.set(slug, { fingerprint: f.fingerprint, map });
+	}
+	return map;
 }
 
 /**

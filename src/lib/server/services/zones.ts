@@ -33,7 +33,10 @@ import { computeZones } from '../../engine/zones';
 import { rasterizeZones } from '../../engine/rasterize';
 import type { WorkingGrid, ZoneMap } from '../../engine/types';
 import { EngineInputError } from '../../engine/errors';
-import { buildWorkingGrid, WorkingGridError } from '../../geo/working-grid';
+import { WorkingGridError, type WorkingGridOptions } from '../../geo/working-grid';
+import { aggregateToWorkingGrid, bandSource } from '../../geo/aggregate';
+import { CellSizeError } from '../../geo/cell-size';
+import type { RasterBand } from '../../geo/geotiff';
 import { ImportanceError } from '../../importance/grid';
 import type { ObjectStore } from '../storage';
 import { networkImportance, surfaceRasterBand } from './importance';
@@ -60,7 +63,7 @@ export interface NewZone {
 // ---------------------------------------------------------------- pure geometry helpers
 
 /** A rectangle in working-CRS metres as a lon/lat ring, edges densified so it follows the projection. */
-function rectToLonLat(xmin: number, ymin: number, xmax: number, ymax: number, inverse: (x: number, y: number) => [number, number], pieces = 8): Position[] {
+export function rectToLonLat(xmin: number, ymin: number, xmax: number, ymax: number, inverse: (x: number, y: number) => [number, number], pieces = 8): Position[] {
 	const pts: Position[] = [];
 	const side = (ax: number, ay: number, bx: number, by: number) => {
 		for (let k = 0; k < pieces; k++) pts.push(inverse(ax + ((bx - ax) * k) / pieces, ay + ((by - ay) * k) / pieces));
@@ -197,12 +200,38 @@ function sharesOfMap(grid: WorkingGrid, map: ZoneMap): (number | null)[] {
 	return total > 0 ? Array.from(sums, (s) => s / total) : map.ids.map(() => null);
 }
 
-/** Largest importance grid used for zones; coarser cells are taken beyond it (zones are coarse). */
-const MAX_ZONE_GRID_CELLS = 250_000;
+/**
+ * Cell budget of the importance grid for zones (rule 2 of chooseCellSize, src/lib/geo/cell-size.ts):
+ * zones are coarse, so a quarter of a placement run's budget.
+ */
+export const ZONE_CELL_BUDGET = 250_000;
 
 /**
- * The network's importance (its chosen recipe version) on the working grid, clipped to the study
- * area and with exclusions at zero; null when no recipe version is chosen yet.
+ * The importance surface on the working grid that zones are measured and computed on: the same
+ * mass-preserving aggregation and cell-size rule as a placement run's grid (aggregateToWorkingGrid,
+ * chooseCellSize), with the zones' budget and no sensing radius (zones do not depend on one); the
+ * study area and exclusions count as shares of cells, so each zone's importance is the surface's
+ * integral over it, up to edge cells. Zones are counted by cell centre, and zones drawn to the study
+ * area's outline would leave out the cells it only grazes: a cell whose centre lies outside the
+ * study area gives its (partial) mass up, and the rest is normalised again, so that zones which
+ * partition the study area hold all of it.
+ */
+export async function zoneImportanceGrid(band: RasterBand, opts: Pick<WorkingGridOptions, 'crs' | 'studyArea' | 'exclusions'>): Promise<WorkingGrid> {
+	const { grid } = await aggregateToWorkingGrid(bandSource(band), { ...opts, smallestRadius: null, cellBudget: ZONE_CELL_BUDGET });
+	if (!opts.studyArea?.length) return grid;
+	const fwd = transformer(4326, parseEpsg(grid.crs)).forward;
+	const inside = rasterizeZones(grid, opts.studyArea.map((p, k) => ({ id: String(k), rings: projectRings(p, fwd, grid.cellSize / 4) }))).cellZone;
+	const mass = new Float64Array(grid.mass.length);
+	let total = 0;
+	for (let i = 0; i < mass.length; i++) if (inside[i] >= 0) total += mass[i] = grid.mass[i];
+	if (total > 0) for (let i = 0; i < mass.length; i++) mass[i] /= total;
+	return { ...grid, mass };
+}
+
+/**
+ * The network's importance (its chosen recipe version) on the zones' working grid
+ * (zoneImportanceGrid: aggregated, study area and exclusions as shares of cells); null when no
+ * recipe version is chosen yet.
  */
 export async function importanceForZones(db: Knex, store: ObjectStore, network: NetworkRow): Promise<ImportanceSurface | null> {
 	try {
@@ -214,13 +243,11 @@ export async function importanceForZones(db: Knex, store: ObjectStore, network: 
 			studyArea: area?.coordinates?.length ? area.coordinates : undefined,
 			exclusions: exclusionList(network.exclusions).map((f) => f.geometry.coordinates).flat()
 		};
-		let { grid } = buildWorkingGrid(surfaceRasterBand(imp), opts);
-		const cells = grid.width * grid.height;
-		if (cells > MAX_ZONE_GRID_CELLS) ({ grid } = buildWorkingGrid(surfaceRasterBand(imp), { ...opts, cellSize: grid.cellSize * Math.sqrt(cells / MAX_ZONE_GRID_CELLS) }));
+		const grid = await zoneImportanceGrid(surfaceRasterBand(imp), opts);
 		return { grid, recipeVersionId: imp.recipeVersionId };
 	} catch (e) {
 		// A recipe that cannot be computed (a layer gone, a grid outside the study area …): say so.
-		if (e instanceof ImportanceError || e instanceof WorkingGridError || e instanceof CrsError) {
+		if (e instanceof ImportanceError || e instanceof WorkingGridError || e instanceof CrsError || e instanceof CellSizeError) {
 			throw new ServiceError(422, 'importance_unavailable', `The importance cannot be measured: ${e.message}`);
 		}
 		throw e;

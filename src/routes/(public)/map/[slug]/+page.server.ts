@@ -3,14 +3,14 @@ import type { PageServerLoad } from './$types';
 import { getDb } from '$lib/server/db';
 import { appOrigin } from '$lib/server/mail/origin';
 import { ServiceError } from '$lib/server/services/errors';
-import { publicMap, publicWebMap } from '$lib/server/services/public-map';
+import { cachedPublicMap, publicWebMap } from '$lib/server/services/public-map';
 import { basemapSettings } from '$lib/server/http/basemap';
 import { importanceSource } from '../../../api/v1/networks/[id=id]/map/importance-source';
 
 // Public: no sign-in. Only the public map's own fields reach the page (see services/public-map).
 export const load = (async (event) => {
 	try {
-		const map = await publicMap(getDb(), event.params.slug, importanceSource());
+		const map = await cachedPublicMap(getDb(), event.params.slug, importanceSource());
 		// Only with a basemap set: what the page needs to become a web map over it in the browser.
 		const web = basemapSettings() ? await publicWebMap(getDb(), event.params.slug, importanceSource()) : null;
 		return { map, web, shareUrl: `${appOrigin()}/map/${map.network.slug}` };

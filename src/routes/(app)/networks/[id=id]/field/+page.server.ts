@@ -3,17 +3,14 @@ import { fail, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { getDb } from '$lib/server/db';
 import { networkAccess } from '$lib/server/auth/network-access';
-import { recordAudit } from '$lib/server/repositories/audit';
 import { ServiceError } from '$lib/server/services/errors';
 import { applyTaskUpdate, currentTasks, fieldSettings } from '$lib/server/services/field-tasks';
 import { routeMap } from '$lib/server/services/route-map';
 import { basemapSettings } from '$lib/server/http/basemap';
 import { photosOfTasks } from '$lib/server/services/field-photos';
+import { acknowledgeCautions, cautionsAcknowledged } from '$lib/server/services/field-cautions';
 import { updateFromForm } from '$lib/field/update-form';
 import { importanceSource } from '../../../../api/v1/networks/[id=id]/map/importance-source';
-
-const ACK_COOKIE = 'cf-cautions-ack';
-const today = () => new Date().toISOString().slice(0, 10);
 
 export const load = (async (event) => {
 	const { network, actor } = await networkAccess(event, 'task.work');
@@ -38,7 +35,8 @@ export const load = (async (event) => {
 			keys: { started: randomUUID(), done: randomUUID(), blocked: randomUUID(), open: randomUUID() }
 		})),
 		toleranceM: (await fieldSettings(db, network.id)).installToleranceM,
-		cautionsAcknowledged: event.cookies.get(ACK_COOKIE) === `${actor.id}:${today()}`,
+		// Read today (UTC day) by this technician, on any device.
+		cautionsAcknowledged: await cautionsAcknowledged(db, network.id, actor.id),
 		map: await routeMap(db, network, active, importanceSource(), { web: basemapSettings() !== null }),
 		photos: await photosOfTasks(db, network.id, active.map((t) => t.id))
 	};
@@ -47,8 +45,7 @@ export const load = (async (event) => {
 export const actions = {
 	acknowledge: async (event) => {
 		const { network, actor } = await networkAccess(event, 'task.work');
-		event.cookies.set(ACK_COOKIE, `${actor.id}:${today()}`, { path: `/networks/${network.id}`, httpOnly: true, sameSite: 'lax', maxAge: 60 * 60 * 24 });
-		await recordAudit(getDb(), { organisationId: network.organisation_id, actorUserId: actor.id, action: 'cautions.acknowledge', objectType: 'network', objectId: network.id, after: { day: today() } });
+		await acknowledgeCautions(getDb(), network, actor, {});
 		redirect(303, `/networks/${network.id}/field`);
 	},
 	update: async (event) => {

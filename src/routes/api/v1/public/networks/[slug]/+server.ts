@@ -2,7 +2,7 @@ import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import { getDb } from '$lib/server/db';
 import { apiHandler } from '$lib/server/api/errors';
-import { publicMap } from '$lib/server/services/public-map';
+import { cachedPublicMap } from '$lib/server/services/public-map';
 import { importanceSource } from '../../../networks/[id=id]/map/importance-source';
 
 /**
@@ -11,6 +11,6 @@ import { importanceSource } from '../../../networks/[id=id]/map/importance-sourc
  * An unpublished or unknown network is a 404.
  */
 export const GET: RequestHandler = apiHandler(async (event) => {
-	const map = await publicMap(getDb(), event.params.slug ?? '', importanceSource());
+	const map = await cachedPublicMap(getDb(), event.params.slug ?? '', importanceSource());
 	return json(map, { headers: { 'cache-control': 'public, max-age=60' } });
 });
