@@ -21,6 +21,7 @@ import { createUploadedZoneSet, importanceForZones, useZoneSet } from '../src/li
 import type { ObjectStore } from '../src/lib/server/storage/object-store';
 import { networkRecipeVersionId } from '../src/lib/server/repositories/recipes';
 import { prepareMapImportance } from '../src/lib/server/services/map-importance';
+import { WEB_MAP_EPSG } from '../src/lib/map/web-map';
 import { workingCrs } from '../src/lib/server/services/working-crs';
 
 const demoDir = path.resolve(import.meta.dirname, '../data/demo');
@@ -153,12 +154,13 @@ export async function seedDemoNetwork(db: Knex, store: ObjectStore, a: DemoActor
 }
 
 /**
- * Draws the importance map of the recipe version in use, in the working CRS, as its map-importance
- * job would (here, in the seeding process): the demo's map opens with its importance at once. Does
- * nothing when it is drawn already.
+ * Draws the importance map of the recipe version in use, in the working CRS (server-drawn maps) and
+ * in EPSG:3857 (the web maps), as its map-importance jobs would (here, in the seeding process): the
+ * demo's maps open with their importance at once. Does nothing when they are drawn already.
  */
 export async function seedDemoMapImportance(db: Knex, store: ObjectStore, a: DemoActors): Promise<void> {
 	const versionId = await networkRecipeVersionId(db, a.networkId);
 	const epsg = await workingCrs(db, await network(db, a.networkId));
-	if (versionId !== null && epsg !== null) await prepareMapImportance(db, store, { networkId: a.networkId, versionId, epsg });
+	if (versionId === null || epsg === null) return;
+	for (const e of new Set([epsg, WEB_MAP_EPSG])) await prepareMapImportance(db, store, { networkId: a.networkId, versionId, epsg: e });
 }

@@ -7,12 +7,15 @@ import { apiErrorBody } from '$lib/server/api/errors';
 import { closeDb, getDb } from '$lib/server/db';
 import { bodyLimitFor, boundBody } from '$lib/server/http/body-limit';
 import { applySecurityHeaders } from '$lib/server/http/security-headers.js';
+import { basemapSettings, loadBasemapSettings, withImageSource } from '$lib/server/http/basemap';
 import { startOutboxTimer } from '$lib/server/mail/outbox';
 import { startHousekeeping } from '$lib/server/services/housekeeping';
 import { getObjectStore } from '$lib/server/storage/app-store';
 
 /** Runs once when the server starts, before the first request (not when a build step imports this module). */
 export const init: ServerInit = () => {
+	// A malformed basemap setting stops the server here, with a message that says what to fix.
+	loadBasemapSettings();
 	startOutboxTimer();
 	startHousekeeping(getDb, getObjectStore);
 };
@@ -45,14 +48,21 @@ const boundaryHandle: Handle = async ({ event, resolve }) => {
 		response = await resolve(event);
 	}
 	try {
-		applySecurityHeaders(response.headers);
+		setHeaders(response.headers);
 	} catch {
 		// Immutable headers (a fetched response passed through): copy it.
 		response = new Response(response.body, response);
-		applySecurityHeaders(response.headers);
+		setHeaders(response.headers);
 	}
 	return response;
 };
+
+/** The security headers; a page's own CSP (SvelteKit's) also allows images from the basemap's origin when one is set. */
+function setHeaders(headers: Headers) {
+	const pageCsp = headers.get('content-security-policy');
+	if (pageCsp) headers.set('content-security-policy', withImageSource(pageCsp, basemapSettings()?.origin ?? null));
+	applySecurityHeaders(headers);
+}
 
 /**
  * Re-reads the user and their roles from MariaDB on every request: a demoted user loses rights at

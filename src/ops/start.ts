@@ -13,6 +13,7 @@ import { migrateLatest, seedDemo } from './database';
 import { startFakeSmtp } from './fake-smtp';
 import { createAppDatabase, startMariaDb, type MariaDbServer } from './mariadb';
 import { log, portInUse } from './system';
+import { BasemapSettingError, parseBasemapSettings } from '../lib/server/http/basemap';
 import { startWorkerProcess, type WorkerProcess } from './worker-process';
 
 const root = path.resolve(import.meta.dirname, '../..');
@@ -33,6 +34,16 @@ const host = process.env.HOST ?? '127.0.0.1';
 const dbPort = Number(process.env.DB_PORT ?? 3307);
 const smtpPort = Number(process.env.SMTP_PORT ?? 2525);
 const origin = process.env.ORIGIN ?? `http://${host === '0.0.0.0' ? '127.0.0.1' : host}:${port}`;
+
+// The server checks the basemap setting again when it starts; here it fails before any set-up work.
+try {
+	const basemap = parseBasemapSettings();
+	if (basemap) log(`basemap: tiles from ${basemap.origin} (${basemap.attribution})`);
+} catch (e) {
+	if (!(e instanceof BasemapSettingError)) throw e;
+	console.error(e.message);
+	process.exit(1);
+}
 
 let mariadb: MariaDbServer | null = null;
 let smtp: { close(): Promise<void> } | null = null;

@@ -132,33 +132,43 @@ try {
 		const origin = `http://127.0.0.1:${appPort}`;
 		await seedDemo(databaseUrl, origin, { ...process.env, ...env });
 		buildIfChanged();
-		const app = spawn(process.execPath, [path.join(root, 'src', 'ops', 'serve.mjs')], {
-			cwd: root,
-			stdio: ['ignore', 'ignore', 'inherit'],
-			// As a deployment runs it: production, the server's outer body bound of `npm start` (each route has its own).
-			env: { ...process.env, ...env, NODE_ENV: 'production', SHUTDOWN_TIMEOUT: '3', PORT: String(appPort), HOST: '127.0.0.1', ORIGIN: origin, BODY_SIZE_LIMIT: String(600 * 1024 * 1024) }
-		});
-		cleanups.push(
-			() =>
-				new Promise<void>((resolve) => {
-					if (app.exitCode !== null || app.signalCode !== null) return resolve();
-					const t = setTimeout(() => app.kill('SIGKILL'), 5_000);
-					app.once('exit', () => {
-						clearTimeout(t);
-						resolve();
-					});
-					app.kill('SIGTERM');
-				})
-		);
+		/** The built app on `port` against the test database, as a deployment runs it. */
+		const startApp = (port: number, extra: NodeJS.ProcessEnv = {}) => {
+			const app = spawn(process.execPath, [path.join(root, 'src', 'ops', 'serve.mjs')], {
+				cwd: root,
+				stdio: ['ignore', 'ignore', 'inherit'],
+				// Production, with the server's outer body bound of `npm start` (each route has its own).
+				env: { ...process.env, ...env, NODE_ENV: 'production', SHUTDOWN_TIMEOUT: '3', PORT: String(port), HOST: '127.0.0.1', ORIGIN: `http://127.0.0.1:${port}`, BODY_SIZE_LIMIT: String(600 * 1024 * 1024), ...extra }
+			});
+			cleanups.push(
+				() =>
+					new Promise<void>((resolve) => {
+						if (app.exitCode !== null || app.signalCode !== null) return resolve();
+						const t = setTimeout(() => app.kill('SIGKILL'), 5_000);
+						app.once('exit', () => {
+							clearTimeout(t);
+							resolve();
+						});
+						app.kill('SIGTERM');
+					})
+			);
+		};
+		startApp(appPort);
+		// A second server of the same build and database with a basemap set (tests/e2e/basemap.spec.ts):
+		// its tiles' host is a reserved name (.test, RFC 2606) that the test answers itself, in the browser.
+		const basemapPort = await freePort();
+		const basemapEnv = { BASEMAP_URL: 'https://tiles.basemap.test/{z}/{x}/{y}.png', BASEMAP_ATTRIBUTION: '© Test tiles for Cairnfield', BASEMAP_MAX_ZOOM: '18' };
+		startApp(basemapPort, basemapEnv);
 		// The test worker's computing threads keep the worker's own priority (JOBS_NICE) instead of the
 		// lowest: on a machine busy with other work, threads at nice 19 wait so long that the tests'
 		// jobs run out of time. (The page-latency figures are the bench's, not the tests'.)
 		const worker = startWorkerProcess({ ...env, JOBS_POLL_MS: '200', JOBS_THREAD_NICE: env.JOBS_NICE ?? '10' }, ['ignore', 'ignore', 'inherit']);
 		cleanups.push(() => worker.stop(10_000));
 		await waitFor('the app to listen', () => portInUse(appPort), 30_000);
-		log(`end-to-end tests (Playwright, /usr/bin/chromium) against ${origin}`);
+		await waitFor('the app with a basemap to listen', () => portInUse(basemapPort), 30_000);
+		log(`end-to-end tests (Playwright, /usr/bin/chromium) against ${origin} (with a basemap: port ${basemapPort})`);
 		const report = path.join(tmp, 'playwright.json');
-		const code = await run(bin('playwright'), ['test', ...filters], { ...env, BASE_URL: origin, PLAYWRIGHT_JSON_OUTPUT_NAME: report });
+		const code = await run(bin('playwright'), ['test', ...filters], { ...env, ...basemapEnv, BASE_URL: origin, BASEMAP_BASE_URL: `http://127.0.0.1:${basemapPort}`, PLAYWRIGHT_JSON_OUTPUT_NAME: report });
 		const r = readJson(report) as { stats: { expected: number; unexpected: number; flaky: number; skipped: number } } | null;
 		if (r) {
 			total.passed += r.stats.expected + r.stats.flaky;

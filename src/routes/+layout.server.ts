@@ -1,11 +1,15 @@
 import type { LayoutServerLoad } from './$types';
 import { roleAllows } from '$lib/server/auth/roles';
+import { basemapView } from '$lib/server/http/basemap';
 
-// Only what the navigation needs. Authorization happens in each page's own load.
+// Only what the navigation and the maps need. Authorization happens in each page's own load.
 export const load = (async ({ locals }) => {
 	const a = locals.actor;
-	if (!a) return { me: null };
+	// The deployment's basemap (tile template, attribution) or null: the same for everyone, nothing private.
+	const basemap = basemapView();
+	if (!a) return { me: null, basemap };
 	return {
+		basemap,
 		me: {
 			name: a.name,
 			email: a.email,

@@ -7,6 +7,8 @@ import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { randomBytes } from 'node:crypto';
 import { expect, test } from '@playwright/test';
+import geodesic from 'geographiclib-geodesic';
+import proj4 from 'proj4';
 import type { Knex } from 'knex';
 import { createDb } from '../../src/lib/server/db/knex';
 import { enqueueJob } from '../../src/lib/server/jobs/queue';
@@ -14,6 +16,8 @@ import { seedDemoInventory } from '../../seeds/demo-inventory';
 import { contextFor, demoUser, saveRecipeViaApi, signInPage, uploadLayerViaApi, gotoHydrated } from './support';
 
 const demo = (f: string) => path.resolve(import.meta.dirname, '../../data/demo', f);
+/** Ground distance on WGS 84 (GeographicLib, the oracle) between two [lon, lat] points. */
+const geodesicM = (a: readonly number[], b: readonly number[]) => geodesic.Geodesic.WGS84.Inverse(a[1], a[0], b[1], b[0]).s12 as number;
 
 interface DemoSensorRow {
 	id: string;
@@ -216,6 +220,21 @@ test('an analyst draws a named exclusion on the map; a technician has no Draw co
 	const box = (await mapEl.boundingBox())!;
 	const cx = box.x + box.width / 2;
 	const cy = box.y + box.height / 2;
+	// What the cursor read-out says at the first two corners (lon/lat and working-CRS metres).
+	const readAt = async (x: number, y: number) => {
+		await page.mouse.move(x, y);
+		const text = (await page.getByTestId('cursor-coords').textContent()) ?? '';
+		const m = /lon ([\d.]+)° ([EW]), lat ([\d.]+)° ([NS]).*x ([\d\u2009]+) m, y ([\d\u2009]+) m/s.exec(text);
+		expect(m, text).not.toBeNull();
+		const num = (v: string) => Number(v.replace(/\u2009/g, ''));
+		return { lon: num(m![1]) * (m![2] === 'W' ? -1 : 1), lat: num(m![3]) * (m![4] === 'S' ? -1 : 1), x: num(m![5]), y: num(m![6]) };
+	};
+	const first = await readAt(cx - 60, cy + 40);
+	const second = await readAt(cx + 70, cy + 50);
+	const scaleLine = page.locator('.leaflet-control-scale-line');
+	const scaleText = (await scaleLine.textContent()) ?? '';
+	const scaleMetres = Number(/[\d.]+/.exec(scaleText)![0]) * (scaleText.includes('km') ? 1000 : 1);
+	const scalePx = (await scaleLine.boundingBox())!.width;
 	await page.mouse.click(cx - 60, cy + 40);
 	await page.mouse.click(cx + 70, cy + 50);
 	await expect(page.locator('path.cf-draft-vertex')).toHaveCount(2);
@@ -239,6 +258,21 @@ test('an analyst draws a named exclusion on the map; a technician has no Draw co
 	const ring = after.exclusions[1].geometry.coordinates[0][0] as [number, number][];
 	expect(ring).toHaveLength(4);
 	expect(ring[0]).toEqual(ring[3]);
+	// The corners were stored where they were clicked (the web map is EPSG:3857; a click becomes
+	// working-CRS metres, then lon/lat): the stored vertex is the read-out's lon/lat, the read-out's
+	// working-CRS metres give that lon/lat through an independent UTM definition, and the ground
+	// distance between the two corners is their distance on screen at the scale bar's metres per pixel.
+	const near = (p: { lon: number; lat: number }) => ring.slice(0, 3).reduce((best, v) => (Math.hypot(v[0] - p.lon, v[1] - p.lat) < Math.hypot(best[0] - p.lon, best[1] - p.lat) ? v : best));
+	const utm = proj4(`+proj=utm +zone=${docBefore.crs.epsg % 100}${docBefore.crs.epsg > 32700 ? ' +south' : ''} +datum=WGS84 +units=m +no_defs`, 'EPSG:4326');
+	for (const p of [first, second]) {
+		const v = near(p);
+		expect(Math.abs(v[0] - p.lon)).toBeLessThanOrEqual(0.6e-5);
+		expect(Math.abs(v[1] - p.lat)).toBeLessThanOrEqual(0.6e-5);
+		const [lon, lat] = utm.forward([p.x, p.y]);
+		expect(geodesicM(v, [lon, lat])).toBeLessThan(1.5);
+	}
+	const groundM = geodesicM(near(first), near(second));
+	expect(Math.abs(groundM / (Math.hypot(130, 10) * (scaleMetres / scalePx)) - 1)).toBeLessThan(0.03);
 	const docAfter = (await (await analyst.get(`/api/v1/networks/${networkId}/map`)).json()).map;
 	expect(docAfter.exclusions).toHaveLength(ringsBefore + 1);
 	await page.screenshot({ path: '/tmp/map-app-drawn.png' });

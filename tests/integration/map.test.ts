@@ -180,7 +180,9 @@ describe('networkMap (service, test database)', () => {
 		expect(again.backdrop).toEqual(doc.backdrop);
 		expect((await queueMapImportanceOfVersion(t.db, networkId, versionId))!.id).toBe(job.id);
 		expect(await prepareMapImportance(t.db, store, { networkId, versionId, epsg: 32632 })).toEqual({ drawn: false, empty: false });
-		expect(await t.db('jobs').where({ kind: MAP_IMPORTANCE }).count({ n: '*' }).first()).toEqual({ n: 1 });
+		// The version's own step also queues the web map's image (EPSG:3857): one job per CRS, never two for one.
+		const queued = (await t.db('jobs').where({ kind: MAP_IMPORTANCE }).select('payload')).map((j) => (jsonValue(j.payload) as { epsg: number }).epsg).sort();
+		expect(queued).toEqual([3857, 32632]);
 
 		// 4. The CRS is the job's parameter: the same version for a web map (EPSG:3857) is its own image,
 		// whose bounds hold the surface's corners as proj4 puts them in web Mercator.
@@ -197,6 +199,58 @@ describe('networkMap (service, test database)', () => {
 		await t.db('importance_recipes').where({ id: recipeId }).del();
 		rmSync(dir, { recursive: true, force: true });
 	}, 180_000);
+
+	it('for the web map (imageEpsg 3857): the image in EPSG:3857, contours still in the working CRS, kept apart from the working-CRS image', async () => {
+		const network = (await findNetwork(t.db, networkId))!;
+		const [cx, cy] = proj4('EPSG:4326', UTM32, [9, 52]);
+		const surface = coneSurface(cx, cy);
+		const dir = mkdtempSync(path.join(tmpdir(), 'cairnfield-map-'));
+		const cache = new FsObjectStore(dir);
+		const data = Float32Array.from(surface.data);
+		await cache.put('importance/cone-web', encodeSurface({ grid: surface.grid, data, validCount: data.length, min: Math.min(...data), max: Math.max(...data) }));
+		const [recipeId] = await t.db('importance_recipes').insert({ network_id: networkId, name: 'cone web', latest_version: 1 });
+		const [versionId] = await t.db('importance_recipe_versions').insert({ recipe_id: recipeId, version: 1, definition: JSON.stringify({ layers: [] }), surface_key: 'importance/cone-web', grid_epsg: 32632 });
+		const source: ImportanceSource = { versionId: async () => versionId };
+		// Each CRS is its own drawing, once (the map-importance job does this; here in the test's thread).
+		expect(await prepareMapImportance(t.db, cache, { networkId, versionId, epsg: 3857 })).toEqual({ drawn: true, empty: false });
+		expect(await prepareMapImportance(t.db, cache, { networkId, versionId, epsg: 3857 })).toEqual({ drawn: false, empty: false });
+		expect(await prepareMapImportance(t.db, cache, { networkId, versionId, epsg: 32632 })).toEqual({ drawn: true, empty: false });
+		const doc = await networkMap(t.db, { network, importance: source, cache, apiBase: '/api/v1/networks/1', imageEpsg: 3857 });
+		expect(doc.importanceJob).toBeNull();
+		expect(doc.crs?.epsg).toBe(32632);
+		expect(doc.backdrop?.epsg).toBe(3857);
+		expect(doc.backdrop?.url).toBe('/api/v1/networks/1/map/importance.png?epsg=3857');
+		// The image's box holds the surface's corners in spherical Mercator (an independent definition).
+		const merc = proj4(UTM32, '+proj=merc +a=6378137 +b=6378137 +lat_ts=0 +lon_0=0 +x_0=0 +y_0=0 +k=1 +units=m +no_defs');
+		const b = doc.backdrop!.bounds;
+		for (const [x, y] of [[cx - 1000, cy - 1000], [cx + 1000, cy - 1000], [cx - 1000, cy + 1000], [cx + 1000, cy + 1000]]) {
+			const [mx, my] = merc.forward([x, y]);
+			expect(mx).toBeGreaterThanOrEqual(b[0] - 1e-6);
+			expect(mx).toBeLessThanOrEqual(b[2] + 1e-6);
+			expect(my).toBeGreaterThanOrEqual(b[1] - 1e-6);
+			expect(my).toBeLessThanOrEqual(b[3] + 1e-6);
+		}
+		// Mercator metres at 52° N are 1/cos 52° ≈ 1.62 ground metres: the box is that much larger than 2 km.
+		expect((b[2] - b[0]) / 2000).toBeGreaterThan(1.6);
+		// Contours come back as working-CRS circles of radius 1000 (1 − v) m; the image grid's cells are
+		// about 20 ground metres (100 cells over the Mercator box): allow two.
+		expect(doc.contours.length).toBeGreaterThanOrEqual(3);
+		for (const c of doc.contours) {
+			const want = 1000 * (1 - c.level);
+			for (const [px, py] of c.lines[0]) expect(Math.abs(Math.hypot(px - cx, py - cy) - want)).toBeLessThan(40);
+		}
+		// The extent stays in working-CRS metres around the surface.
+		expect(doc.extent![0]).toBeLessThan(cx - 1000);
+		expect(doc.extent![2]).toBeGreaterThan(cx + 1000);
+		expect(doc.extent![2] - doc.extent![0]).toBeLessThan(2000 * 1.3);
+		// The two images are kept apart: the working-CRS one is the surface's own 100 × 100 grid, the web one has the aspect of its own box.
+		const web = PNG.sync.read((await importancePng(t.db, network, source, cache, 3857))!);
+		const working = PNG.sync.read((await importancePng(t.db, network, source, cache))!);
+		expect([working.width, working.height]).toEqual([100, 100]);
+		expect(web.width / web.height).toBeCloseTo((b[2] - b[0]) / (b[3] - b[1]), 1);
+		await t.db('importance_recipes').where({ id: recipeId }).del();
+		rmSync(dir, { recursive: true, force: true });
+	});
 
 	it('without importance, the latest ready layer preview is the backdrop, for roles that may view layers only', async () => {
 		const network = (await findNetwork(t.db, networkId))!;

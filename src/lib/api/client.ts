@@ -135,6 +135,9 @@ export interface MapBackdrop {
 	kind: 'importance' | 'layer';
 	label: string;
 	url: string;
+	/** The CRS of the image and its bounds: the working CRS, or EPSG:3857 for the web maps. */
+	epsg: number;
+	/** [minX, minY, maxX, maxY] in `epsg` (unlike the document's other geometry, which is in the working CRS). */
 	bounds: MapBounds;
 	min: number;
 	max: number;
@@ -147,6 +150,16 @@ export interface MapContour {
 	level: number;
 	/** Lines (open, or closed when first = last) in the map CRS. */
 	lines: MapPoint[][];
+}
+
+/**
+ * What a server-drawn map (working CRS, SVG) needs to become a web map in the browser when the
+ * deployment sets a basemap: the working CRS's proj4 definition and the importance overlay in
+ * EPSG:3857 (null without importance).
+ */
+export interface WebMapExtras {
+	proj4: string;
+	overlay: { url: string; epsg: number; bounds: MapBounds } | null;
 }
 
 // (map types end)

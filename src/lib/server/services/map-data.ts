@@ -2,11 +2,12 @@
  * The network map's one JSON document (GET /api/v1/networks/:id/map) and its importance image
  * (GET /api/v1/networks/:id/map/importance.png): assembly only.
  *
- * The map is drawn in the network's working CRS (services/working-crs.ts, the same one the sensor
- * table, zones and placement use): sensing disks are true circles of their radius in metres, the
- * scale bar is exact, and the importance raster lies on the map as an axis-aligned grid. Every
- * WGS 84 geometry is converted here with proj4, so the browser receives working-CRS x/y only (plus
- * the proj4 string, to show lon/lat under the cursor).
+ * Every geometry is given in the network's working CRS (services/working-crs.ts, the same one the
+ * sensor table, zones and placement use), where all measurement happens: every WGS 84 geometry is
+ * converted here with proj4, and the browser gets working-CRS x/y plus the proj4 string. The
+ * importance image (and the contours cut from it) is rendered in `imageEpsg`: the working CRS for
+ * the server-drawn maps, EPSG:3857 for the web maps (Leaflet), where it lies axis-aligned; the
+ * backdrop says which (`backdrop.epsg`), and the contours are converted back to the working CRS.
  *
  * The importance image and its contours are derived from a recipe version's surface, which never
  * changes: a `map-importance` job draws them once per (recipe version, CRS) and keeps them in the
@@ -54,6 +55,8 @@ export interface MapInputs {
 	 * get the latest layer's preview as its backdrop (that PNG is served under layer.view).
 	 */
 	mayViewLayers?: boolean;
+	/** The CRS the backdrop image is drawn in (its bounds are in it too); default the working CRS. */
+	imageEpsg?: number;
 }
 
 type ImportanceState = { state: 'none' } | { state: 'ready'; versionId: number; view: ImportanceView } | { state: 'pending'; job: MapImportanceJob };
@@ -123,16 +126,20 @@ export async function networkMap(db: Db, inputs: MapInputs): Promise<MapDocument
 
 	let backdrop: MapBackdrop | null = null;
 	let contours: MapContour[] = [];
-	const imp = await importanceIn(db, network.id, crs.epsg, inputs.importance, inputs.cache);
+	const imageEpsg = inputs.imageEpsg ?? crs.epsg;
+	// Image coordinates → working CRS (for the contours and the extent); identity when they agree.
+	const imageToWorking: PointTransform = imageEpsg === crs.epsg ? (x, y) => [x, y] : transformer(imageEpsg, crs.epsg).forward;
+	const imp = await importanceIn(db, network.id, imageEpsg, inputs.importance, inputs.cache);
 	if (imp.state === 'ready') {
 		const { bounds, min, max } = imp.view;
-		backdrop = { kind: 'importance', label: 'Importance', url: `${apiBase}/map/importance.png`, bounds, min, max, legend: legendStops(min, max), approximate: false };
-		contours = imp.view.contours;
+		const url = `${apiBase}/map/importance.png${imageEpsg === crs.epsg ? '' : `?epsg=${imageEpsg}`}`;
+		backdrop = { kind: 'importance', label: 'Importance', url, epsg: imageEpsg, bounds, min, max, legend: legendStops(min, max), approximate: false };
+		contours = imageEpsg === crs.epsg ? imp.view.contours : imp.view.contours.map((c) => ({ level: c.level, lines: c.lines.map((l) => l.map(([x, y]) => imageToWorking(x, y))) }));
 	} else if (imp.state === 'none' && inputs.mayViewLayers) {
-		backdrop = await layerBackdrop(db, network.id, crs.epsg, fwd, apiBase);
+		backdrop = await layerBackdrop(db, network.id, imageEpsg, transformer(4326, imageEpsg).forward, apiBase);
 	}
 	const sensorPoints: Position[] = sensors.map((s) => [s.x, s.y]);
-	const extent = unionBounds(boundsOf(sensorPoints, [...studyArea, ...exclusions, ...zones.map((z) => z.rings)]), backdrop?.bounds ?? null);
+	const extent = unionBounds(boundsOf(sensorPoints, [...studyArea, ...exclusions, ...zones.map((z) => z.rings)]), backdrop ? boundsOf([], [[boxOutline(backdrop.bounds).map(([x, y]) => imageToWorking(x, y))]]) : null);
 	return {
 		...base,
 		crs: { epsg: crs.epsg, proj4: crsDefinition(crs.epsg) as string },
@@ -156,22 +163,34 @@ async function layerBackdrop(db: Db, networkId: number, epsg: number, fwd: Point
 	if (!bounds) return null;
 	const min = layer.stat_min ?? 0;
 	const max = layer.stat_max ?? min;
-	return { kind: 'layer', label: layer.name, url: `${apiBase}/layers/${layer.id}/preview.png`, bounds, min, max, legend: legendStops(Math.min(min, max), Math.max(min, max)), approximate: layer.epsg !== epsg };
+	return { kind: 'layer', label: layer.name, url: `${apiBase}/layers/${layer.id}/preview.png`, epsg, bounds, min, max, legend: legendStops(Math.min(min, max), Math.max(min, max)), approximate: layer.epsg !== epsg };
+}
+
+/** A box's outline, 8 points a side (a box in one CRS is curved in another). */
+function boxOutline([x0, y0, x1, y1]: Bounds): Position[] {
+	const out: Position[] = [];
+	for (let k = 0; k <= 8; k++) {
+		const f = k / 8;
+		out.push([x0 + f * (x1 - x0), y0], [x0 + f * (x1 - x0), y1], [x0, y0 + f * (y1 - y0)], [x1, y0 + f * (y1 - y0)]);
+	}
+	return out;
 }
 
 /**
- * The importance image for the map, or null when the network has no importance surface (or it holds
- * no value in the map CRS). Not drawn yet: its job is queued and MapImportancePending (409
- * importance_pending) thrown; a job that failed gives its reason (422 map_unavailable).
+ * The importance image for the map in `epsg` (default the network's working CRS; the web maps ask
+ * for EPSG:3857), or null when the network has no importance surface (or it holds no value in that
+ * CRS). Not drawn yet: its job is queued and MapImportancePending (409 importance_pending) thrown; a
+ * job that failed gives its reason (422 map_unavailable).
  */
-export async function importancePng(db: Db, network: NetworkRow, importance: ImportanceSource, cache: ObjectStore): Promise<Buffer | null> {
+export async function importancePng(db: Db, network: NetworkRow, importance: ImportanceSource, cache: ObjectStore, epsg?: number): Promise<Buffer | null> {
 	const crs = await mapCrs(db, network);
 	if (!crs) return null;
+	const imageEpsg = epsg ?? crs.epsg;
 	const versionId = await importance.versionId(network.id);
 	if (versionId === null) return null;
-	const view = await readMapImportanceView(cache, versionId, crs.epsg);
-	if (view) return 'empty' in view ? null : readMapImportancePng(cache, versionId, crs.epsg);
-	const job = await queueMapImportance(db, { networkId: network.id, versionId, epsg: crs.epsg });
+	const view = await readMapImportanceView(cache, versionId, imageEpsg);
+	if (view) return 'empty' in view ? null : readMapImportancePng(cache, versionId, imageEpsg);
+	const job = await queueMapImportance(db, { networkId: network.id, versionId, epsg: imageEpsg });
 	if (job.state === 'failed') throw new ServiceError(422, 'map_unavailable', job.error ?? 'The importance map could not be drawn.');
 	throw new MapImportancePending(job);
 }

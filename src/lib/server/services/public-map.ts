@@ -8,10 +8,11 @@
  */
 import type { Db } from '../db';
 import { transformer, type PointTransform } from '../../geo/crs';
-import type { MapBounds, MapLegendStop, MapRings } from '$lib/api/client';
+import type { MapBounds, MapLegendStop, MapRings, WebMapExtras } from '$lib/api/client';
 import type { NetworkRow } from '../repositories/networks';
 import type { ObjectStore } from '../storage/object-store';
 import { networkMap, importancePng, type ImportanceSource } from './map-data';
+import { WEB_MAP_EPSG } from '../../map/web-map';
 import type { RevisionMetrics, RevisionOutputs } from './placement';
 import { ServiceError } from './errors';
 
@@ -200,10 +201,23 @@ export async function cachedPublicMap(db: Db, slug: string, importance: Importan
 	return map;
 }
 
-/** The importance overlay PNG of a published network (404 when unpublished or without importance). */
-export async function publicImportancePng(db: Db, slug: string, importance: ImportanceSource, cache: ObjectStore): Promise<Buffer> {
+/**
+ * What the public map needs to become a web map over the deployment's basemap (asked for only when
+ * one is set): the working CRS's proj4 definition and the importance overlay in EPSG:3857.
+ */
+export async function publicWebMap(db: Db, slug: string, importance: ImportanceSource, cache: ObjectStore): Promise<WebMapExtras | null> {
 	const network = await findPublishedNetwork(db, slug);
-	const png = await importancePng(db, network, importance, cache);
+	const apiBase = `/api/v1/public/networks/${network.slug}`;
+	const doc = await networkMap(db, { network, importance, cache, apiBase, mayViewLayers: false, imageEpsg: WEB_MAP_EPSG });
+	if (!doc.crs) return null;
+	const b = doc.backdrop?.kind === 'importance' ? doc.backdrop : null;
+	return { proj4: doc.crs.proj4, overlay: b ? { url: `${apiBase}/importance.png?epsg=${WEB_MAP_EPSG}`, epsg: b.epsg, bounds: b.bounds } : null };
+}
+
+/** The importance overlay PNG of a published network, in its working CRS or `epsg` (3857) (404 when unpublished or without importance). */
+export async function publicImportancePng(db: Db, slug: string, importance: ImportanceSource, cache: ObjectStore, epsg?: number): Promise<Buffer> {
+	const network = await findPublishedNetwork(db, slug);
+	const png = await importancePng(db, network, importance, cache, epsg);
 	if (!png) throw new ServiceError(404, 'not_found', 'This map has no importance overlay.');
 	return png;
 }

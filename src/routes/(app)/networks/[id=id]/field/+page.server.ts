@@ -7,6 +7,7 @@ import { networkAccess } from '$lib/server/auth/network-access';
 import { ServiceError } from '$lib/server/services/errors';
 import { applyTaskUpdate, currentTasks, fieldSettings } from '$lib/server/services/field-tasks';
 import { routeMap } from '$lib/server/services/route-map';
+import { basemapSettings } from '$lib/server/http/basemap';
 import { photosOfTasks } from '$lib/server/services/field-photos';
 import { acknowledgeCautions, cautionsAcknowledged } from '$lib/server/services/field-cautions';
 import { updateFromForm } from '$lib/field/update-form';
@@ -37,7 +38,7 @@ export const load = (async (event) => {
 		toleranceM: (await fieldSettings(db, network.id)).installToleranceM,
 		// Read today (UTC day) by this technician, on any device.
 		cautionsAcknowledged: await cautionsAcknowledged(db, network.id, actor.id),
-		map: await routeMap(db, network, active, importanceSource(), getObjectStore()),
+		map: await routeMap(db, network, active, importanceSource(), getObjectStore(), { web: basemapSettings() !== null }),
 		photos: await photosOfTasks(db, network.id, active.map((t) => t.id))
 	};
 }) satisfies PageServerLoad;
