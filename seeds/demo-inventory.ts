@@ -14,8 +14,8 @@
 import type { Knex } from 'knex';
 
 export const DEMO_SENSOR_TYPES = [
-	{ name: 'soil moisture probe', radius_m: 1000, mobility: 'relocatable', relocation_minutes: 45, notes: 'Representative radius set by the analyst: the demo soil moisture varies over kilometres. The probe itself senses a few centimetres.' },
-	{ name: 'cosmic-ray neutron sensor', radius_m: 150, mobility: 'fixed', relocation_minutes: null, notes: 'Sensing radius about 130–240 m, shrinking in wetter soil (Köhli et al. 2015).' }
+	{ name: 'soil moisture probe', radius_m: 1000, footprint: 'point', mobility: 'relocatable', relocation_minutes: 45, notes: 'Representative radius set by the analyst: the demo soil moisture varies over kilometres. The probe itself senses a few centimetres.' },
+	{ name: 'cosmic-ray neutron sensor', radius_m: 150, footprint: 'area', mobility: 'fixed', relocation_minutes: null, notes: 'Sensing radius about 130–240 m, shrinking in wetter soil (Köhli et al. 2015).' }
 ] as const;
 
 export async function seedDemoInventory(knex: Knex | Knex.Transaction, networkId: number): Promise<void> {

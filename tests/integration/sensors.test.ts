@@ -3,7 +3,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createNetwork } from '../../src/lib/server/services/networks';
 import { findNetwork, type NetworkRow } from '../../src/lib/server/repositories/networks';
-import { createSensorType, sensorTypesOf } from '../../src/lib/server/services/sensor-types';
+import { createSensorType, sensorTypeInput, sensorTypesOf } from '../../src/lib/server/services/sensor-types';
 import {
 	createSensor,
 	editSensor,
@@ -43,11 +43,26 @@ describe('sensors service', () => {
 		const net = await freshNetwork();
 		await seedDemoInventory(t.db, net.id);
 		const types = await sensorTypesOf(t.db, net.id);
-		expect(types.map((x) => [x.name, x.radiusM, x.mobility])).toEqual([
-			['cosmic-ray neutron sensor', 150, 'fixed'],
-			// seeds/demo-inventory.ts: the demo probe stands for the ground within 1 km (the demo's own setting).
-			['soil moisture probe', 1000, 'relocatable']
+		expect(types.map((x) => [x.name, x.radiusM, x.footprint, x.mobility])).toEqual([
+			// A neutron sensor's reading covers about 130–240 m around it (Köhli et al. 2015): an area sensor.
+			['cosmic-ray neutron sensor', 150, 'area', 'fixed'],
+			// seeds/demo-inventory.ts: the demo probe stands for the ground within 1 km (the demo's own
+			// setting) but still senses a point: its radius is a siting choice, not a footprint.
+			['soil moisture probe', 1000, 'point', 'relocatable']
 		]);
+	});
+
+	it('what a sensor type senses is its own setting (default a point), checked and kept', async () => {
+		const net = await freshNetwork();
+		const base = { radiusM: 200, mobility: 'fixed', relocationMinutes: null, notes: '' } as const;
+		const a = await createSensorType(t.db, member.organisationId, net.id, member.userId, sensorTypeInput.parse({ ...base, name: 'neutron mast', footprint: 'area' }));
+		const p = await createSensorType(t.db, member.organisationId, net.id, member.userId, sensorTypeInput.parse({ ...base, name: 'wide probe' }));
+		const types = await sensorTypesOf(t.db, net.id);
+		expect(types.find((x) => x.id === a)?.footprint).toBe('area');
+		expect(types.find((x) => x.id === p)?.footprint).toBe('point');
+		const bad = sensorTypeInput.safeParse({ ...base, name: 'odd', footprint: 'line' });
+		expect(bad.success).toBe(false);
+		expect(bad.error?.issues[0].path).toEqual(['footprint']);
 	});
 
 	it('a sensor type name is unique within the network', async () => {

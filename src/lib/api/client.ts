@@ -309,6 +309,8 @@ export interface SensorType {
 	id: number;
 	name: string;
 	radiusM: number;
+	/** `point`: a probe (its radius is a siting choice); `area`: a large-footprint sensor (its radius is physical). */
+	footprint: 'point' | 'area';
 	mobility: Mobility;
 	relocationMinutes: number | null;
 	notes: string;
@@ -316,6 +318,8 @@ export interface SensorType {
 export interface SensorTypeInput {
 	name: string;
 	radiusM: number;
+	/** Default `point`. */
+	footprint?: 'point' | 'area';
 	mobility: Mobility;
 	relocationMinutes?: number | null;
 	notes?: string;

@@ -1,18 +1,23 @@
-/** Sensor types of a network: name, sensing radius, mobility and relocation effort. */
+/** Sensor types of a network: name, sensing radius, what it senses, mobility and relocation effort. */
 import type { Db } from '../db';
 import type { Mobility } from '../../engine/types';
+
+/** `point`: a probe (its radius is a siting choice); `area`: a large-footprint sensor (its radius is physical). */
+export type Footprint = 'point' | 'area';
+export const FOOTPRINTS: readonly Footprint[] = ['point', 'area'];
 
 export interface SensorTypeRow {
 	id: number;
 	network_id: number;
 	name: string;
 	radius_m: number;
+	footprint: Footprint;
 	mobility: Mobility;
 	relocation_minutes: number | null;
 	notes: string;
 }
 
-const columns = ['id', 'network_id', 'name', 'radius_m', 'mobility', 'relocation_minutes', 'notes'] as const;
+const columns = ['id', 'network_id', 'name', 'radius_m', 'footprint', 'mobility', 'relocation_minutes', 'notes'] as const;
 
 export type SensorTypeFields = Omit<SensorTypeRow, 'id' | 'network_id'>;
 

@@ -10,6 +10,7 @@ import type { Db } from '../db';
 import { transformer, type PointTransform } from '../../geo/crs';
 import type { MapBounds, MapLegendStop, MapRings, WebMapExtras } from '$lib/api/client';
 import type { NetworkRow } from '../repositories/networks';
+import type { Footprint } from '../repositories/sensor-types';
 import type { ObjectStore } from '../storage/object-store';
 import { networkMap, importancePng, type ImportanceSource } from './map-data';
 import { WEB_MAP_EPSG } from '../../map/web-map';
@@ -17,15 +18,12 @@ import type { RevisionMetrics, RevisionOutputs } from './placement';
 import { ServiceError } from './errors';
 
 /**
- * A sensor type senses an area (a large footprint, drawn with its own symbol) when its sensing
- * radius is at least this many metres; below it, a point probe whose radius is a siting setting.
- * Cosmic-ray neutron sensors see about 130–240 m around them (Köhli et al. 2015, Water Resources
- * Research); point probes sense centimetres and are given siting radii of tens of metres (common
- * practice, no source).
+ * What a sensor type senses is its own setting (sensor_types.footprint), not read from its radius: a
+ * cosmic-ray neutron sensor senses about 130–240 m around it (Köhli et al. 2015, Water Resources
+ * Research) and is drawn as an area sensor with its own symbol; a point probe senses centimetres,
+ * and its radius, a siting choice, may be larger still (the demo's probes stand for 1 km).
  */
-export const AREA_FOOTPRINT_MIN_M = 100;
-export type Footprint = 'point' | 'area';
-export const footprintOf = (radiusM: number): Footprint => (radiusM >= AREA_FOOTPRINT_MIN_M ? 'area' : 'point');
+export type { Footprint };
 
 export interface PublicSite {
 	lon: number;
@@ -76,15 +74,16 @@ interface Candidate {
 	lat: number;
 	radiusM: number;
 	type: string;
+	footprint: Footprint;
 }
 
 /** The current plan's sites, where a done task stands as installed; without a plan, the active inventory. */
 async function candidateSites(db: Db, networkId: number): Promise<{ sites: Candidate[]; plan: { approvedAt: string; metrics: RevisionMetrics } | null }> {
 	const plan = await db('plans as p').join('revisions as r', 'r.id', 'p.revision_id').select('p.id', 'p.approved_at', 'r.outputs', 'r.metrics').where({ 'p.network_id': networkId, 'p.state': 'current' }).first();
-	const types = new Map<number, { name: string; radius: number }>((await db('sensor_types').select('id', 'name', 'radius_m').where({ network_id: networkId })).map((t: { id: number; name: string; radius_m: number }) => [t.id, { name: t.name, radius: Number(t.radius_m) }]));
+	const types = new Map<number, { name: string; radius: number; footprint: Footprint }>((await db('sensor_types').select('id', 'name', 'radius_m', 'footprint').where({ network_id: networkId })).map((t: { id: number; name: string; radius_m: number; footprint: Footprint }) => [t.id, { name: t.name, radius: Number(t.radius_m), footprint: t.footprint }]));
 	if (!plan) {
 		const rows = await db('sensors').select('lon', 'lat', 'sensor_type_id').where({ network_id: networkId, status: 'active' });
-		return { plan: null, sites: rows.map((s: { lon: number; lat: number; sensor_type_id: number }) => ({ lon: Number(s.lon), lat: Number(s.lat), radiusM: types.get(s.sensor_type_id)?.radius ?? 0, type: types.get(s.sensor_type_id)?.name ?? '' })) };
+		return { plan: null, sites: rows.map((s: { lon: number; lat: number; sensor_type_id: number }) => ({ lon: Number(s.lon), lat: Number(s.lat), radiusM: types.get(s.sensor_type_id)?.radius ?? 0, type: types.get(s.sensor_type_id)?.name ?? '', footprint: types.get(s.sensor_type_id)?.footprint ?? 'point' })) };
 	}
 	const parse = (v: unknown) => (typeof v === 'string' ? JSON.parse(v) : v);
 	const outputs = parse(plan.outputs) as RevisionOutputs;
@@ -94,7 +93,7 @@ async function candidateSites(db: Db, networkId: number): Promise<{ sites: Candi
 	const sites = outputs.targets.features.map((f) => {
 		const at = done.get(String(f.properties.site));
 		const typeId = typeof f.properties.typeId === 'number' ? f.properties.typeId : null;
-		return { lon: at?.lon ?? f.geometry.coordinates[0], lat: at?.lat ?? f.geometry.coordinates[1], radiusM: Number(f.properties.radiusM ?? 0), type: (typeId !== null ? types.get(typeId)?.name : undefined) ?? String(f.properties.type ?? '') };
+		return { lon: at?.lon ?? f.geometry.coordinates[0], lat: at?.lat ?? f.geometry.coordinates[1], radiusM: Number(f.properties.radiusM ?? 0), type: (typeId !== null ? types.get(typeId)?.name : undefined) ?? String(f.properties.type ?? ''), footprint: (typeId !== null ? types.get(typeId)?.footprint : undefined) ?? 'point' };
 	});
 	return { sites, plan: { approvedAt: new Date(plan.approved_at).toISOString(), metrics: parse(plan.metrics) as RevisionMetrics } };
 }
@@ -116,7 +115,7 @@ export async function publicMap(db: Db, slug: string, importance: ImportanceSour
 				[x, y] = generalise(x, y, grid);
 				[lon, lat] = back(x, y);
 			}
-			return { lon, lat, x, y, radiusM: c.radiusM, type: c.type, footprint: footprintOf(c.radiusM) };
+			return { lon, lat, x, y, radiusM: c.radiusM, type: c.type, footprint: c.footprint };
 		});
 		// Stable order that says nothing about codes or tasks.
 		sites.sort((a, b) => a.x - b.x || a.y - b.y);
@@ -164,7 +163,7 @@ export async function publicMapFingerprint(db: Db, slug: string): Promise<{ fing
 			(SELECT CONCAT(p.id, ':', p.revision_id) FROM plans p WHERE p.network_id = n.id AND p.state = 'current'),
 			(SELECT CONCAT(COUNT(*), ':', COALESCE(MAX(t.updated_at), ''), ':', COALESCE(SUM(CRC32(CONCAT_WS(',', t.id, t.installed_lon, t.installed_lat))), 0)) FROM field_tasks t WHERE t.network_id = n.id AND t.state = 'done'),
 			(SELECT CONCAT(COUNT(*), ':', COALESCE(MAX(s.updated_at), ''), ':', COALESCE(SUM(CRC32(CONCAT_WS(',', s.id, s.status, s.lon, s.lat, s.sensor_type_id))), 0)) FROM sensors s WHERE s.network_id = n.id),
-			(SELECT CONCAT(COUNT(*), ':', COALESCE(SUM(CRC32(CONCAT_WS(',', st.id, st.name, st.radius_m))), 0)) FROM sensor_types st WHERE st.network_id = n.id),
+			(SELECT CONCAT(COUNT(*), ':', COALESCE(SUM(CRC32(CONCAT_WS(',', st.id, st.name, st.radius_m, st.footprint))), 0)) FROM sensor_types st WHERE st.network_id = n.id),
 			(SELECT CONCAT(COUNT(*), ':', COALESCE(SUM(CRC32(CONCAT_WS(',', z.id, z.code, z.name, z.importance_share))), 0)) FROM zones z WHERE z.zone_set_id = n.zone_set_id)
 		) AS fingerprint, n.recipe_version_id IS NOT NULL AS has_recipe
 		FROM networks n WHERE n.published_slug = ?`,

@@ -10,6 +10,8 @@ import {
 	sensorsOfTypeCount,
 	sensorTypeNameTaken,
 	updateSensorType,
+	FOOTPRINTS,
+	type Footprint,
 	type SensorTypeFields,
 	type SensorTypeRow
 } from '../repositories/sensor-types';
@@ -23,6 +25,7 @@ export const sensorTypeInput = z.object({
 		.refine(Number.isFinite, 'The sensing radius is a number of metres.')
 		.gt(0, 'The sensing radius must be more than 0 m.')
 		.max(100_000, 'A sensing radius over 100 km is not plausible.'),
+	footprint: z.enum(FOOTPRINTS as ['point', 'area'], { error: 'Choose point (a probe) or area (a large-footprint sensor).' }).default('point'),
 	mobility: z.enum(MOBILITIES as ['fixed', 'relocatable', 'mobile'], { error: 'Choose fixed, relocatable or mobile.' }),
 	relocationMinutes: z.preprocess(
 		(v) => (v === '' || v === undefined ? null : v),
@@ -31,15 +34,16 @@ export const sensorTypeInput = z.object({
 	notes: z.string().trim().max(1000, 'Keep the notes under 1000 characters.').default('')
 });
 
-export type SensorTypeInput = z.infer<typeof sensorTypeInput>;
+/** A parsed sensor type; `footprint` may be left out by callers that build one in code (default a point). */
+export type SensorTypeInput = Omit<z.infer<typeof sensorTypeInput>, 'footprint'> & { footprint?: Footprint };
 
 export function sensorTypeView(t: SensorTypeRow) {
-	return { id: t.id, name: t.name, radiusM: Number(t.radius_m), mobility: t.mobility, relocationMinutes: t.relocation_minutes, notes: t.notes };
+	return { id: t.id, name: t.name, radiusM: Number(t.radius_m), footprint: t.footprint, mobility: t.mobility, relocationMinutes: t.relocation_minutes, notes: t.notes };
 }
 export type SensorTypeView = ReturnType<typeof sensorTypeView>;
 
 function fields(i: SensorTypeInput): SensorTypeFields {
-	return { name: i.name, radius_m: i.radiusM, mobility: i.mobility, relocation_minutes: i.relocationMinutes, notes: i.notes };
+	return { name: i.name, radius_m: i.radiusM, footprint: i.footprint ?? 'point', mobility: i.mobility, relocation_minutes: i.relocationMinutes, notes: i.notes };
 }
 
 export async function sensorTypesOf(db: Knex, networkId: number): Promise<SensorTypeView[]> {
