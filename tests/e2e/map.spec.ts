@@ -290,13 +290,13 @@ test('while its importance image is being drawn, the Map tab shows the rest at o
 	const versionId = (await saveRecipeViaApi(analyst, networkId, { name: 'Wetness', definition: { layers: [{ layerId: String(layerId), transform: 'minmax', weight: 1 }] } })).id;
 	expect((await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId } })).ok()).toBe(true);
 
-	// The network is now drawn in the neighbouring UTM zone (55S), for which no image exists; its
-	// job is queued to start only when the test says so, so the page meets it queued.
+	// The version's own job drew its image in the working CRS; the Map tab (a web map) asks for the
+	// EPSG:3857 image, which no one has asked for yet: its job is queued here, to start only when the
+	// test says so, so the page meets it queued (the page's request finds it by its key).
 	const db = createDb(url, 1);
 	try {
 		const sensorCount = await insertDemoMapRows(db, networkId);
-		await db('networks').where({ id: networkId }).update({ crs_epsg: 32755, working_epsg: 32755 });
-		const job = await enqueueJob(db, { kind: 'map-importance', payload: { networkId, versionId, epsg: 32755 }, networkId, idempotencyKey: `map-importance:${versionId}:32755`, delayMs: 10 * 60_000 });
+		const job = await enqueueJob(db, { kind: 'map-importance', payload: { networkId, versionId, epsg: 3857 }, networkId, idempotencyKey: `map-importance:${versionId}:3857`, delayMs: 10 * 60_000 });
 
 		const t = demoUser('technician');
 		await signInPage(page, t.email, t.password);
