@@ -290,13 +290,18 @@ test('while its importance image is being drawn, the Map tab shows the rest at o
 	const versionId = (await saveRecipeViaApi(analyst, networkId, { name: 'Wetness', definition: { layers: [{ layerId: String(layerId), transform: 'minmax', weight: 1 }] } })).id;
 	expect((await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId } })).ok()).toBe(true);
 
-	// The version's own job drew its image in the working CRS; the Map tab (a web map) asks for the
-	// EPSG:3857 image, which no one has asked for yet: its job is queued here, to start only when the
-	// test says so, so the page meets it queued (the page's request finds it by its key).
+	// The version's own job queued its images (working CRS and EPSG:3857). A second version with the
+	// same surface is written straight into the database, so no job has drawn or queued its images;
+	// the network uses it, and the job of its 3857 image (what the Map tab, a web map, asks for) is
+	// queued here to start only when the test says so: the page meets it queued, finding it by its key.
 	const db = createDb(url, 1);
 	try {
 		const sensorCount = await insertDemoMapRows(db, networkId);
-		const job = await enqueueJob(db, { kind: 'map-importance', payload: { networkId, versionId, epsg: 3857 }, networkId, idempotencyKey: `map-importance:${versionId}:3857`, delayMs: 10 * 60_000 });
+		const { id: _id, version: _v, ...copy } = await db('importance_recipe_versions').where({ id: versionId }).first();
+		const [copyId] = await db('importance_recipe_versions').insert({ ...copy, version: 2 });
+		await db('importance_recipes').where({ id: copy.recipe_id }).update({ latest_version: 2 });
+		expect((await analyst.post(`/api/v1/networks/${networkId}/recipes/current`, { data: { versionId: copyId } })).ok()).toBe(true);
+		const job = await enqueueJob(db, { kind: 'map-importance', payload: { networkId, versionId: copyId, epsg: 3857 }, networkId, idempotencyKey: `map-importance:${copyId}:3857`, delayMs: 10 * 60_000 });
 
 		const t = demoUser('technician');
 		await signInPage(page, t.email, t.password);
@@ -324,7 +329,11 @@ test('the demo network opens on a living map: importance, the four sub-catchment
 	const tech = await contextFor('technician');
 	const { networks } = (await (await tech.get('/api/v1/networks')).json()) as { networks: { id: number; slug: string }[] };
 	const networkId = networks.find((n) => n.slug === 'vennarrow-vale')!.id;
-	const doc = (await (await tech.get(`/api/v1/networks/${networkId}/map`)).json()).map;
+	// Another spec may have put a new recipe version in use on the demo network a moment ago: its map
+	// images are then still being drawn by their jobs (the document says so in importanceJob).
+	const mapDoc = async () => (await (await tech.get(`/api/v1/networks/${networkId}/map`)).json()).map;
+	await expect.poll(async () => (await mapDoc()).backdrop?.kind ?? null, { timeout: 60_000 }).toBe('importance');
+	const doc = await mapDoc();
 	await tech.dispose();
 	// data/demo/README.md: 14 sensors, four sub-catchments, one exclusion; the seed puts a recipe in use.
 	expect(doc.crs.epsg).toBe(32754);

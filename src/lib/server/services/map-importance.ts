@@ -8,6 +8,7 @@
  * demand by a map request that finds no image. The CRS is a parameter: the network's working CRS
  * today, any other (a web map's EPSG:3857) the same way.
  */
+import { WEB_MAP_EPSG } from '../../map/web-map';
 import type { Knex } from 'knex';
 import { enqueueJob, findJobByKey, type JobRow } from '../jobs/queue';
 import { ImportanceImageError, renderImportance, type ImportanceView } from '../map/importance-image';
@@ -73,16 +74,19 @@ export async function queueMapImportance(db: Db, p: MapImportancePayload): Promi
 }
 
 /**
- * After a version's surface is computed: queue its image in the CRS the network works in with that
- * version (the server-drawn maps: public map, route, print); none without a working CRS. The web
- * maps' EPSG:3857 image is queued by the first web map that asks for it, whose page follows the job.
+ * After a version's surface is computed: queue its images in the CRS the network works in with that
+ * version (the server-drawn maps) and in EPSG:3857 (the web maps); none without a working CRS.
+ * Returns the working-CRS job.
  */
 export async function queueMapImportanceOfVersion(db: Knex | Knex.Transaction, networkId: number, versionId: number): Promise<JobRow | null> {
 	const version = await findVersion(db, networkId, versionId);
 	if (!version) return null;
 	const epsg = await workingCrsWith(db, networkId, version.grid_epsg);
 	if (epsg === null) return null;
-	return enqueueJob(db, { kind: MAP_IMPORTANCE, payload: { networkId, versionId, epsg } satisfies MapImportancePayload, networkId, idempotencyKey: `${MAP_IMPORTANCE}:${versionId}:${epsg}`, priority: 10 });
+	const queue = (e: number) => enqueueJob(db, { kind: MAP_IMPORTANCE, payload: { networkId, versionId, epsg: e } satisfies MapImportancePayload, networkId, idempotencyKey: `${MAP_IMPORTANCE}:${versionId}:${e}`, priority: 10 });
+	const job = await queue(epsg);
+	if (epsg !== WEB_MAP_EPSG) await queue(WEB_MAP_EPSG);
+	return job;
 }
 
 /** Draws the image of a stored surface in a CRS (the job passes one that does it in its pool thread). */
